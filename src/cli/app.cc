@@ -1,0 +1,7 @@
+#include "cli/app.h"
+
+namespace alphatrail::cli {
+
+int run_app(int /*argc*/, char** /*argv*/) { return 0; }
+
+}  // namespace alphatrail::cli

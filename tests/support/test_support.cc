@@ -1,0 +1,127 @@
+#include "support/test_support.h"
+
+#include <fcntl.h>
+#include <spawn.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <array>
+#include <cstdlib>
+#include <fstream>
+#include <random>
+#include <sstream>
+#include <stdexcept>
+#include <thread>
+
+extern char** environ;
+
+namespace alphatrail::testing {
+
+std::filesystem::path source_path(const std::string& relative) {
+  return std::filesystem::path(ALPHATRAIL_SOURCE_DIR) / relative;
+}
+
+std::filesystem::path nist_path(const std::string& file) {
+  return std::filesystem::path(ALPHATRAIL_SOURCE_DIR) / ".." / "shared" / "reference" /
+         "nist-strd" / file;
+}
+
+ScratchDir::ScratchDir() {
+  std::random_device rd;
+  auto base = std::filesystem::temp_directory_path();
+  for (int attempt = 0; attempt < 100; ++attempt) {
+    auto candidate = base / ("alphatrail-test-" + std::to_string(rd()));
+    if (std::filesystem::create_directory(candidate)) {
+      path_ = candidate;
+      return;
+    }
+  }
+  throw std::runtime_error("cannot create a scratch folder");
+}
+
+ScratchDir::~ScratchDir() {
+  std::error_code ignored;
+  std::filesystem::remove_all(path_, ignored);
+}
+
+std::filesystem::path ScratchDir::write(const std::string& name, const std::string& text) const {
+  auto file = path_ / name;
+  std::ofstream out(file, std::ios::binary);
+  out << text;
+  return file;
+}
+
+std::string read_file(const std::filesystem::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  std::ostringstream ss;
+  ss << in.rdbuf();
+  return ss.str();
+}
+
+namespace {
+
+std::string drain(int fd) {
+  std::string text;
+  std::array<char, 65536> buffer{};
+  ssize_t n = 0;
+  while ((n = read(fd, buffer.data(), buffer.size())) > 0) text.append(buffer.data(), n);
+  close(fd);
+  return text;
+}
+
+}  // namespace
+
+CommandResult run_program(const std::vector<std::string>& argv,
+                          const std::vector<std::string>& env) {
+  int out_pipe[2];
+  int err_pipe[2];
+  if (pipe(out_pipe) != 0 || pipe(err_pipe) != 0) throw std::runtime_error("pipe failed");
+
+  posix_spawn_file_actions_t actions;
+  posix_spawn_file_actions_init(&actions);
+  posix_spawn_file_actions_addopen(&actions, 0, "/dev/null", O_RDONLY, 0);
+  posix_spawn_file_actions_adddup2(&actions, out_pipe[1], 1);
+  posix_spawn_file_actions_adddup2(&actions, err_pipe[1], 2);
+  posix_spawn_file_actions_addclose(&actions, out_pipe[0]);
+  posix_spawn_file_actions_addclose(&actions, err_pipe[0]);
+
+  std::vector<std::string> environment;
+  for (char** e = environ; *e != nullptr; ++e) {
+    std::string entry = *e;
+    if (entry.rfind("ALPHATRAIL_", 0) == 0) continue;  // tests state their environment
+    environment.push_back(entry);
+  }
+  for (const auto& e : env) environment.push_back(e);
+
+  std::vector<char*> c_argv;
+  for (const auto& a : argv) c_argv.push_back(const_cast<char*>(a.c_str()));
+  c_argv.push_back(nullptr);
+  std::vector<char*> c_env;
+  for (auto& e : environment) c_env.push_back(e.data());
+  c_env.push_back(nullptr);
+
+  pid_t pid = 0;
+  int rc = posix_spawn(&pid, c_argv[0], &actions, nullptr, c_argv.data(), c_env.data());
+  posix_spawn_file_actions_destroy(&actions);
+  close(out_pipe[1]);
+  close(err_pipe[1]);
+  if (rc != 0) throw std::runtime_error("cannot start " + argv[0]);
+
+  CommandResult result;
+  std::thread err_reader([&] { result.err = drain(err_pipe[0]); });
+  result.out = drain(out_pipe[0]);
+  err_reader.join();
+  int status = 0;
+  waitpid(pid, &status, 0);
+  result.exit_code = WIFEXITED(status) ? WEXITSTATUS(status) : 128 + WTERMSIG(status);
+  return result;
+}
+
+CommandResult run_alphatrail(const std::vector<std::string>& args,
+                             const std::vector<std::string>& env) {
+  std::vector<std::string> argv{ALPHATRAIL_BINARY};
+  argv.insert(argv.end(), args.begin(), args.end());
+  return run_program(argv, env);
+}
+
+}  // namespace alphatrail::testing

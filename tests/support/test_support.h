@@ -1,0 +1,49 @@
+// Helpers shared by the test suites: scratch folders, running the real binary, fixture paths.
+#pragma once
+
+#include <filesystem>
+#include <string>
+#include <vector>
+
+namespace alphatrail::testing {
+
+// Returns the path of a file below the source tree, e.g. source_path("fixtures/x.csv").
+std::filesystem::path source_path(const std::string& relative);
+
+// Returns the folder of the NIST StRD reference datasets (../shared/reference/nist-strd).
+std::filesystem::path nist_path(const std::string& file);
+
+// A fresh, empty folder removed when the object goes out of scope.
+class ScratchDir {
+ public:
+  ScratchDir();
+  ~ScratchDir();
+  ScratchDir(const ScratchDir&) = delete;
+  ScratchDir& operator=(const ScratchDir&) = delete;
+  const std::filesystem::path& path() const { return path_; }
+  std::filesystem::path operator/(const std::string& name) const { return path_ / name; }
+  // Writes text to a file in the folder and returns its path.
+  std::filesystem::path write(const std::string& name, const std::string& text) const;
+
+ private:
+  std::filesystem::path path_;
+};
+
+struct CommandResult {
+  int exit_code = -1;
+  std::string out;  // stdout
+  std::string err;  // stderr
+};
+
+// Runs the alphatrail binary with the arguments (no shell), capturing both streams.
+CommandResult run_alphatrail(const std::vector<std::string>& args,
+                             const std::vector<std::string>& env = {});
+
+// Runs an arbitrary program (no shell), capturing both streams.
+CommandResult run_program(const std::vector<std::string>& argv,
+                          const std::vector<std::string>& env = {});
+
+// Reads a whole file.
+std::string read_file(const std::filesystem::path& path);
+
+}  // namespace alphatrail::testing
