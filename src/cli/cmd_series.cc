@@ -1,0 +1,110 @@
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+
+#include <iostream>
+
+#include "cli/commands.h"
+#include "cli/output.h"
+#include "ledger/series_store.h"
+
+namespace alphatrail::cli {
+
+namespace {
+
+struct SeriesOptions {
+  std::string name;  // empty: list every series
+  Format format = Format::table;
+};
+
+nlohmann::ordered_json optional_json(const std::optional<std::string>& text) {
+  if (text) return *text;
+  return nullptr;
+}
+
+nlohmann::ordered_json version_json(const ledger::VersionInfo& v) {
+  return {{"name", v.name},
+          {"kind", v.kind},
+          {"frequency", optional_json(v.frequency)},
+          {"first", v.first_date},
+          {"last", v.last_date},
+          {"observations", v.observations},
+          {"missing", v.missing},
+          {"version", v.version},
+          {"content_hash", v.content_hash},
+          {"unit", v.unit},
+          {"input_unit", v.input_unit},
+          {"quote", optional_json(v.quote)},
+          {"columns", v.columns},
+          {"source_file", v.source_file},
+          {"source_sha256", v.source_sha256},
+          {"ingested_at", v.ingested_at},
+          {"ingested_by", v.ingested_by},
+          {"note", v.note}};
+}
+
+void print_versions(const std::vector<ledger::VersionInfo>& versions, Format format,
+                    bool history) {
+  if (format == Format::json) {
+    auto array = nlohmann::ordered_json::array();
+    for (const auto& v : versions) array.push_back(version_json(v));
+    print_json(std::cout, array);
+    return;
+  }
+  Table table;
+  if (history) {
+    table.header = {"version", "ingested (UTC)", "by", "observations", "first", "last",
+                    "content hash", "source file", "note"};
+    table.right_aligned = {true, false, false, true};
+  } else {
+    table.header = {"name", "kind", "frequency", "first", "last", "observations",
+                    "columns", "version", "content hash"};
+    table.right_aligned = {false, false, false, false, false, true, true, true};
+  }
+  for (const auto& v : versions) {
+    const std::string hash = format == Format::csv ? v.content_hash : v.content_hash.substr(0, 12);
+    if (history)
+      table.rows.push_back({std::to_string(v.version), v.ingested_at, v.ingested_by,
+                            std::to_string(v.observations), v.first_date, v.last_date, hash,
+                            v.source_file, v.note});
+    else
+      table.rows.push_back({v.name, v.kind, v.frequency.value_or("irregular"), v.first_date,
+                            v.last_date, std::to_string(v.observations),
+                            std::to_string(v.columns.size()), std::to_string(v.version), hash});
+  }
+  if (format == Format::csv) {
+    print_csv(std::cout, table);
+    return;
+  }
+  if (versions.empty()) {
+    std::cout << "the ledger holds no series yet; add some with `alphatrail ingest`\n";
+    return;
+  }
+  if (history) {
+    const auto& latest = versions.back();
+    std::cout << fmt::format("{} ({} series, {}; columns: {})\n\n", latest.name, latest.kind,
+                             latest.unit, fmt::join(latest.columns, ", "));
+  }
+  print_table(std::cout, table);
+}
+
+void run_series(const SeriesOptions& options, const GlobalOptions& global) {
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::read_only, std::cerr);
+  if (options.name.empty())
+    print_versions(ledger::list_latest_versions(ledger), options.format, false);
+  else
+    print_versions(ledger::version_history(ledger, options.name), options.format, true);
+}
+
+}  // namespace
+
+void setup_series(CLI::App& app, const GlobalOptions& global) {
+  auto options = std::make_shared<SeriesOptions>();
+  auto* cmd = app.add_subcommand(
+      "series", "List every series, factor set and rate curve, or one series' version history");
+  cmd->add_option("name", options->name, "Series to show the version history of");
+  add_format_option(*cmd, options->format);
+  cmd->callback([options, &global] { run_series(*options, global); });
+}
+
+}  // namespace alphatrail::cli

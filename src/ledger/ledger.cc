@@ -1,0 +1,208 @@
+#include "ledger/ledger.h"
+
+#include <SQLiteCpp/Statement.h>
+#include <SQLiteCpp/Transaction.h>
+#include <fmt/format.h>
+#include <sqlite3.h>
+
+#include <cstdlib>
+#include <fstream>
+#include <sstream>
+
+#include "core/error.h"
+#include "ledger/migrations.h"
+
+namespace alphatrail::ledger {
+
+namespace {
+
+Error ledger_error(const std::string& message) { return Error(ExitCode::ledger, message); }
+
+bool looks_like_sqlite(const std::filesystem::path& path) {
+  std::ifstream in(path, std::ios::binary);
+  char header[16] = {};
+  in.read(header, sizeof header);
+  if (in.gcount() == 0) return true;  // an empty file is a new database to SQLite
+  return in.gcount() == 16 && std::string(header, 15) == "SQLite format 3";
+}
+
+int pragma_int(SQLite::Database& db, const char* name) {
+  return db.execAndGet(fmt::format("PRAGMA {}", name)).getInt();
+}
+
+bool has_user_objects(SQLite::Database& db) {
+  return db.execAndGet("SELECT count(*) FROM sqlite_master WHERE name NOT LIKE 'sqlite_%'")
+             .getInt() > 0;
+}
+
+std::unique_ptr<SQLite::Database> connect(const std::filesystem::path& path, int flags) {
+  auto db = std::make_unique<SQLite::Database>(path.string(), flags, busy_timeout_ms());
+  db->exec("PRAGMA foreign_keys = ON");
+  return db;
+}
+
+// Checks the file is ours and not newer than this binary; returns its schema version.
+int check_identity(SQLite::Database& db, const std::filesystem::path& path) {
+  const int app_id = pragma_int(db, "application_id");
+  const int version = pragma_int(db, "user_version");
+  if (app_id == 0 && version == 0 && !has_user_objects(db)) return 0;
+  if (app_id != kApplicationId)
+    throw ledger_error(fmt::format(
+        "{} is an SQLite database but not an alphatrail ledger (application_id {:#x}); name "
+        "another file with --ledger",
+        path.string(), static_cast<unsigned>(app_id)));
+  if (version > current_schema_version())
+    throw ledger_error(fmt::format(
+        "{} has schema version {}, newer than this alphatrail (it knows up to {}); use a newer "
+        "alphatrail binary",
+        path.string(), version, current_schema_version()));
+  return version;
+}
+
+}  // namespace
+
+std::filesystem::path resolve_ledger_path(const std::string& option_value) {
+  if (!option_value.empty()) return option_value;
+  if (const char* env = std::getenv("ALPHATRAIL_LEDGER"); env != nullptr && *env != '\0')
+    return env;
+  return "alphatrail.db";
+}
+
+int busy_timeout_ms() {
+  if (const char* env = std::getenv("ALPHATRAIL_BUSY_TIMEOUT_MS"); env != nullptr) {
+    char* end = nullptr;
+    const long value = std::strtol(env, &end, 10);
+    if (end != env && *end == '\0' && value >= 0) return static_cast<int>(value);
+  }
+  return 10000;
+}
+
+int current_schema_version() { return static_cast<int>(embedded_migrations().size()); }
+
+int migrate(SQLite::Database& db) {
+  db.exec("BEGIN IMMEDIATE");
+  try {
+    const int from = pragma_int(db, "user_version");
+    const auto& migrations = embedded_migrations();
+    for (std::size_t i = static_cast<std::size_t>(from); i < migrations.size(); ++i) {
+      db.exec(migrations[i].sql);
+      db.exec(fmt::format("PRAGMA user_version = {}", i + 1));
+    }
+    if (from < static_cast<int>(migrations.size()))
+      db.exec(fmt::format("PRAGMA application_id = {}", kApplicationId));
+    db.exec("COMMIT");
+    return static_cast<int>(migrations.size()) - from;
+  } catch (...) {
+    db.exec("ROLLBACK");
+    throw;
+  }
+}
+
+Ledger::Ledger(std::filesystem::path path, std::unique_ptr<SQLite::Database> db)
+    : path_(std::move(path)), db_(std::move(db)) {}
+
+Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostream& notices) {
+  const bool exists = std::filesystem::exists(path);
+  if (!exists && mode != OpenMode::create)
+    throw ledger_error(fmt::format(
+        "no ledger at {}; create one with `alphatrail init --ledger {}` or name another with "
+        "--ledger",
+        path.string(), path.string()));
+  if (exists && !looks_like_sqlite(path))
+    throw ledger_error(fmt::format(
+        "{} is not an SQLite database; name an alphatrail ledger with --ledger", path.string()));
+  try {
+    auto db = connect(path, SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
+    const int version = check_identity(*db, path);
+    if (version < current_schema_version()) {
+      // WAL is a property of the file: set it once, before the first schema is written.
+      db->exec("PRAGMA journal_mode = WAL");
+      const int applied = migrate(*db);
+      if (!exists)
+        notices << fmt::format("created ledger {} (schema version {})\n", path.string(),
+                               current_schema_version());
+      else if (applied > 0)
+        notices << fmt::format("upgraded ledger {} from schema version {} to {}\n",
+                               path.string(), version, current_schema_version());
+    }
+    if (mode == OpenMode::read_only) {
+      db.reset();
+      db = connect(path, SQLite::OPEN_READONLY);
+      db->exec("PRAGMA query_only = ON");
+    } else {
+      db->exec("PRAGMA synchronous = NORMAL");
+    }
+    return Ledger(path, std::move(db));
+  } catch (const SQLite::Exception& e) {
+    if (e.getErrorCode() == SQLITE_BUSY)
+      throw ledger_error(fmt::format(
+          "ledger {} stayed busy for {} ms (another command is writing); try again, or raise "
+          "ALPHATRAIL_BUSY_TIMEOUT_MS",
+          path.string(), busy_timeout_ms()));
+    throw ledger_error(fmt::format("cannot open ledger {}: {}", path.string(), e.what()));
+  }
+}
+
+int Ledger::schema_version() { return pragma_int(*db_, "user_version"); }
+
+void Ledger::write_transaction(const std::function<void()>& work) {
+  db_->exec("BEGIN IMMEDIATE");
+  try {
+    work();
+    db_->exec("COMMIT");
+  } catch (...) {
+    try {
+      db_->exec("ROLLBACK");
+    } catch (...) {  // the transaction may already be gone; the original error matters
+    }
+    throw;
+  }
+}
+
+namespace {
+
+// Strips "--" comments and folds white space so that formatting does not count.
+std::string normalise_sql(const std::string& sql) {
+  std::string out;
+  bool in_comment = false;
+  bool in_string = false;
+  bool pending_space = false;
+  for (std::size_t i = 0; i < sql.size(); ++i) {
+    const char c = sql[i];
+    if (in_comment) {
+      if (c == '\n') in_comment = false;
+      continue;
+    }
+    if (!in_string && c == '-' && i + 1 < sql.size() && sql[i + 1] == '-') {
+      in_comment = true;
+      pending_space = true;
+      continue;
+    }
+    if (c == '\'') in_string = !in_string;
+    if (!in_string && (c == ' ' || c == '\n' || c == '\t' || c == '\r')) {
+      pending_space = true;
+      continue;
+    }
+    if (pending_space && !out.empty() && c != ')' && c != ',' && out.back() != '(') out += ' ';
+    pending_space = false;
+    out += c;
+  }
+  return out;
+}
+
+}  // namespace
+
+std::string schema_fingerprint(SQLite::Database& db) {
+  std::ostringstream out;
+  SQLite::Statement objects(db,
+                            "SELECT type, name, tbl_name, coalesce(sql, '') FROM sqlite_master "
+                            "WHERE name NOT LIKE 'sqlite_%' ORDER BY type, name");
+  while (objects.executeStep()) {
+    out << objects.getColumn(0).getString() << ' ' << objects.getColumn(1).getString() << " on "
+        << objects.getColumn(2).getString() << ": "
+        << normalise_sql(objects.getColumn(3).getString()) << '\n';
+  }
+  return out.str();
+}
+
+}  // namespace alphatrail::ledger

@@ -1,0 +1,65 @@
+// The ledger file: opening, creating and migrating an alphatrail SQLite ledger.
+//
+// A Ledger owns one SQLite connection. Opening checks the file's application_id, refuses a
+// ledger newer than this binary and upgrades an older one in one transaction (saying so on
+// the notice stream). Failures throw alphatrail::Error with ExitCode::ledger.
+#pragma once
+
+#include <SQLiteCpp/Database.h>
+
+#include <filesystem>
+#include <functional>
+#include <memory>
+#include <ostream>
+#include <string>
+
+namespace alphatrail::ledger {
+
+// PRAGMA application_id of every alphatrail ledger: the bytes "ATRL".
+inline constexpr int kApplicationId = 0x4154524C;
+
+enum class OpenMode {
+  create,     // create the file if missing (and say so), migrate
+  existing,   // the file must exist, migrate
+  read_only,  // the file must exist and be current; no writes
+};
+
+// Returns the ledger path: the --ledger option when given, else $ALPHATRAIL_LEDGER, else
+// ./alphatrail.db.
+std::filesystem::path resolve_ledger_path(const std::string& option_value);
+
+class Ledger {
+ public:
+  // Opens (and when needed creates or upgrades) the ledger; notices go to `notices`.
+  static Ledger open(const std::filesystem::path& path, OpenMode mode, std::ostream& notices);
+
+  SQLite::Database& db() { return *db_; }
+  const std::filesystem::path& path() const { return path_; }
+  // Returns PRAGMA user_version, the number of migrations applied.
+  int schema_version();
+
+  // Runs work inside BEGIN IMMEDIATE ... COMMIT; any exception rolls everything back.
+  void write_transaction(const std::function<void()>& work);
+
+ private:
+  Ledger(std::filesystem::path path, std::unique_ptr<SQLite::Database> db);
+  std::filesystem::path path_;
+  std::unique_ptr<SQLite::Database> db_;
+};
+
+// Returns the schema version this binary writes (the number of embedded migrations).
+int current_schema_version();
+
+// Applies the migrations after the database's user_version, each with its version bump in
+// one BEGIN IMMEDIATE transaction. Returns the number applied.
+int migrate(SQLite::Database& db);
+
+// Returns a normalised description of every table, column, index, view and trigger, for
+// comparing two schemas (comments and white space do not count).
+std::string schema_fingerprint(SQLite::Database& db);
+
+// Returns the milliseconds a command waits for a busy ledger ($ALPHATRAIL_BUSY_TIMEOUT_MS,
+// default 10000).
+int busy_timeout_ms();
+
+}  // namespace alphatrail::ledger

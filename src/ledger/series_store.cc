@@ -1,0 +1,281 @@
+#include "ledger/series_store.h"
+
+#include <SQLiteCpp/Statement.h>
+#include <fmt/format.h>
+#include <pwd.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <cstdlib>
+#include <thread>
+
+#include "core/error.h"
+
+namespace alphatrail::ledger {
+
+namespace {
+
+struct Prepared {
+  std::vector<EncodedColumn> columns;
+  std::string hash;
+  std::vector<core::Day> all_dates;  // union over columns, ascending
+  std::int64_t missing = 0;
+};
+
+Prepared prepare(const NewVersion& v) {
+  Prepared p;
+  p.columns.reserve(v.columns.size());
+  for (const auto& c : v.columns) {
+    p.columns.push_back({c.name, encode_values_json(c)});
+    p.missing += std::count_if(c.values.begin(), c.values.end(),
+                               [](double x) { return std::isnan(x); });
+    p.all_dates.insert(p.all_dates.end(), c.dates.begin(), c.dates.end());
+  }
+  if (v.columns.size() > 1) {
+    std::sort(p.all_dates.begin(), p.all_dates.end());
+    p.all_dates.erase(std::unique(p.all_dates.begin(), p.all_dates.end()), p.all_dates.end());
+  }
+  p.hash = content_hash(v.meta, p.columns);
+  return p;
+}
+
+// Encodes and hashes every version, spread over the machine's cores (the work is pure).
+std::vector<Prepared> prepare_all(const std::vector<NewVersion>& versions) {
+  std::vector<Prepared> prepared(versions.size());
+  const std::size_t workers =
+      std::min<std::size_t>(std::max(1u, std::thread::hardware_concurrency()), versions.size());
+  std::vector<std::thread> threads;
+  for (std::size_t w = 1; w < workers; ++w)
+    threads.emplace_back([&, w] {
+      for (std::size_t i = w; i < versions.size(); i += workers) prepared[i] = prepare(versions[i]);
+    });
+  for (std::size_t i = 0; i < versions.size(); i += std::max<std::size_t>(workers, 1))
+    prepared[i] = prepare(versions[i]);
+  for (auto& t : threads) t.join();
+  return prepared;
+}
+
+std::optional<std::string> optional_text(const SQLite::Column& c) {
+  if (c.isNull()) return std::nullopt;
+  return c.getString();
+}
+
+constexpr const char* kVersionColumns =
+    "s.name, s.kind, v.version, v.version_id, v.content_hash, v.unit, v.input_unit, v.quote, "
+    "v.frequency, v.first_date, v.last_date, v.observations, v.missing, v.source_file, "
+    "v.source_sha256, v.ingested_at, v.ingested_by, coalesce(v.note, ''), "
+    "(SELECT group_concat(column_name, char(31)) FROM "
+    "(SELECT column_name FROM version_columns c WHERE c.version_id = v.version_id ORDER BY "
+    "position))";
+
+VersionInfo read_version_info(SQLite::Statement& q) {
+  VersionInfo info;
+  info.name = q.getColumn(0).getString();
+  info.kind = q.getColumn(1).getString();
+  info.version = q.getColumn(2).getInt();
+  info.version_id = q.getColumn(3).getInt64();
+  info.content_hash = q.getColumn(4).getString();
+  info.unit = q.getColumn(5).getString();
+  info.input_unit = q.getColumn(6).getString();
+  info.quote = optional_text(q.getColumn(7));
+  info.frequency = optional_text(q.getColumn(8));
+  info.first_date = q.getColumn(9).getString();
+  info.last_date = q.getColumn(10).getString();
+  info.observations = q.getColumn(11).getInt64();
+  info.missing = q.getColumn(12).getInt64();
+  info.source_file = q.getColumn(13).getString();
+  info.source_sha256 = q.getColumn(14).getString();
+  info.ingested_at = q.getColumn(15).getString();
+  info.ingested_by = q.getColumn(16).getString();
+  info.note = q.getColumn(17).getString();
+  const std::string names = q.getColumn(18).getString();
+  std::size_t start = 0;
+  while (start <= names.size() && !names.empty()) {
+    const std::size_t end = names.find('\x1f', start);
+    info.columns.push_back(names.substr(start, end - start));
+    if (end == std::string::npos) break;
+    start = end + 1;
+  }
+  return info;
+}
+
+}  // namespace
+
+std::string utc_now() {
+  const auto now = std::chrono::system_clock::now();
+  const auto ms =
+      std::chrono::duration_cast<std::chrono::milliseconds>(now.time_since_epoch()).count();
+  const auto day = static_cast<core::Day>(ms / 86400000);
+  const std::int64_t in_day = ms % 86400000;
+  return fmt::format("{}T{:02}:{:02}:{:02}.{:03}Z", core::format_date(day), in_day / 3600000,
+                     in_day / 60000 % 60, in_day / 1000 % 60, in_day % 1000);
+}
+
+std::string current_user() {
+  if (const char* user = std::getenv("USER"); user != nullptr && *user != '\0') return user;
+  if (const passwd* pw = getpwuid(getuid()); pw != nullptr) return pw->pw_name;
+  return "unknown";
+}
+
+std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion> versions,
+                                         const SourceInfo& source) {
+  auto& db = ledger.db();
+  const std::vector<Prepared> prepared = prepare_all(versions);
+  const std::string now = utc_now();
+  const std::string user = current_user();
+
+  SQLite::Statement find_series(db, "SELECT series_id, kind FROM series WHERE name = ?");
+  SQLite::Statement latest(db,
+                           "SELECT version, content_hash FROM series_versions WHERE series_id = ? "
+                           "ORDER BY version DESC LIMIT 1");
+  SQLite::Statement add_series(db,
+                               "INSERT INTO series (name, kind, created_at) VALUES (?, ?, ?)");
+  SQLite::Statement add_version(
+      db,
+      "INSERT INTO series_versions (series_id, version, content_hash, unit, input_unit, quote, "
+      "frequency, first_date, last_date, observations, missing, source_file, source_sha256, "
+      "ingested_at, ingested_by, note) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?)");
+  SQLite::Statement add_column(db,
+                               "INSERT INTO version_columns (version_id, position, column_name, "
+                               "values_json) VALUES (?, ?, ?, ?)");
+
+  std::vector<StoreOutcome> outcomes;
+  outcomes.reserve(versions.size());
+  for (std::size_t i = 0; i < versions.size(); ++i) {
+    const NewVersion& v = versions[i];
+    const Prepared& p = prepared[i];
+    StoreOutcome outcome{v.name, v.meta.kind, 1, false, false, p.hash};
+
+    std::int64_t series_id = 0;
+    find_series.reset();
+    find_series.bind(1, v.name);
+    if (find_series.executeStep()) {
+      series_id = find_series.getColumn(0).getInt64();
+      const std::string kind = find_series.getColumn(1).getString();
+      if (kind != v.meta.kind)
+        throw Error(ExitCode::bad_input,
+                    fmt::format("{}: series '{}' already exists as a {} series, not {}; rename "
+                                "the column or use --name",
+                                source.file, v.name, kind, v.meta.kind));
+      latest.reset();
+      latest.bind(1, series_id);
+      if (latest.executeStep()) {
+        outcome.version = latest.getColumn(0).getInt() + 1;
+        if (latest.getColumn(1).getString() == p.hash) {
+          outcome.version -= 1;
+          outcome.unchanged = true;
+          outcomes.push_back(outcome);
+          continue;
+        }
+      }
+    } else {
+      add_series.reset();
+      add_series.bind(1, v.name);
+      add_series.bind(2, v.meta.kind);
+      add_series.bind(3, now);
+      add_series.exec();
+      series_id = db.getLastInsertRowid();
+      outcome.new_series = true;
+    }
+
+    const auto frequency = core::detect_frequency(p.all_dates);
+    add_version.reset();
+    add_version.bind(1, series_id);
+    add_version.bind(2, outcome.version);
+    add_version.bind(3, p.hash);
+    add_version.bind(4, v.meta.unit);
+    add_version.bind(5, v.input_unit);
+    if (v.meta.quote) add_version.bind(6, *v.meta.quote); else add_version.bind(6);
+    if (frequency) add_version.bind(7, core::frequency_name(*frequency)); else add_version.bind(7);
+    add_version.bind(8, core::format_date(p.all_dates.front()));
+    add_version.bind(9, core::format_date(p.all_dates.back()));
+    add_version.bind(10, static_cast<std::int64_t>(p.all_dates.size()));
+    add_version.bind(11, p.missing);
+    add_version.bind(12, source.file);
+    add_version.bind(13, source.sha256);
+    add_version.bind(14, now);
+    add_version.bind(15, user);
+    if (source.note.empty()) add_version.bind(16); else add_version.bind(16, source.note);
+    add_version.exec();
+    const std::int64_t version_id = db.getLastInsertRowid();
+
+    for (std::size_t c = 0; c < p.columns.size(); ++c) {
+      add_column.reset();
+      add_column.bind(1, version_id);
+      add_column.bind(2, static_cast<int>(c + 1));
+      add_column.bind(3, p.columns[c].name);
+      add_column.bindNoCopy(4, p.columns[c].values_json);
+      add_column.exec();
+    }
+    outcomes.push_back(outcome);
+  }
+  return outcomes;
+}
+
+std::vector<VersionInfo> list_latest_versions(Ledger& ledger) {
+  SQLite::Statement q(
+      ledger.db(),
+      fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = s.series_id "
+                  "WHERE v.version = (SELECT max(version) FROM series_versions w WHERE "
+                  "w.series_id = s.series_id) ORDER BY CASE s.kind WHEN 'strategy' THEN 1 WHEN "
+                  "'benchmark' THEN 2 WHEN 'rate' THEN 3 ELSE 4 END, s.name",
+                  kVersionColumns));
+  std::vector<VersionInfo> out;
+  while (q.executeStep()) out.push_back(read_version_info(q));
+  return out;
+}
+
+std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name) {
+  SQLite::Statement q(ledger.db(),
+                      fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id "
+                                  "= s.series_id WHERE s.name = ? ORDER BY v.version",
+                                  kVersionColumns));
+  q.bind(1, name);
+  std::vector<VersionInfo> out;
+  while (q.executeStep()) out.push_back(read_version_info(q));
+  if (out.empty())
+    throw Error(ExitCode::not_found,
+                fmt::format("no series named '{}' in {}; `alphatrail series` lists them", name,
+                            ledger.path().string()));
+  return out;
+}
+
+LoadedVersion load_version(Ledger& ledger, const std::string& name, std::optional<int> version) {
+  SQLite::Statement q(ledger.db(),
+                      fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id "
+                                  "= s.series_id WHERE s.name = ? AND (? IS NULL OR v.version = "
+                                  "?) ORDER BY v.version DESC LIMIT 1",
+                                  kVersionColumns));
+  q.bind(1, name);
+  if (version) {
+    q.bind(2, *version);
+    q.bind(3, *version);
+  } else {
+    q.bind(2);
+    q.bind(3);
+  }
+  if (!q.executeStep()) {
+    if (version) version_history(ledger, name);  // names an unknown series first
+    throw Error(ExitCode::not_found,
+                version ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
+                                      "lists its versions",
+                                      name, *version, name)
+                        : fmt::format("no series named '{}'; `alphatrail series` lists them", name));
+  }
+  LoadedVersion loaded{read_version_info(q), {}};
+  SQLite::Statement cols(ledger.db(),
+                         "SELECT column_name, values_json FROM version_columns WHERE version_id "
+                         "= ? ORDER BY position");
+  cols.bind(1, loaded.info.version_id);
+  while (cols.executeStep()) {
+    const auto* text = static_cast<const char*>(cols.getColumn(1).getText());
+    const auto size = static_cast<std::size_t>(cols.getColumn(1).getBytes());
+    loaded.columns.push_back(
+        decode_values_json(cols.getColumn(0).getString(), std::string_view(text, size)));
+  }
+  return loaded;
+}
+
+}  // namespace alphatrail::ledger

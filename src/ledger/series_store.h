@@ -1,0 +1,91 @@
+// Series and their versions in the ledger: storing new versions (or recognising unchanged
+// content), listing series, a series' version history and loading a version's observations.
+//
+// Versions are immutable: a store never updates a row; new content gets the next version.
+#pragma once
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "ledger/content.h"
+#include "ledger/ledger.h"
+
+namespace alphatrail::ledger {
+
+// A version to store, as prepared from an ingest file.
+struct NewVersion {
+  std::string name;
+  ContentMeta meta;
+  std::string input_unit;  // decimal | percent | levels: how the file stated the values
+  std::vector<ColumnData> columns;
+};
+
+// Where a batch of versions came from.
+struct SourceInfo {
+  std::string file;    // as the user named it
+  std::string sha256;  // of the file's bytes
+  std::string note;    // --note, may be empty
+};
+
+struct StoreOutcome {
+  std::string name;
+  std::string kind;
+  int version = 0;
+  bool new_series = false;
+  bool unchanged = false;  // identical content to the latest version: nothing written
+  std::string content_hash;
+};
+
+// Stores each version whose content differs from its series' latest version. Must run
+// inside Ledger::write_transaction. Throws Error(bad_input) when a name exists as another kind.
+std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion> versions,
+                                         const SourceInfo& source);
+
+// One version's description (without observations).
+struct VersionInfo {
+  std::string name;
+  std::string kind;
+  int version = 0;
+  std::int64_t version_id = 0;
+  std::string content_hash;
+  std::string unit;
+  std::string input_unit;
+  std::optional<std::string> quote;
+  std::optional<std::string> frequency;
+  std::string first_date;
+  std::string last_date;
+  std::int64_t observations = 0;
+  std::int64_t missing = 0;
+  std::string source_file;
+  std::string source_sha256;
+  std::string ingested_at;
+  std::string ingested_by;
+  std::string note;
+  std::vector<std::string> columns;
+};
+
+// Returns the latest version of every series, set and curve, ordered by kind then name.
+std::vector<VersionInfo> list_latest_versions(Ledger& ledger);
+
+// Returns every version of a series, oldest first; throws Error(not_found) when unknown.
+std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name);
+
+// A version with its observations.
+struct LoadedVersion {
+  VersionInfo info;
+  std::vector<ColumnData> columns;
+};
+
+// Loads a version (the latest when version is empty); throws Error(not_found) when absent.
+LoadedVersion load_version(Ledger& ledger, const std::string& name,
+                           std::optional<int> version = std::nullopt);
+
+// Returns the current UTC time as ISO 8601 with milliseconds, e.g. 2026-12-02T01:02:03.004Z.
+std::string utc_now();
+
+// Returns the name of the user running the command.
+std::string current_user();
+
+}  // namespace alphatrail::ledger
