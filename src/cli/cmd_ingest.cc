@@ -1,11 +1,164 @@
 #include <CLI/CLI.hpp>
+#include <fmt/format.h>
+
+#include <fstream>
+#include <iostream>
+#include <sstream>
 
 #include "cli/commands.h"
+#include "core/error.h"
+#include "core/series_file.h"
+#include "core/sha256.h"
+#include "ledger/series_store.h"
 
 namespace alphatrail::cli {
 
-void setup_ingest(CLI::App& app, const GlobalOptions& /*global*/) {
-  app.add_subcommand("ingest", "Add series from a CSV file");
+namespace {
+
+struct IngestOptions {
+  std::string kind;
+  std::string file;
+  std::string name;
+  std::string tenor;
+  std::string date_column;
+  std::vector<std::string> columns;
+  bool percent = false;
+  bool levels = false;
+  bool decimal = false;
+  std::string quote = "yield";
+  std::string note;
+};
+
+std::string read_input_file(const std::string& path) {
+  std::error_code ec;
+  if (!std::filesystem::exists(path, ec))
+    throw InputError(path, 0, 0, "no such file", "check the path");
+  if (std::filesystem::is_directory(path, ec))
+    throw InputError(path, 0, 0, "is a folder, not a file", "name a CSV file");
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError(path, 0, 0, "cannot be read", "check its permissions");
+  std::ostringstream bytes;
+  bytes << in.rdbuf();
+  if (in.bad()) throw InputError(path, 0, 0, "cannot be read", "check the file");
+  return bytes.str();
+}
+
+core::SeriesFileOptions parse_options(const IngestOptions& o, core::SeriesKind kind) {
+  core::SeriesFileOptions parse;
+  parse.kind = kind;
+  parse.date_column = o.date_column;
+  parse.columns = o.columns;
+  const bool is_rate = kind == core::SeriesKind::rate;
+  if (is_rate && (o.percent || o.levels))
+    throw Error(ExitCode::usage,
+                "rate files hold annualized yields, in percent by default: use --decimal for "
+                "decimals (--percent and --levels are for returns)");
+  if (!is_rate && o.decimal)
+    throw Error(ExitCode::usage,
+                "returns are read as decimals by default; --decimal is for rate files");
+  if (o.percent && o.levels)
+    throw Error(ExitCode::usage, "--percent and --levels exclude each other: levels have no unit");
+  if (!is_rate && o.quote != "yield")
+    throw Error(ExitCode::usage, "--quote applies to rate files only");
+  parse.unit = is_rate ? (o.decimal ? core::ValueUnit::decimal : core::ValueUnit::percent)
+               : o.levels ? core::ValueUnit::levels
+               : o.percent ? core::ValueUnit::percent
+                           : core::ValueUnit::decimal;
+  parse.quote = *core::parse_rate_quote(o.quote);
+  if (is_rate) {
+    parse.rename = o.tenor;
+  } else if (kind == core::SeriesKind::strategy || kind == core::SeriesKind::benchmark) {
+    parse.rename = o.name;
+  }
+  if (!o.tenor.empty() && !is_rate) throw Error(ExitCode::usage, "--tenor applies to rate files only");
+  return parse;
+}
+
+std::string stored_unit(core::SeriesKind kind, core::ValueUnit unit) {
+  if (kind != core::SeriesKind::rate) return "decimal return";
+  return unit == core::ValueUnit::percent ? "percent yield" : "decimal yield";
+}
+
+void run_ingest(const IngestOptions& o, const GlobalOptions& global) {
+  const auto kind = *core::parse_series_kind(o.kind);
+  const bool is_set = kind == core::SeriesKind::rate || kind == core::SeriesKind::factor;
+  if (is_set && o.name.empty())
+    throw Error(ExitCode::usage,
+                fmt::format("a {} file is one named {}: give it a name with --name", o.kind,
+                            kind == core::SeriesKind::rate ? "rate curve" : "factor set"));
+  const core::SeriesFileOptions parse = parse_options(o, kind);
+
+  const std::string bytes = read_input_file(o.file);
+  core::SeriesFile parsed = core::parse_series_file(o.file, bytes, parse);
+  for (const auto& note : parsed.notes) std::cerr << "alphatrail: note: " << note << '\n';
+
+  ledger::ContentMeta meta{core::series_kind_name(kind), stored_unit(kind, parse.unit),
+                           std::nullopt};
+  if (kind == core::SeriesKind::rate) meta.quote = core::rate_quote_name(parse.quote);
+
+  std::vector<ledger::NewVersion> versions;
+  if (is_set) {
+    versions.push_back({o.name, meta, core::value_unit_name(parse.unit), std::move(parsed.columns)});
+  } else {
+    versions.reserve(parsed.columns.size());
+    for (auto& column : parsed.columns) {
+      std::string name = column.name;
+      std::vector<ledger::ColumnData> one;
+      one.push_back(std::move(column));
+      versions.push_back({name, meta, core::value_unit_name(parse.unit), std::move(one)});
+    }
+  }
+
+  const ledger::SourceInfo source{o.file, core::sha256_hex(bytes), o.note};
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::create, std::cerr);
+  std::vector<ledger::StoreOutcome> outcomes;
+  ledger.write_transaction(
+      [&] { outcomes = ledger::store_versions(ledger, std::move(versions), source); });
+
+  int added = 0;
+  int unchanged = 0;
+  const bool list_each = outcomes.size() <= 20;
+  for (const auto& r : outcomes) {
+    (r.unchanged ? unchanged : added) += 1;
+    if (!list_each) continue;
+    if (r.unchanged)
+      std::cout << fmt::format("{} {}: unchanged (version {}, {})\n", r.kind, r.name, r.version,
+                               r.content_hash.substr(0, 12));
+    else
+      std::cout << fmt::format("{} {}: version {}{} ({})\n", r.kind, r.name, r.version,
+                               r.new_series ? ", new series" : "", r.content_hash.substr(0, 12));
+  }
+  std::cout << fmt::format("{}: {} new version{}, {} unchanged\n", o.file, added,
+                           added == 1 ? "" : "s", unchanged);
+}
+
+}  // namespace
+
+void setup_ingest(CLI::App& app, const GlobalOptions& global) {
+  auto o = std::make_shared<IngestOptions>();
+  auto* cmd = app.add_subcommand(
+      "ingest",
+      "Add series from a CSV file: each strategy or benchmark column becomes a series; a factor "
+      "file is one factor set, a rate file one rate curve. New content gets a new version.");
+  cmd->add_option("kind", o->kind, "strategy, benchmark, rate or factor")
+      ->required()
+      ->check(CLI::IsMember({"strategy", "benchmark", "rate", "factor"}));
+  cmd->add_option("file", o->file, "CSV file (RFC 4180, header row, ISO 8601 dates)")->required();
+  cmd->add_option("--name", o->name,
+                  "Name of a single-column strategy or benchmark, or of the factor set or rate "
+                  "curve (required for those)");
+  cmd->add_option("--tenor", o->tenor, "Tenor of a single-column rate file, e.g. 1M or 13W");
+  cmd->add_option("--date-column", o->date_column, "Date column (default: the first column)");
+  cmd->add_option("--columns", o->columns, "Value columns to read (default: all)")
+      ->delimiter(',');
+  cmd->add_flag("--percent", o->percent, "Returns are in percent (default: decimals)");
+  cmd->add_flag("--levels", o->levels, "Values are prices, NAV or index levels, not returns");
+  cmd->add_flag("--decimal", o->decimal, "Rate yields are decimals (default: percent)");
+  cmd->add_option("--quote", o->quote, "Rate quote: yield (default) or discount (bank discount)")
+      ->check(CLI::IsMember({"yield", "discount"}));
+  cmd->add_option("--note", o->note, "Note stored with the new versions");
+  cmd->callback([o, &global] { run_ingest(*o, global); });
 }
 
 }  // namespace alphatrail::cli

@@ -39,11 +39,11 @@ class InputError : public Error {
  private:
   static std::string format(const std::string& file, long line, long column,
                             const std::string& problem, const std::string& fix) {
-    std::string where = file;
-    if (line > 0) where += ":" + std::to_string(line);
-    if (column > 0) where += ":" + std::to_string(column);
-    std::string text = where + ": " + problem;
-    if (!fix.empty()) text += " (" + fix + ")";
+    std::string text = file;
+    if (line > 0) text.append(":").append(std::to_string(line));
+    if (column > 0) text.append(":").append(std::to_string(column));
+    text.append(": ").append(problem);
+    if (!fix.empty()) text.append(" (").append(fix).append(")");
     return text;
   }
 };

@@ -12,15 +12,12 @@
 #include <vector>
 
 #include "core/dates.h"
+#include "core/series_file.h"
 
 namespace alphatrail::ledger {
 
 // One column of a version: dates ascending, NaN marks a missing value.
-struct ColumnData {
-  std::string name;
-  std::vector<core::Day> dates;
-  std::vector<double> values;
-};
+using ColumnData = core::SeriesColumn;
 
 // What identifies the meaning of a version's numbers besides the numbers themselves.
 struct ContentMeta {
