@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "cli/commands.h"
+#include "cli/ingest.h"
 #include "core/error.h"
 #include "core/series_file.h"
 #include "core/sha256.h"
@@ -15,19 +16,6 @@ namespace alphatrail::cli {
 
 namespace {
 
-struct IngestOptions {
-  std::string kind;
-  std::string file;
-  std::string name;
-  std::string tenor;
-  std::string date_column;
-  std::vector<std::string> columns;
-  bool percent = false;
-  bool levels = false;
-  bool decimal = false;
-  std::string quote = "yield";
-  std::string note;
-};
 
 std::string read_input_file(const std::string& path) {
   std::error_code ec;
@@ -43,7 +31,7 @@ std::string read_input_file(const std::string& path) {
   return bytes.str();
 }
 
-core::SeriesFileOptions parse_options(const IngestOptions& o, core::SeriesKind kind) {
+core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind kind) {
   core::SeriesFileOptions parse;
   parse.kind = kind;
   parse.date_column = o.date_column;
@@ -79,7 +67,10 @@ std::string stored_unit(core::SeriesKind kind, core::ValueUnit unit) {
   return unit == core::ValueUnit::percent ? "percent yield" : "decimal yield";
 }
 
-void run_ingest(const IngestOptions& o, const GlobalOptions& global) {
+}  // namespace
+
+void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& o,
+                 std::ostream& out, std::ostream& notes) {
   const auto kind = *core::parse_series_kind(o.kind);
   const bool is_set = kind == core::SeriesKind::rate || kind == core::SeriesKind::factor;
   if (is_set && o.name.empty())
@@ -90,7 +81,7 @@ void run_ingest(const IngestOptions& o, const GlobalOptions& global) {
 
   const std::string bytes = read_input_file(o.file);
   core::SeriesFile parsed = core::parse_series_file(o.file, bytes, parse);
-  for (const auto& note : parsed.notes) std::cerr << "alphatrail: note: " << note << '\n';
+  for (const auto& note : parsed.notes) notes << "alphatrail: note: " << note << '\n';
 
   ledger::ContentMeta meta{core::series_kind_name(kind), stored_unit(kind, parse.unit),
                            std::nullopt};
@@ -110,8 +101,7 @@ void run_ingest(const IngestOptions& o, const GlobalOptions& global) {
   }
 
   const ledger::SourceInfo source{o.file, core::sha256_hex(bytes), o.note};
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::create, std::cerr);
+  auto ledger = ledger::Ledger::open(ledger_path, ledger::OpenMode::create, notes);
   std::vector<ledger::StoreOutcome> outcomes;
   ledger.write_transaction(
       [&] { outcomes = ledger::store_versions(ledger, std::move(versions), source); });
@@ -123,20 +113,19 @@ void run_ingest(const IngestOptions& o, const GlobalOptions& global) {
     (r.unchanged ? unchanged : added) += 1;
     if (!list_each) continue;
     if (r.unchanged)
-      std::cout << fmt::format("{} {}: unchanged (version {}, {})\n", r.kind, r.name, r.version,
+      out << fmt::format("{} {}: unchanged (version {}, {})\n", r.kind, r.name, r.version,
                                r.content_hash.substr(0, 12));
     else
-      std::cout << fmt::format("{} {}: version {}{} ({})\n", r.kind, r.name, r.version,
+      out << fmt::format("{} {}: version {}{} ({})\n", r.kind, r.name, r.version,
                                r.new_series ? ", new series" : "", r.content_hash.substr(0, 12));
   }
-  std::cout << fmt::format("{}: {} new version{}, {} unchanged\n", o.file, added,
+  out << fmt::format("{}: {} new version{}, {} unchanged\n", o.file, added,
                            added == 1 ? "" : "s", unchanged);
 }
 
-}  // namespace
 
 void setup_ingest(CLI::App& app, const GlobalOptions& global) {
-  auto o = std::make_shared<IngestOptions>();
+  auto o = std::make_shared<IngestRequest>();
   auto* cmd = app.add_subcommand(
       "ingest",
       "Add series from a CSV file: each strategy or benchmark column becomes a series; a factor "
@@ -158,7 +147,9 @@ void setup_ingest(CLI::App& app, const GlobalOptions& global) {
   cmd->add_option("--quote", o->quote, "Rate quote: yield (default) or discount (bank discount)")
       ->check(CLI::IsMember({"yield", "discount"}));
   cmd->add_option("--note", o->note, "Note stored with the new versions");
-  cmd->callback([o, &global] { run_ingest(*o, global); });
+  cmd->callback([o, &global] {
+    ingest_file(ledger::resolve_ledger_path(global.ledger), *o, std::cout, std::cerr);
+  });
 }
 
 }  // namespace alphatrail::cli

@@ -1,0 +1,87 @@
+-- alphatrail ledger schema, current version (PRAGMA user_version = 1,
+-- PRAGMA application_id = 0x4154524C, "ATRL").
+--
+-- This file is the reference for people who query a ledger with SQL. It is kept equal to
+-- what migrations/ build (a test compares the two, ignoring comments and white space).
+-- Every table is append-only: triggers abort any UPDATE or DELETE. Dates are ISO 8601 text
+-- (YYYY-MM-DD); times are UTC ISO 8601 with milliseconds (2026-12-02T01:02:03.004Z);
+-- hashes are SHA-256 as 64 lowercase hex digits.
+
+-- One row per named series: a strategy or a benchmark (one column of returns), a factor
+-- set (one column per factor) or a rate curve (one column per tenor).
+CREATE TABLE series (
+  series_id  INTEGER PRIMARY KEY,  -- internal key
+  name       TEXT NOT NULL UNIQUE, -- the name used on the command line
+  kind       TEXT NOT NULL CHECK (kind IN ('strategy', 'benchmark', 'rate', 'factor')),
+  created_at TEXT NOT NULL         -- when the first version was ingested
+);
+
+-- One row per version of a series. An ingest whose content differs from the latest version
+-- adds version n + 1; identical content adds nothing.
+CREATE TABLE series_versions (
+  version_id    INTEGER PRIMARY KEY,  -- internal key, referenced by run inputs
+  series_id     INTEGER NOT NULL REFERENCES series (series_id),
+  version       INTEGER NOT NULL CHECK (version >= 1),  -- 1, 2, 3 ... per series
+  -- SHA-256 over the canonical content: kind, unit, quote, then each column's name and
+  -- values_json (see version_columns); recomputed by `alphatrail verify`.
+  content_hash  TEXT NOT NULL CHECK (length(content_hash) = 64),
+  -- What the stored numbers are: simple returns as decimals (strategy, benchmark, factor),
+  -- or annualized yields in percent or decimals as the file stated them (rate).
+  unit          TEXT NOT NULL CHECK (unit IN ('decimal return', 'percent yield', 'decimal yield')),
+  -- How the source file stated its values: decimal or percent returns, or levels (prices,
+  -- NAV, index levels) from which returns were derived; rates: percent or decimal.
+  input_unit    TEXT NOT NULL CHECK (input_unit IN ('decimal', 'percent', 'levels')),
+  quote         TEXT CHECK (quote IN ('yield', 'discount')),  -- rates: yield or bank discount
+  frequency     TEXT CHECK (frequency IN ('daily', 'weekly', 'monthly', 'quarterly')),  -- detected; NULL: irregular
+  first_date    TEXT NOT NULL,        -- first observation date
+  last_date     TEXT NOT NULL,        -- last observation date
+  observations  INTEGER NOT NULL CHECK (observations >= 1),  -- dated rows
+  missing       INTEGER NOT NULL CHECK (missing >= 0),       -- missing values inside the columns
+  source_file   TEXT NOT NULL,        -- the file as named on the command line
+  source_sha256 TEXT NOT NULL CHECK (length(source_sha256) = 64),  -- of the file's bytes
+  ingested_at   TEXT NOT NULL,        -- UTC time of the ingest
+  ingested_by   TEXT NOT NULL,        -- the user who ran it
+  note          TEXT,                 -- --note, or NULL
+  UNIQUE (series_id, version)
+);
+
+-- The observations of a version, one row per column (a factor of a set, a tenor of a
+-- curve, or the single column of a strategy or benchmark). values_json is the canonical
+-- text {"YYYY-MM-DD": value, ...}, dates ascending, null for a missing value, numbers in
+-- their shortest round-trip form. Read it row by row through the observations view.
+CREATE TABLE version_columns (
+  column_id    INTEGER PRIMARY KEY,
+  version_id   INTEGER NOT NULL REFERENCES series_versions (version_id),
+  position     INTEGER NOT NULL CHECK (position >= 1),  -- order of the column in the file
+  column_name  TEXT NOT NULL,                            -- factor name, tenor, or series name
+  values_json  TEXT NOT NULL CHECK (json_valid(values_json)),
+  UNIQUE (version_id, position),
+  UNIQUE (version_id, column_name)
+);
+
+-- Every observation of every version: series name, kind, version number, column, date and
+-- value (NULL when missing). Filter on series and version for speed.
+CREATE VIEW observations AS
+SELECT s.name AS series, s.kind AS kind, v.version AS version, c.column_name AS column_name,
+       o.key AS date, o.value AS value
+FROM series AS s
+JOIN series_versions AS v ON v.series_id = s.series_id
+JOIN version_columns AS c ON c.version_id = v.version_id,
+     json_each(c.values_json) AS o;
+
+-- Immutability: versions are numbered without gaps; nothing is ever updated or deleted.
+CREATE TRIGGER series_versions_in_sequence BEFORE INSERT ON series_versions
+WHEN NEW.version <> (SELECT coalesce(max(version), 0) + 1 FROM series_versions WHERE series_id = NEW.series_id)
+BEGIN SELECT RAISE(ABORT, 'series versions are numbered 1, 2, 3 ... without gaps'); END;
+CREATE TRIGGER series_no_update BEFORE UPDATE ON series
+BEGIN SELECT RAISE(ABORT, 'series are immutable: ingest a new version instead'); END;
+CREATE TRIGGER series_no_delete BEFORE DELETE ON series
+BEGIN SELECT RAISE(ABORT, 'series are never deleted: the ledger keeps every revision'); END;
+CREATE TRIGGER series_versions_no_update BEFORE UPDATE ON series_versions
+BEGIN SELECT RAISE(ABORT, 'series versions are immutable: ingest a new version instead'); END;
+CREATE TRIGGER series_versions_no_delete BEFORE DELETE ON series_versions
+BEGIN SELECT RAISE(ABORT, 'series versions are never deleted: the ledger keeps every revision'); END;
+CREATE TRIGGER version_columns_no_update BEFORE UPDATE ON version_columns
+BEGIN SELECT RAISE(ABORT, 'observations are immutable: ingest a new version instead'); END;
+CREATE TRIGGER version_columns_no_delete BEFORE DELETE ON version_columns
+BEGIN SELECT RAISE(ABORT, 'observations are never deleted: the ledger keeps every revision'); END;

@@ -1,0 +1,32 @@
+// Ingesting one CSV file into the ledger: the work behind `alphatrail ingest`, shared with
+// the demo so that demo data takes exactly the path a user's file takes.
+#pragma once
+
+#include <filesystem>
+#include <ostream>
+#include <string>
+#include <vector>
+
+namespace alphatrail::cli {
+
+struct IngestRequest {
+  std::string kind;  // strategy | benchmark | rate | factor
+  std::string file;
+  std::string name;   // single-column strategy/benchmark rename, or the set/curve name
+  std::string tenor;  // single-column rate file
+  std::string date_column;
+  std::vector<std::string> columns;
+  bool percent = false;
+  bool levels = false;
+  bool decimal = false;
+  std::string quote = "yield";
+  std::string note;
+};
+
+// Validates the file and stores its series in the ledger in one transaction, printing one
+// line per series (or a summary for many) on `out` and notes on `notes`. Throws
+// alphatrail::Error; on failure nothing is written.
+void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& request,
+                 std::ostream& out, std::ostream& notes);
+
+}  // namespace alphatrail::cli
