@@ -32,7 +32,7 @@ CREATE TABLE version_columns (
   version_id   INTEGER NOT NULL REFERENCES series_versions (version_id),
   position     INTEGER NOT NULL CHECK (position >= 1),
   column_name  TEXT NOT NULL,
-  values_json  TEXT NOT NULL CHECK (json_valid(values_json)),
+  values_json  TEXT NOT NULL,
   UNIQUE (version_id, position),
   UNIQUE (version_id, column_name)
 );

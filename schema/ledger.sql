@@ -54,7 +54,7 @@ CREATE TABLE version_columns (
   version_id   INTEGER NOT NULL REFERENCES series_versions (version_id),
   position     INTEGER NOT NULL CHECK (position >= 1),  -- order of the column in the file
   column_name  TEXT NOT NULL,                            -- factor name, tenor, or series name
-  values_json  TEXT NOT NULL CHECK (json_valid(values_json)),
+  values_json  TEXT NOT NULL,
   UNIQUE (version_id, position),
   UNIQUE (version_id, column_name)
 );

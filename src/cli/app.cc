@@ -44,6 +44,9 @@ int run_app(int argc, char** argv) {
   setup_init(app, global);
   setup_ingest(app, global);
   setup_series(app, global);
+  setup_evaluate(app, global);
+  setup_runs(app, global);
+  setup_show(app, global);
   setup_demo(app, global);
 
   try {

@@ -25,10 +25,11 @@ std::string read_input_file(const std::string& path) {
     throw InputError(path, 0, 0, "is a folder, not a file", "name a CSV file");
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError(path, 0, 0, "cannot be read", "check its permissions");
-  std::ostringstream bytes;
-  bytes << in.rdbuf();
-  if (in.bad()) throw InputError(path, 0, 0, "cannot be read", "check the file");
-  return bytes.str();
+  std::string bytes(std::filesystem::file_size(path, ec), '\0');
+  in.read(bytes.data(), static_cast<std::streamsize>(bytes.size()));
+  if (ec || in.gcount() != static_cast<std::streamsize>(bytes.size()))
+    throw InputError(path, 0, 0, "cannot be read", "check the file");
+  return bytes;
 }
 
 core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind kind) {

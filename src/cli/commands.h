@@ -19,5 +19,8 @@ void setup_init(CLI::App& app, const GlobalOptions& global);
 void setup_ingest(CLI::App& app, const GlobalOptions& global);
 void setup_series(CLI::App& app, const GlobalOptions& global);
 void setup_demo(CLI::App& app, const GlobalOptions& global);
+void setup_evaluate(CLI::App& app, const GlobalOptions& global);
+void setup_runs(CLI::App& app, const GlobalOptions& global);
+void setup_show(CLI::App& app, const GlobalOptions& global);
 
 }  // namespace alphatrail::cli

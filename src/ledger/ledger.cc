@@ -114,9 +114,10 @@ Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostre
   try {
     auto db = connect(path, SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
     const int version = check_identity(*db, path);
+    if (mode != OpenMode::read_only &&
+        db->execAndGet("PRAGMA journal_mode").getString() != "wal")
+      db->exec("PRAGMA journal_mode = WAL");  // readers and a writer work side by side
     if (version < current_schema_version()) {
-      // WAL is a property of the file: set it once, before the first schema is written.
-      db->exec("PRAGMA journal_mode = WAL");
       const int applied = migrate(*db);
       if (!exists)
         notices << fmt::format("created ledger {} (schema version {})\n", path.string(),

@@ -9,6 +9,10 @@
 #include <chrono>
 #include <cmath>
 #include <cstdlib>
+#include <atomic>
+#include <condition_variable>
+#include <exception>
+#include <mutex>
 #include <thread>
 
 #include "core/error.h"
@@ -41,21 +45,59 @@ Prepared prepare(const NewVersion& v) {
   return p;
 }
 
-// Encodes and hashes every version, spread over the machine's cores (the work is pure).
-std::vector<Prepared> prepare_all(const std::vector<NewVersion>& versions) {
-  std::vector<Prepared> prepared(versions.size());
-  const std::size_t workers =
-      std::min<std::size_t>(std::max(1u, std::thread::hardware_concurrency()), versions.size());
-  std::vector<std::thread> threads;
-  for (std::size_t w = 1; w < workers; ++w)
-    threads.emplace_back([&, w] {
-      for (std::size_t i = w; i < versions.size(); i += workers) prepared[i] = prepare(versions[i]);
-    });
-  for (std::size_t i = 0; i < versions.size(); i += std::max<std::size_t>(workers, 1))
-    prepared[i] = prepare(versions[i]);
-  for (auto& t : threads) t.join();
-  return prepared;
-}
+// Encodes and hashes versions on worker threads while the caller stores the ones already
+// done, in order: the pure work overlaps SQLite's writing.
+class PreparedPipeline {
+ public:
+  explicit PreparedPipeline(const std::vector<NewVersion>& versions)
+      : versions_(versions), slots_(versions.size()), ready_(versions.size(), false) {
+    const std::size_t workers = std::min<std::size_t>(
+        std::max(1u, std::thread::hardware_concurrency()), versions.size());
+    for (std::size_t w = 0; w < workers; ++w) threads_.emplace_back([this] { work(); });
+  }
+  ~PreparedPipeline() {
+    stop_ = true;
+    for (auto& t : threads_) t.join();
+  }
+  PreparedPipeline(const PreparedPipeline&) = delete;
+  PreparedPipeline& operator=(const PreparedPipeline&) = delete;
+
+  // Waits for version i and returns its encoding; rethrows a worker's failure.
+  const Prepared& get(std::size_t i) {
+    std::unique_lock lock(mutex_);
+    done_.wait(lock, [&] { return ready_[i] || failure_; });
+    if (failure_) std::rethrow_exception(failure_);
+    return slots_[i];
+  }
+
+ private:
+  void work() {
+    while (!stop_) {
+      const std::size_t i = next_.fetch_add(1);
+      if (i >= versions_.size()) return;
+      try {
+        Prepared p = prepare(versions_[i]);
+        std::lock_guard lock(mutex_);
+        slots_[i] = std::move(p);
+        ready_[i] = true;
+      } catch (...) {
+        std::lock_guard lock(mutex_);
+        failure_ = std::current_exception();
+      }
+      done_.notify_all();
+    }
+  }
+
+  const std::vector<NewVersion>& versions_;
+  std::vector<Prepared> slots_;
+  std::vector<bool> ready_;
+  std::exception_ptr failure_;
+  std::atomic<std::size_t> next_{0};
+  std::atomic<bool> stop_{false};
+  std::mutex mutex_;
+  std::condition_variable done_;
+  std::vector<std::thread> threads_;
+};
 
 std::optional<std::string> optional_text(const SQLite::Column& c) {
   if (c.isNull()) return std::nullopt;
@@ -122,7 +164,7 @@ std::string current_user() {
 std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion> versions,
                                          const SourceInfo& source) {
   auto& db = ledger.db();
-  const std::vector<Prepared> prepared = prepare_all(versions);
+  PreparedPipeline prepared(versions);
   const std::string now = utc_now();
   const std::string user = current_user();
 
@@ -145,7 +187,7 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
   outcomes.reserve(versions.size());
   for (std::size_t i = 0; i < versions.size(); ++i) {
     const NewVersion& v = versions[i];
-    const Prepared& p = prepared[i];
+    const Prepared& p = prepared.get(i);
     StoreOutcome outcome{v.name, v.meta.kind, 1, false, false, p.hash};
 
     std::int64_t series_id = 0;

@@ -1,0 +1,132 @@
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+
+#include <cmath>
+#include <iostream>
+
+#include "cli/commands.h"
+#include "cli/evaluate.h"
+#include "cli/output.h"
+#include "core/evaluation.h"
+#include "ledger/run_store.h"
+
+namespace alphatrail::cli {
+
+namespace {
+
+struct RunsOptions {
+  std::string strategy;
+  std::string study;
+  Format format = Format::table;
+};
+
+std::string fixed(double v, int digits) {
+  return std::isnan(v) ? "n/a" : fmt::format("{:.{}f}", v, digits);
+}
+
+void run_runs(const RunsOptions& o, const GlobalOptions& global) {
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::read_only, std::cerr);
+  const auto runs = ledger::list_runs(ledger, {o.strategy, o.study});
+  if (o.format == Format::json) {
+    auto array = nlohmann::ordered_json::array();
+    for (const auto& r : runs)
+      array.push_back({{"run_id", r.run_id},
+                       {"created_at", r.created_at},
+                       {"strategy", r.strategy},
+                       {"benchmark", r.benchmark},
+                       {"study", r.study.empty() ? nlohmann::ordered_json() : nlohmann::ordered_json(r.study)},
+                       {"inputs_hash", r.inputs_hash},
+                       {"frequency", r.frequency},
+                       {"observations", r.observations},
+                       {"alpha", json_number(r.alpha)},
+                       {"alpha_annualized", json_number(r.alpha_annualized)},
+                       {"alpha_t", json_number(r.alpha_t)},
+                       {"alpha_p", json_number(r.alpha_p)},
+                       {"beta", json_number(r.beta)},
+                       {"r_squared", json_number(r.r_squared)},
+                       {"errors", r.errors},
+                       {"lags", r.lags},
+                       {"stale", r.stale},
+                       {"revises_run_id", r.revises_run_id ? nlohmann::ordered_json(*r.revises_run_id)
+                                                           : nlohmann::ordered_json()}});
+    print_json(std::cout, array);
+    return;
+  }
+  Table table;
+  table.header = {"run", "recorded (UTC)", "strategy", "study", "periods", "alpha a year",
+                  "alpha t", "p", "beta", "R2", "errors", "stale", "inputs hash"};
+  table.right_aligned = {true, false, false, false, true, true, true, true, true, true, false, false};
+  for (const auto& r : runs)
+    table.rows.push_back(
+        {std::to_string(r.run_id), r.created_at.substr(0, 19), r.strategy, r.study,
+         std::to_string(r.observations),
+         std::isnan(r.alpha_annualized) ? "n/a" : fmt::format("{:+.2f}%", 100 * r.alpha_annualized),
+         fixed(r.alpha_t, 2), fixed(r.alpha_p, 4), fixed(r.beta, 3), fixed(r.r_squared, 3),
+         r.errors == "newey-west" ? fmt::format("newey-west ({})", r.lags) : r.errors,
+         r.stale ? "stale" : "",
+         o.format == Format::csv ? r.inputs_hash : r.inputs_hash.substr(0, 12)});
+  if (o.format == Format::csv) {
+    print_csv(std::cout, table);
+    return;
+  }
+  if (runs.empty()) {
+    std::cout << "no runs yet; record some with `alphatrail evaluate`\n";
+    return;
+  }
+  print_table(std::cout, table);
+  std::cout << "\nalpha a year: annualized as each run's parameters say; stale: an input has a "
+               "newer version than the run used.\n";
+}
+
+}  // namespace
+
+void setup_runs(CLI::App& app, const GlobalOptions& global) {
+  auto o = std::make_shared<RunsOptions>();
+  auto* cmd = app.add_subcommand("runs", "List recorded runs with their headline figures");
+  cmd->add_option("--strategy", o->strategy, "Only runs of this strategy");
+  cmd->add_option("--study", o->study, "Only runs of this study");
+  add_format_option(*cmd, o->format);
+  cmd->callback([o, &global] { run_runs(*o, global); });
+}
+
+namespace {
+
+struct ShowOptions {
+  std::int64_t run_id = 0;
+  Format format = Format::table;
+};
+
+void run_show(const ShowOptions& o, const GlobalOptions& global) {
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::read_only, std::cerr);
+  const auto run = ledger::load_run(ledger, o.run_id);
+  switch (o.format) {
+    case Format::json: print_json(std::cout, run); break;
+    case Format::csv: {
+      Table table;
+      table.header = {"term", "estimate", "std_error", "t_stat", "p_value", "ci_low", "ci_high"};
+      for (const auto& c : run["coefficients"]) {
+        std::vector<std::string> row{c["term"].get<std::string>()};
+        for (const char* key : {"estimate", "std_error", "t_stat", "p_value", "ci_low", "ci_high"})
+          row.push_back(c[key].is_number() ? fmt::format("{}", c[key].get<double>()) : "");
+        table.rows.push_back(row);
+      }
+      print_csv(std::cout, table);
+      break;
+    }
+    case Format::table: print_run_text(std::cout, run); break;
+  }
+}
+
+}  // namespace
+
+void setup_show(CLI::App& app, const GlobalOptions& global) {
+  auto o = std::make_shared<ShowOptions>();
+  auto* cmd = app.add_subcommand("show", "Print one run in full");
+  cmd->add_option("run", o->run_id, "Run id (see `alphatrail runs`)")->required();
+  add_format_option(*cmd, o->format);
+  cmd->callback([o, &global] { run_show(*o, global); });
+}
+
+}  // namespace alphatrail::cli

@@ -1,0 +1,479 @@
+#include "cli/evaluate.h"
+
+#include <SQLiteCpp/Statement.h>
+#include <fmt/format.h>
+#include <fnmatch.h>
+
+#include <algorithm>
+#include <cmath>
+#include <iostream>
+#include <map>
+#include <set>
+
+#include "core/error.h"
+#include "core/evaluation.h"
+#include "ledger/run_store.h"
+#include "ledger/series_store.h"
+
+namespace alphatrail::cli {
+
+namespace {
+
+using nlohmann::ordered_json;
+
+Error usage(const std::string& message) { return Error(ExitCode::usage, message); }
+
+bool is_pattern(const std::string& s) { return s.find_first_of("*?[") != std::string::npos; }
+
+std::vector<std::string> names_of_kind(ledger::Ledger& ledger, const std::string& kind) {
+  SQLite::Statement q(ledger.db(), "SELECT name FROM series WHERE kind = ? ORDER BY name");
+  q.bind(1, kind);
+  std::vector<std::string> names;
+  while (q.executeStep()) names.push_back(q.getColumn(0).getString());
+  return names;
+}
+
+std::vector<std::string> resolve_strategies(ledger::Ledger& ledger,
+                                            const std::vector<std::string>& requested) {
+  const auto all = names_of_kind(ledger, "strategy");
+  std::vector<std::string> chosen;
+  std::set<std::string> seen;
+  for (const auto& want : requested) {
+    bool matched = false;
+    for (const auto& name : all)
+      if (is_pattern(want) ? fnmatch(want.c_str(), name.c_str(), 0) == 0 : name == want) {
+        matched = true;
+        if (seen.insert(name).second) chosen.push_back(name);
+      }
+    if (!matched)
+      throw Error(ExitCode::not_found,
+                  is_pattern(want)
+                      ? fmt::format("no strategy matches '{}'; `alphatrail series` lists them", want)
+                      : fmt::format("no strategy named '{}'; `alphatrail series` lists them", want));
+  }
+  return chosen;
+}
+
+ledger::LoadedVersion load_kind(ledger::Ledger& ledger, const std::string& name,
+                                const std::vector<std::string>& kinds, const std::string& role) {
+  auto loaded = ledger::load_version(ledger, name);
+  if (std::find(kinds.begin(), kinds.end(), loaded.info.kind) == kinds.end())
+    throw usage(fmt::format("'{}' is a {} series, not a {}; name a {} series with --{}", name,
+                            loaded.info.kind, role, kinds.front(), role));
+  return loaded;
+}
+
+core::ReturnInput to_return_input(std::string name, ledger::ColumnData&& column,
+                                  const ledger::VersionInfo& info) {
+  core::ReturnInput in;
+  in.name = std::move(name);
+  in.data.dates = std::move(column.dates);
+  in.data.values = std::move(column.values);
+  if (info.frequency) in.frequency = core::parse_frequency(*info.frequency);
+  return in;
+}
+
+std::pair<std::string, std::string> split_colon(const std::string& s) {
+  const auto colon = s.find(':');
+  if (colon == std::string::npos) return {s, ""};
+  return {s.substr(0, colon), s.substr(colon + 1)};
+}
+
+std::vector<std::string> split_commas(const std::string& s) {
+  std::vector<std::string> out;
+  std::size_t start = 0;
+  while (start <= s.size()) {
+    const auto comma = s.find(',', start);
+    std::string part = s.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+    if (!part.empty()) out.push_back(part);
+    if (comma == std::string::npos) break;
+    start = comma + 1;
+  }
+  return out;
+}
+
+std::optional<core::Day> parse_bound(const std::string& text, const char* option, bool is_start) {
+  if (text.empty()) return std::nullopt;
+  const auto d = core::parse_date(text);
+  if (d.status != core::DateParse::ok)
+    throw usage(fmt::format("{} {}: not a date; write YYYY-MM-DD or YYYY-MM", option, text));
+  if (d.month_only && is_start) {
+    const auto c = core::to_civil(d.day);
+    return core::to_day({c.year, c.month, 1});
+  }
+  return d.day;
+}
+
+struct FactorChoice {
+  ledger::LoadedVersion version;
+  std::vector<std::string> columns;
+};
+
+// Everything a group of strategies at one frequency shares.
+struct Plan {
+  core::Frequency frequency;
+  std::string tenor;
+  bool tenor_given;
+  nlohmann::json parameters;
+  std::vector<std::size_t> members;  // indices into the strategy list
+};
+
+void draw_progress(std::size_t done, std::size_t total) {
+  constexpr int kWidth = 30;
+  const int filled = static_cast<int>(kWidth * done / std::max<std::size_t>(total, 1));
+  std::cerr << fmt::format("\r[{}{}] {}/{} runs recorded", std::string(filled, '#'),
+                           std::string(kWidth - filled, ' '), done, total)
+            << (done == total ? "\n" : "") << std::flush;
+}
+
+}  // namespace
+
+std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const EvaluateRequest& rq,
+                                              bool progress) {
+  core::EvaluationSettings settings;
+  settings.covariance.kind = *core::parse_error_kind(rq.errors);
+  if (rq.lags != "auto") {
+    try {
+      std::size_t used = 0;
+      settings.covariance.lags = std::stoi(rq.lags, &used);
+      if (used != rq.lags.size() || settings.covariance.lags < 0) throw std::invalid_argument("");
+    } catch (const std::exception&) {
+      throw usage(fmt::format("--lags {}: write a whole number of lags (0 or more) or auto", rq.lags));
+    }
+    if (settings.covariance.kind != core::ErrorKind::newey_west)
+      throw usage("--lags applies to --errors newey-west only");
+  }
+  settings.covariance.small_sample = rq.small_sample == "on";
+  if (settings.covariance.small_sample && settings.covariance.kind != core::ErrorKind::newey_west)
+    throw usage("--small-sample applies to Newey-West errors (HC1 is HC0 with the factor; "
+                "classic, HC0 and HC3 never take it)");
+  settings.confidence = rq.confidence;
+  settings.rate_basis = *core::parse_rate_basis(rq.rate_basis);
+  settings.rate_timing = *core::parse_rate_timing(rq.rate_timing);
+  settings.annualize = *core::parse_annualize(rq.annualize);
+  settings.from = parse_bound(rq.from, "--from", true);
+  settings.to = parse_bound(rq.to, "--to", false);
+  if (settings.from && settings.to && *settings.to < *settings.from)
+    throw usage("--to comes before --from; swap them");
+
+  const auto strategy_names = resolve_strategies(ledger, rq.strategies);
+  auto benchmark = load_kind(ledger, rq.benchmark, {"benchmark", "strategy"}, "benchmark");
+  const auto [rate_name, rate_tenor] = split_colon(rq.rate);
+  auto rate = load_kind(ledger, rate_name, {"rate"}, "rate");
+  if (!rate_tenor.empty() &&
+      std::find(rate.info.columns.begin(), rate.info.columns.end(), rate_tenor) ==
+          rate.info.columns.end())
+    throw usage(fmt::format("rate curve '{}' has no tenor {}; it has {}", rate_name, rate_tenor,
+                            fmt::join(rate.info.columns, ", ")));
+
+  std::vector<FactorChoice> factors;
+  std::set<std::string> factor_terms;
+  for (const auto& spec : rq.factors) {
+    const auto [set_name, cols] = split_colon(spec);
+    FactorChoice choice{load_kind(ledger, set_name, {"factor"}, "factor"), split_commas(cols)};
+    if (choice.columns.empty()) choice.columns = choice.version.info.columns;
+    for (const auto& c : choice.columns) {
+      if (std::find(choice.version.info.columns.begin(), choice.version.info.columns.end(), c) ==
+          choice.version.info.columns.end())
+        throw usage(fmt::format("factor set '{}' has no column '{}'; it has {}", set_name, c,
+                                fmt::join(choice.version.info.columns, ", ")));
+      if (!factor_terms.insert(c).second)
+        throw usage(fmt::format("factor '{}' is named twice; name each factor once", c));
+    }
+    factors.push_back(std::move(choice));
+  }
+
+  // Strategies and the frequency each is evaluated at.
+  std::vector<ledger::LoadedVersion> strategies;
+  strategies.reserve(strategy_names.size());
+  for (const auto& name : strategy_names) strategies.push_back(ledger::load_version(ledger, name));
+
+  const auto detected = [](const ledger::VersionInfo& info, const std::string& what) {
+    if (!info.frequency)
+      throw Error(ExitCode::bad_input,
+                  fmt::format("cannot tell the frequency of {} '{}' from its dates; re-ingest it "
+                              "with regular dates",
+                              what, info.name));
+    return *core::parse_frequency(*info.frequency);
+  };
+  std::vector<core::Frequency> shared_frequencies{detected(benchmark.info, "benchmark")};
+  for (const auto& f : factors) shared_frequencies.push_back(detected(f.version.info, "factor set"));
+
+  std::map<core::Frequency, Plan> plans;
+  for (std::size_t i = 0; i < strategies.size(); ++i) {
+    core::Frequency f;
+    if (!rq.frequency.empty()) {
+      f = *core::parse_frequency(rq.frequency);
+    } else {
+      auto all = shared_frequencies;
+      all.push_back(detected(strategies[i].info, "strategy"));
+      f = core::lowest_frequency(all);
+    }
+    auto [it, fresh] = plans.try_emplace(f, Plan{f, "", false, {}, {}});
+    it->second.members.push_back(i);
+  }
+
+  for (auto& [f, plan] : plans) {
+    plan.tenor_given = !rate_tenor.empty();
+    plan.tenor = plan.tenor_given ? rate_tenor : core::choose_tenor(rate.info.columns, f).label;
+    nlohmann::json factor_params = nlohmann::json::array();
+    for (const auto& fc : factors)
+      factor_params.push_back({{"set", fc.version.info.name}, {"columns", fc.columns}});
+    plan.parameters = {
+        {"model", factors.empty() ? "single-index" : "multi-factor"},
+        {"frequency", core::frequency_name(f)},
+        {"frequency_rule", rq.frequency.empty() ? "lowest among the inputs" : "given"},
+        {"from", settings.from ? nlohmann::json(core::format_date(*settings.from)) : nlohmann::json()},
+        {"to", settings.to ? nlohmann::json(core::format_date(*settings.to)) : nlohmann::json()},
+        {"errors", core::error_kind_name(settings.covariance.kind)},
+        {"lags", rq.lags == "auto" ? nlohmann::json("auto") : nlohmann::json(settings.covariance.lags)},
+        {"lag_rule", "floor(4 (T/100)^(2/9))"},
+        {"small_sample", settings.covariance.small_sample},
+        {"confidence", settings.confidence},
+        {"rate_basis", core::rate_basis_name(settings.rate_basis)},
+        {"rate_timing", core::rate_timing_name(settings.rate_timing)},
+        {"rate_tenor", plan.tenor},
+        {"tenor_rule", plan.tenor_given ? "given" : "closest to the period length"},
+        {"annualize", core::annualize_name(settings.annualize)},
+        {"factors", factor_params},
+        {"alignment", "complete cases by calendar period (exact dates for daily)"},
+        {"partial_periods", "dropped"},
+        {"returns", "simple returns, compounded within a period"}};
+  }
+
+  // Evaluate each frequency group against its shared inputs.
+  std::vector<std::optional<core::EvaluationResult>> results(strategies.size());
+  std::vector<std::string> failures;
+  for (auto& [f, plan] : plans) {
+    core::SharedInputs shared;
+    shared.benchmark = to_return_input(benchmark.info.name, ledger::ColumnData(benchmark.columns.front()),
+                                       benchmark.info);
+    const auto tenor_it = std::find(rate.info.columns.begin(), rate.info.columns.end(), plan.tenor);
+    auto tenor_column = rate.columns[static_cast<std::size_t>(tenor_it - rate.info.columns.begin())];
+    shared.rate.name = rate.info.name;
+    shared.rate.tenor = plan.tenor;
+    shared.rate.yields = {std::move(tenor_column.dates), std::move(tenor_column.values)};
+    shared.rate.unit = rate.info.unit == "percent yield" ? core::RateUnit::percent : core::RateUnit::decimal;
+    shared.rate.quote = rate.info.quote == std::optional<std::string>("discount") ? core::RateQuote::discount
+                                                                                  : core::RateQuote::yield;
+    for (const auto& fc : factors)
+      for (const auto& col : fc.columns) {
+        const auto it = std::find(fc.version.info.columns.begin(), fc.version.info.columns.end(), col);
+        shared.factors.push_back(to_return_input(
+            col, ledger::ColumnData(fc.version.columns[static_cast<std::size_t>(it - fc.version.info.columns.begin())]),
+            fc.version.info));
+      }
+    const core::Evaluator evaluator(shared, f, settings);
+    std::vector<core::ReturnInput> inputs;
+    inputs.reserve(plan.members.size());
+    for (std::size_t i : plan.members)
+      inputs.push_back(to_return_input(strategies[i].info.name,
+                                       ledger::ColumnData(strategies[i].columns.front()),
+                                       strategies[i].info));
+    auto outcomes = evaluator.evaluate_many(inputs);
+    for (std::size_t j = 0; j < plan.members.size(); ++j) {
+      if (outcomes[j].result)
+        results[plan.members[j]] = std::move(outcomes[j].result);
+      else
+        failures.push_back(fmt::format("{}: {}", inputs[j].name, outcomes[j].error));
+    }
+  }
+  if (!failures.empty())
+    throw Error(ExitCode::estimation,
+                fmt::format("{} of {} strategies cannot be evaluated, so no run was recorded "
+                            "(evaluate the others without them):\n  {}",
+                            failures.size(), strategies.size(), fmt::join(failures, "\n  ")));
+
+  // Record every run in one transaction.
+  std::string factor_label;
+  for (const auto& fc : factors)
+    factor_label += fmt::format("{}{}:{}", factor_label.empty() ? "" : "; ", fc.version.info.name,
+                                fmt::join(fc.columns, ","));
+  const auto input_of = [](const std::string& role, int position, const ledger::VersionInfo& info,
+                           std::vector<std::string> columns) {
+    return ledger::RunInput{role,         position,     info.version_id, info.name,
+                            info.version, info.content_hash, std::move(columns)};
+  };
+  std::vector<std::int64_t> run_ids;
+  ledger.write_transaction([&] {
+    for (auto& [f, plan] : plans)
+      for (std::size_t i : plan.members) {
+        const auto& result = *results[i];
+        ledger::NewRun run;
+        run.strategy = strategies[i].info.name;
+        run.benchmark = benchmark.info.name;
+        run.rate = fmt::format("{}:{}", rate.info.name, plan.tenor);
+        run.factors = factor_label;
+        run.study = rq.study;
+        run.note = rq.note;
+        run.parameters = plan.parameters;
+        run.inputs.push_back(input_of("strategy", 1, strategies[i].info, {strategies[i].info.name}));
+        run.inputs.push_back(input_of("benchmark", 1, benchmark.info, {benchmark.info.columns.front()}));
+        run.inputs.push_back(input_of("rate", 1, rate.info, {plan.tenor}));
+        int position = 1;
+        for (const auto& fc : factors)
+          run.inputs.push_back(input_of("factor", position++, fc.version.info, fc.columns));
+        core::ReadingContext context{rq.study,
+                                     rq.study.empty() ? 0 : ledger::count_study_runs(ledger, rq.study) + 1,
+                                     ledger::count_strategy_runs(ledger, run.strategy) + 1};
+        run.reading = core::compose_reading(result, settings, context);
+        run.result = &result;
+        run_ids.push_back(ledger::store_run(ledger, run));
+        if (progress && strategies.size() > 1) draw_progress(run_ids.size(), strategies.size());
+      }
+  });
+  return run_ids;
+}
+
+namespace {
+
+double num(const ordered_json& j) { return j.is_number() ? j.get<double>() : NAN; }
+
+std::string fixed(const ordered_json& j, int digits) {
+  const double v = num(j);
+  if (std::isnan(v)) return "n/a";
+  return fmt::format("{:.{}f}", v, digits);
+}
+
+std::string pct(const ordered_json& j, int digits = 2) {
+  const double v = num(j);
+  if (std::isnan(v)) return "n/a";
+  return fmt::format("{:+.{}f}%", 100 * v, digits);
+}
+
+std::string p_text(const ordered_json& j) {
+  const double v = num(j);
+  if (std::isnan(v)) return "n/a";
+  if (v < 0.0001) return "<0.0001";
+  return fmt::format("{:.4f}", v);
+}
+
+const char* per(const std::string& frequency) {
+  if (frequency == "daily") return "per day";
+  if (frequency == "weekly") return "per week";
+  if (frequency == "quarterly") return "per quarter";
+  return "per month";
+}
+
+std::string errors_text(const ordered_json& stats) {
+  const std::string kind = stats["errors"];
+  if (kind == "newey-west")
+    return fmt::format("Newey-West, {} lags, {}", stats["lags"].get<int>(),
+                       stats["small_sample_factor"].get<bool>() ? "small-sample factor T/(T-k)"
+                                                                : "no small-sample factor");
+  if (kind == "classic") return "classic (homoskedastic)";
+  return fmt::format("White {}", kind == "hc1" ? "HC1 (HC0 x T/(T-k))" : kind == "hc0" ? "HC0"
+                                 : kind == "hc2" ? "HC2" : "HC3");
+}
+
+}  // namespace
+
+void print_run_text(std::ostream& out, const ordered_json& run) {
+  const auto& sample = run["sample"];
+  const auto& stats = run["statistics"];
+  const std::string frequency = sample["frequency"];
+  const std::string unit = per(frequency);
+  const auto& params = run["parameters"];
+  out << fmt::format("Run {}: {} against {}\n", run["run_id"].get<std::int64_t>(),
+                     run["strategy"].get<std::string>(), run["benchmark"].get<std::string>());
+  out << fmt::format("  recorded {} (UTC), engine {}, inputs hash {}\n",
+                     run["created_at"].get<std::string>(), run["engine_version"].get<std::string>(),
+                     run["inputs_hash"].get<std::string>());
+  if (run["study"].is_string())
+    out << fmt::format("  study {}\n", run["study"].get<std::string>());
+  if (run["revises_run_id"].is_number())
+    out << fmt::format("  revises run {}\n", run["revises_run_id"].get<std::int64_t>());
+  out << fmt::format("  risk-free {}, {} basis, yield known at the period's {}\n",
+                     run["rate"].get<std::string>(), params["rate_basis"].get<std::string>(),
+                     params["rate_timing"].get<std::string>());
+  if (run["factors"].is_string())
+    out << fmt::format("  factors {}\n", run["factors"].get<std::string>());
+  out << fmt::format("  sample {} to {}: {} {} periods ({} dropped)\n",
+                     sample["first"].get<std::string>(), sample["last"].get<std::string>(),
+                     sample["observations"].get<int>(), frequency, sample["dropped"].get<int>());
+  out << fmt::format("  standard errors {}; {:g}% intervals, Student t with {} degrees of freedom\n\n",
+                     errors_text(stats), 100 * stats["confidence"].get<double>(),
+                     stats["degrees_of_freedom"].get<int>());
+
+  Table table;
+  table.header = {"term", "estimate", "std error", "t", "p", "interval low", "interval high"};
+  table.right_aligned = {false, true, true, true, true, true, true};
+  for (const auto& c : run["coefficients"])
+    table.rows.push_back({c["term"].get<std::string>(), fixed(c["estimate"], 6),
+                          fixed(c["std_error"], 6), fixed(c["t_stat"], 2), p_text(c["p_value"]),
+                          fixed(c["ci_low"], 6), fixed(c["ci_high"], 6)});
+  std::ostringstream t;
+  print_table(t, table);
+  std::istringstream lines(t.str());
+  for (std::string line; std::getline(lines, line);) out << "  " << line << '\n';
+  out << fmt::format("  (alpha is a decimal return {}; slopes are unitless)\n\n", unit);
+
+  out << fmt::format("  alpha annualized       {} a year ({})\n", pct(stats["alpha_annualized"]),
+                     params["annualize"].get<std::string>());
+  out << fmt::format("  R-squared              {} (adjusted {}); residual sd {} {}\n",
+                     fixed(stats["r_squared"], 3), fixed(stats["adj_r_squared"], 3),
+                     fixed(stats["residual_std"], 5), unit);
+  out << fmt::format("  F statistic            {} (p {}), classic\n", fixed(stats["f_stat"], 2),
+                     p_text(stats["f_p_value"]));
+  out << fmt::format("  Sharpe ratio           strategy {}, benchmark {} (annualized)\n",
+                     fixed(stats["sharpe_strategy"], 2), fixed(stats["sharpe_benchmark"], 2));
+  out << fmt::format("  appraisal ratio        {} (alpha / residual sd, annualized)\n",
+                     fixed(stats["appraisal_ratio"], 2));
+  out << fmt::format("  Treynor ratio          {} a year (mean excess return / beta)\n",
+                     pct(stats["treynor_ratio"]));
+  out << fmt::format("  tracking error         {:.2f}% a year; information ratio {} (annualized)\n",
+                     100 * num(stats["tracking_error"]), fixed(stats["information_ratio"], 2));
+  out << fmt::format("  mean excess return     strategy {}, benchmark {} {}\n",
+                     pct(stats["mean_excess_strategy"], 3), pct(stats["mean_excess_benchmark"], 3),
+                     unit);
+  out << fmt::format("  correlation            {}; up-market beta {} ({} periods), down-market beta {} ({} periods)\n\n",
+                     fixed(stats["correlation"], 3), fixed(stats["up_market_beta"], 2),
+                     stats["up_periods"].get<int>(), fixed(stats["down_market_beta"], 2),
+                     stats["down_periods"].get<int>());
+  for (const auto& w : run["warnings"]) out << "  warning: " << w.get<std::string>() << '\n';
+  if (!run["warnings"].empty()) out << '\n';
+  out << "  Reading\n";
+  for (const auto& sentence : run["reading"]) out << "  - " << sentence.get<std::string>() << '\n';
+  out << '\n';
+}
+
+void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std::int64_t>& runs,
+                Format format) {
+  if (format == Format::json) {
+    ordered_json array = ordered_json::array();
+    for (auto id : runs) array.push_back(ledger::load_run(ledger, id));
+    print_json(out, array);
+    return;
+  }
+  if (format == Format::table && runs.size() <= 3) {
+    for (auto id : runs) print_run_text(out, ledger::load_run(ledger, id));
+    return;
+  }
+  Table table;
+  table.header = {"run", "strategy", "periods", "alpha (per period)", "alpha a year", "t", "p",
+                  "beta", "R2", "errors"};
+  table.right_aligned = {true, false, true, true, true, true, true, true, true, false};
+  for (auto id : runs) {
+    const auto run = ledger::load_run(ledger, id);
+    const auto& alpha = run["coefficients"][0];
+    const auto& stats = run["statistics"];
+    table.rows.push_back({std::to_string(id), run["strategy"].get<std::string>(),
+                          std::to_string(run["sample"]["observations"].get<int>()),
+                          fixed(alpha["estimate"], 6), pct(stats["alpha_annualized"]),
+                          fixed(alpha["t_stat"], 2), p_text(alpha["p_value"]),
+                          fixed(run["coefficients"][1]["estimate"], 3), fixed(stats["r_squared"], 3),
+                          stats["errors"].get<std::string>() +
+                              (stats["errors"] == "newey-west"
+                                   ? fmt::format(" ({} lags)", stats["lags"].get<int>())
+                                   : "")});
+  }
+  if (format == Format::csv) {
+    print_csv(out, table);
+    return;
+  }
+  print_table(out, table);
+  out << fmt::format("\n{} runs recorded; `alphatrail show RUN` prints one in full.\n", runs.size());
+  for (const auto& c : core::standard_cautions()) out << c << '\n';
+}
+
+}  // namespace alphatrail::cli

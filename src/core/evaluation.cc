@@ -1,0 +1,472 @@
+#include "core/evaluation.h"
+
+#include <fmt/format.h>
+
+#include <cmath>
+#include <map>
+#include <numeric>
+#include <thread>
+
+#include "core/error.h"
+
+namespace alphatrail::core {
+
+const char* annualize_name(Annualize a) {
+  return a == Annualize::compound ? "compound" : "arithmetic";
+}
+
+std::optional<Annualize> parse_annualize(std::string_view name) {
+  if (name == "compound") return Annualize::compound;
+  if (name == "arithmetic") return Annualize::arithmetic;
+  return std::nullopt;
+}
+
+namespace {
+
+// Orders frequencies from the highest (daily) to the lowest (quarterly).
+int coarseness(Frequency f) {
+  switch (f) {
+    case Frequency::daily: return 0;
+    case Frequency::weekly: return 1;
+    case Frequency::monthly: return 2;
+    case Frequency::quarterly: return 3;
+  }
+  return 2;
+}
+
+const char* period_noun(Frequency f) {
+  switch (f) {
+    case Frequency::daily: return "day";
+    case Frequency::weekly: return "week";
+    case Frequency::monthly: return "month";
+    case Frequency::quarterly: return "quarter";
+  }
+  return "period";
+}
+
+Frequency source_frequency(const ReturnInput& input) {
+  if (input.frequency) return *input.frequency;
+  if (auto f = detect_frequency(input.data.dates)) return *f;
+  throw Error(ExitCode::bad_input,
+              fmt::format("cannot tell the frequency of '{}' from its dates (neither daily, "
+                          "weekly, monthly nor quarterly); re-ingest it with regular dates",
+                          input.name));
+}
+
+// Resamples one return input to the evaluation frequency, describing what was done.
+Resampled resample(const ReturnInput& input, const std::string& role, Frequency target,
+                   std::vector<std::string>& preparation, std::vector<std::string>& warnings) {
+  const Frequency source = source_frequency(input);
+  Resampled r = compound_returns(input.data, target, source);
+  if (source == target)
+    preparation.push_back(fmt::format("{} '{}': {} returns used as they are", role, input.name,
+                                      frequency_name(source)));
+  else
+    preparation.push_back(fmt::format("{} '{}': {} returns compounded to {} (prod(1 + r) - 1)",
+                                      role, input.name, frequency_name(source),
+                                      frequency_name(target)));
+  for (auto& note : describe(r.report, target))
+    warnings.push_back(fmt::format("{} '{}': {}", role, input.name, note));
+  return r;
+}
+
+double mean(const std::vector<double>& x) {
+  return x.empty() ? NAN : std::accumulate(x.begin(), x.end(), 0.0) / static_cast<double>(x.size());
+}
+
+// Sample standard deviation (T - 1 in the denominator).
+double stdev(const std::vector<double>& x) {
+  if (x.size() < 2) return NAN;
+  const double m = mean(x);
+  double ss = 0;
+  for (double v : x) ss += (v - m) * (v - m);
+  return std::sqrt(ss / static_cast<double>(x.size() - 1));
+}
+
+double correlation(const std::vector<double>& x, const std::vector<double>& y) {
+  const double mx = mean(x);
+  const double my = mean(y);
+  double sxy = 0;
+  double sxx = 0;
+  double syy = 0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    sxy += (x[i] - mx) * (y[i] - my);
+    sxx += (x[i] - mx) * (x[i] - mx);
+    syy += (y[i] - my) * (y[i] - my);
+  }
+  return sxy / std::sqrt(sxx * syy);
+}
+
+// Slope of y on x with an intercept over the periods selected by `keep`; NaN below 3.
+double conditional_slope(const std::vector<double>& y, const std::vector<double>& x,
+                         bool up, int& count) {
+  std::vector<double> xs;
+  std::vector<double> ys;
+  for (std::size_t i = 0; i < x.size(); ++i)
+    if (up ? x[i] > 0 : x[i] < 0) {
+      xs.push_back(x[i]);
+      ys.push_back(y[i]);
+    }
+  count = static_cast<int>(xs.size());
+  if (xs.size() < 3) return NAN;
+  const double mx = mean(xs);
+  const double my = mean(ys);
+  double sxy = 0;
+  double sxx = 0;
+  for (std::size_t i = 0; i < xs.size(); ++i) {
+    sxy += (xs[i] - mx) * (ys[i] - my);
+    sxx += (xs[i] - mx) * (xs[i] - mx);
+  }
+  return sxx > 0 ? sxy / sxx : NAN;
+}
+
+std::string describe_rate(const RateInput& rate, const EvaluationSettings& s, Frequency f) {
+  const int P = periods_per_year(f);
+  std::string text = fmt::format("rate '{}' tenor {}: annualized {} {}", rate.name, rate.tenor,
+                                 rate.unit == RateUnit::percent ? "percent" : "decimal",
+                                 rate.quote == RateQuote::discount ? "bank-discount quotes"
+                                                                   : "yields");
+  if (rate.unit == RateUnit::percent) text += ", divided by 100";
+  if (rate.quote == RateQuote::discount)
+    text += s.rate_basis == RateBasis::act360
+                ? ", turned into money-market yields 360 d / (360 - d r)"
+                : ", turned into bond-equivalent yields (365 d / (360 - d r) up to half a year)";
+  switch (s.rate_basis) {
+    case RateBasis::compound:
+      text += fmt::format(", per-{} rate (1 + y)^(1/{}) - 1", period_noun(f), P);
+      break;
+    case RateBasis::simple: text += fmt::format(", per-{} rate y / {}", period_noun(f), P); break;
+    case RateBasis::act360:
+      text += fmt::format(", per-{} rate y x days / 360", period_noun(f));
+      break;
+  }
+  text += s.rate_timing == RateTiming::start
+              ? "; each period uses the yield known at its start (the last observation at or "
+                "before the end of the previous period)"
+              : "; each period uses the yield observed at its end (look-ahead, by request)";
+  return text;
+}
+
+}  // namespace
+
+Frequency lowest_frequency(const std::vector<Frequency>& frequencies) {
+  Frequency lowest = Frequency::daily;
+  for (Frequency f : frequencies)
+    if (coarseness(f) > coarseness(lowest)) lowest = f;
+  return lowest;
+}
+
+int short_sample_threshold(Frequency f) { return 3 * periods_per_year(f); }
+
+struct Evaluator::Prepared {
+  std::string name;
+  Aligned aligned;
+  std::vector<std::string> preparation;
+  std::vector<std::string> warnings;
+  std::string error;  // set when the strategy cannot be put on the frequency
+  int error_code = 0;
+};
+
+Evaluator::Evaluator(const SharedInputs& shared, Frequency frequency,
+                     const EvaluationSettings& settings)
+    : settings_(settings), frequency_(frequency), rate_tenor_(shared.rate.tenor) {
+  auto& prep = shared_preparation_;
+  auto& warn = shared_warnings_;
+  Resampled bench = resample(shared.benchmark, "benchmark", frequency, prep, warn);
+
+  RateConvention convention;
+  convention.unit = shared.rate.unit;
+  convention.quote = shared.rate.quote;
+  convention.bill_days = parse_tenor(shared.rate.tenor).bill_days;
+  convention.basis = settings.rate_basis;
+  convention.timing = settings.rate_timing;
+  PeriodRates rates = per_period_rates(shared.rate.yields, convention, frequency, bench.series.keys);
+  prep.push_back(describe_rate(shared.rate, settings, frequency));
+  if (!rates.unobserved.empty())
+    warn.push_back(fmt::format("rate '{}': no yield known yet for {} of the benchmark's periods "
+                               "(first {}); they are dropped",
+                               shared.rate.name, count_label(frequency, static_cast<std::int64_t>(rates.unobserved.size())),
+                               period_label(frequency, rates.unobserved.front())));
+  if (!rates.stale.empty())
+    warn.push_back(fmt::format("rate '{}': the last yield is too old for {} (first {}); they "
+                               "are dropped",
+                               shared.rate.name, count_label(frequency, static_cast<std::int64_t>(rates.stale.size())),
+                               period_label(frequency, rates.stale.front())));
+
+  std::vector<NamedSeries> inputs{{"benchmark", std::move(bench.series)},
+                                  {"rate", std::move(rates.series)}};
+  term_names_ = {"alpha", "beta"};
+  for (const auto& factor : shared.factors) {
+    Resampled r = resample(factor, "factor", frequency, prep, warn);
+    inputs.push_back({factor.name, std::move(r.series)});
+    factor_names_.push_back(factor.name);
+    term_names_.push_back(factor.name);
+  }
+  common_.emplace(inputs, AlignOptions{settings.from, settings.to});
+}
+
+Evaluator::Prepared Evaluator::prepare(const ReturnInput& strategy) const {
+  Prepared p;
+  p.name = strategy.name;
+  try {
+    Resampled s = resample(strategy, "strategy", frequency_, p.preparation, p.warnings);
+    p.aligned = common_->align({"strategy", std::move(s.series)});
+  } catch (const Error& e) {
+    p.error = e.what();
+    p.error_code = static_cast<int>(e.code());
+  }
+  return p;
+}
+
+namespace {
+
+struct Design {
+  Eigen::MatrixXd X;
+  Eigen::VectorXd y;
+};
+
+// Builds [1, r_m - r_f, factors...] and r_s - r_f from an aligned sample.
+Design build_design(const Aligned& a, const std::vector<std::string>& factor_names) {
+  const auto T = static_cast<Eigen::Index>(a.keys.size());
+  const auto k = static_cast<Eigen::Index>(2 + factor_names.size());
+  Design d{Eigen::MatrixXd(T, k), Eigen::VectorXd(T)};
+  const auto& s = a.column("strategy");
+  const auto& m = a.column("benchmark");
+  const auto& rf = a.column("rate");
+  for (Eigen::Index t = 0; t < T; ++t) {
+    d.X(t, 0) = 1.0;
+    d.X(t, 1) = m[t] - rf[t];
+    d.y(t) = s[t] - rf[t];
+  }
+  for (std::size_t j = 0; j < factor_names.size(); ++j) {
+    const auto& f = a.column(factor_names[j]);
+    for (Eigen::Index t = 0; t < T; ++t) d.X(t, static_cast<Eigen::Index>(2 + j)) = f[t];
+  }
+  return d;
+}
+
+}  // namespace
+
+EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
+  EvaluationResult r;
+  r.strategy = p.name;
+  r.rate_tenor = rate_tenor_;
+  const Aligned& a = p.aligned;
+  const Frequency f = frequency_;
+  const int P = periods_per_year(f);
+
+  auto& sample = r.sample;
+  sample.frequency = f;
+  sample.first = period_label(f, a.keys.front());
+  sample.last = period_label(f, a.keys.back());
+  sample.observations = static_cast<int>(a.keys.size());
+  sample.dropped = a.report.dropped;
+  sample.dropped_by_reason = a.report.dropped_by_reason;
+  for (const auto& gap : a.report.gaps) sample.gaps.push_back(gap.text);
+  sample.preparation = shared_preparation_;
+  sample.preparation.insert(sample.preparation.end(), p.preparation.begin(), p.preparation.end());
+  sample.preparation.push_back(fmt::format(
+      "aligned by {} on the periods where every input has a value: {} kept, {} dropped",
+      f == Frequency::daily ? "exact date" : fmt::format("calendar {}", period_noun(f)),
+      a.keys.size(), a.report.dropped.size()));
+  sample.warnings = shared_warnings_;
+  sample.warnings.insert(sample.warnings.end(), p.warnings.begin(), p.warnings.end());
+  if (sample.observations < short_sample_threshold(f))
+    sample.warnings.push_back(fmt::format(
+        "short sample: {} {} periods, fewer than {} (three years); alpha estimates this short "
+        "are unreliable",
+        sample.observations, frequency_name(f), short_sample_threshold(f)));
+  for (const auto& gap : sample.gaps) sample.warnings.push_back("gap inside the sample: " + gap);
+
+  r.keys = a.keys;
+  const auto& s = a.column("strategy");
+  const auto& m = a.column("benchmark");
+  const auto& rf = a.column("rate");
+  const std::size_t T = a.keys.size();
+  r.strategy_excess.resize(T);
+  r.benchmark_excess.resize(T);
+  r.risk_free = rf;
+  std::vector<double> active(T);
+  for (std::size_t t = 0; t < T; ++t) {
+    r.strategy_excess[t] = s[t] - rf[t];
+    r.benchmark_excess[t] = m[t] - rf[t];
+    active[t] = s[t] - m[t];
+  }
+
+  auto& d = r.derived;
+  d.periods_per_year = P;
+  const double alpha = fit.coefficients[0].estimate;
+  const double beta = fit.coefficients[1].estimate;
+  const double root_p = std::sqrt(static_cast<double>(P));
+  d.alpha_annualized = settings_.annualize == Annualize::compound ? std::pow(1.0 + alpha, P) - 1.0
+                                                                   : alpha * P;
+  d.appraisal_ratio = alpha / fit.residual_std * root_p;
+  d.mean_excess_strategy = mean(r.strategy_excess);
+  d.mean_excess_benchmark = mean(r.benchmark_excess);
+  d.sharpe_strategy = d.mean_excess_strategy / stdev(r.strategy_excess) * root_p;
+  d.sharpe_benchmark = d.mean_excess_benchmark / stdev(r.benchmark_excess) * root_p;
+  d.treynor_ratio = d.mean_excess_strategy * P / beta;
+  const double te = stdev(active);
+  d.tracking_error = te * root_p;
+  d.information_ratio = mean(active) / te * root_p;
+  d.correlation = correlation(r.strategy_excess, r.benchmark_excess);
+  d.up_market_beta = conditional_slope(r.strategy_excess, r.benchmark_excess, true, d.up_periods);
+  d.down_market_beta =
+      conditional_slope(r.strategy_excess, r.benchmark_excess, false, d.down_periods);
+
+  r.fit = std::move(fit);
+  return r;
+}
+
+EvaluationResult Evaluator::evaluate(const ReturnInput& strategy) const {
+  Prepared p = prepare(strategy);
+  if (!p.error.empty()) throw Error(static_cast<ExitCode>(p.error_code), p.error);
+  const Design d = build_design(p.aligned, factor_names_);
+  OlsResult fit = fit_ols(d.X, d.y, term_names_, true, settings_.covariance, settings_.confidence);
+  return finish(std::move(p), std::move(fit));
+}
+
+std::vector<Evaluator::Outcome> Evaluator::evaluate_many(
+    const std::vector<ReturnInput>& strategies, int threads) const {
+  std::vector<Prepared> prepared(strategies.size());
+  for (std::size_t i = 0; i < strategies.size(); ++i) prepared[i] = prepare(strategies[i]);
+
+  // Strategies whose kept periods are the same share a design matrix.
+  std::map<std::vector<std::int64_t>, std::vector<std::size_t>> groups;
+  std::vector<Outcome> outcomes(strategies.size());
+  for (std::size_t i = 0; i < prepared.size(); ++i) {
+    if (!prepared[i].error.empty()) {
+      outcomes[i].error = prepared[i].error;
+      outcomes[i].error_code = prepared[i].error_code;
+      continue;
+    }
+    groups[prepared[i].aligned.keys].push_back(i);
+  }
+  for (auto& [keys, members] : groups) {
+    const Design d = build_design(prepared[members.front()].aligned, factor_names_);
+    Eigen::MatrixXd Y(d.X.rows(), static_cast<Eigen::Index>(members.size()));
+    for (std::size_t j = 0; j < members.size(); ++j) {
+      const Aligned& a = prepared[members[j]].aligned;
+      const auto& s = a.column("strategy");
+      const auto& rf = a.column("rate");
+      for (Eigen::Index t = 0; t < Y.rows(); ++t) Y(t, static_cast<Eigen::Index>(j)) = s[t] - rf[t];
+    }
+    try {
+      std::vector<OlsResult> fits = fit_ols_many(d.X, Y, term_names_, true, settings_.covariance,
+                                                 settings_.confidence, threads);
+      for (std::size_t j = 0; j < members.size(); ++j)
+        outcomes[members[j]].result = finish(std::move(prepared[members[j]]), std::move(fits[j]));
+    } catch (const Error&) {
+      // One column can fail where others do not (e.g. an exact fit): fit them one by one.
+      for (std::size_t j = 0; j < members.size(); ++j) {
+        try {
+          Eigen::VectorXd y = Y.col(static_cast<Eigen::Index>(j));
+          OlsResult fit =
+              fit_ols(d.X, y, term_names_, true, settings_.covariance, settings_.confidence);
+          outcomes[members[j]].result = finish(std::move(prepared[members[j]]), std::move(fit));
+        } catch (const Error& e) {
+          outcomes[members[j]].error = e.what();
+          outcomes[members[j]].error_code = static_cast<int>(e.code());
+        }
+      }
+    }
+  }
+  return outcomes;
+}
+
+const std::vector<std::string>& standard_cautions() {
+  static const std::vector<std::string> cautions{
+      "These are statistical estimates from past data, not investment advice.",
+      "Survivorship bias, look-ahead bias, short samples and many tried variants all overstate "
+      "alpha; a back-test is not a track record."};
+  return cautions;
+}
+
+namespace {
+
+std::string percent(double x, int digits = 2) { return fmt::format("{:+.{}f}%", 100.0 * x, digits); }
+
+}  // namespace
+
+std::vector<std::string> compose_reading(const EvaluationResult& r,
+                                         const EvaluationSettings& settings,
+                                         const ReadingContext& context) {
+  std::vector<std::string> out;
+  const auto& fit = r.fit;
+  const Frequency f = r.sample.frequency;
+  const double beta = fit.coefficients[1].estimate;
+  const auto& a = fit.coefficients[0];
+
+  if (beta > 1)
+    out.push_back(fmt::format(
+        "Beta is {:.2f}: the strategy moves with the market, more strongly than the market "
+        "itself (a 1% market excess return goes with about {:.2f}% in the strategy).",
+        beta, beta));
+  else if (beta > 0)
+    out.push_back(fmt::format(
+        "Beta is {:.2f}: the strategy moves with the market, less strongly than the market "
+        "itself (a 1% market excess return goes with about {:.2f}% in the strategy).",
+        beta, beta));
+  else
+    out.push_back(fmt::format(
+        "Beta is {:.2f}: the strategy tends to move against the market (a 1% market excess "
+        "return goes with about {:.2f}% in the strategy).",
+        beta, beta));
+
+  out.push_back(fmt::format(
+      "Alpha, the return not explained by the {}, is {} per {} ({} a year, {} annualized).",
+      fit.coefficients.size() > 2 ? "market and the factors" : "market", percent(a.estimate, 3),
+      period_noun(f), percent(r.derived.alpha_annualized), annualize_name(settings.annualize)));
+
+  const double level = 1.0 - settings.confidence;
+  const std::string errors =
+      fit.errors == ErrorKind::newey_west
+          ? fmt::format("Newey-West standard errors ({} lags{})", fit.lags,
+                        fit.small_sample_applied ? ", small-sample factor T/(T-k)" : "")
+          : fmt::format("{} standard errors", error_kind_name(fit.errors));
+  if (a.p_value < level)
+    out.push_back(fmt::format(
+        "With {}, alpha's t statistic is {:.2f} (p = {:.4f}): significant at the {:g}% level; "
+        "the {:g}% interval runs from {} to {} per {}.",
+        errors, a.t_stat, a.p_value, 100 * level, 100 * settings.confidence,
+        percent(a.ci_low, 3), percent(a.ci_high, 3), period_noun(f)));
+  else
+    out.push_back(fmt::format(
+        "With {}, alpha's t statistic is {:.2f} (p = {:.4f}): not significant at the {:g}% "
+        "level; the data cannot tell this alpha from zero.",
+        errors, a.t_stat, a.p_value, 100 * level));
+
+  if (fit.coefficients.size() > 2) {
+    std::vector<std::string> loadings;
+    for (std::size_t j = 2; j < fit.coefficients.size(); ++j)
+      loadings.push_back(fmt::format("{} {:.2f} (t {:.2f})", fit.coefficients[j].term,
+                                     fit.coefficients[j].estimate, fit.coefficients[j].t_stat));
+    out.push_back(fmt::format("Factor loadings: {}.", fmt::join(loadings, ", ")));
+  }
+
+  out.push_back(fmt::format("The {} explain{} {:.1f}% of the variance of the strategy's excess "
+                            "return (R-squared).",
+                            fit.coefficients.size() > 2 ? "market and the factors" : "market",
+                            fit.coefficients.size() > 2 ? "" : "s", 100 * fit.r_squared));
+
+  out.push_back(fmt::format("The sample has {} {} periods, {} to {}.", r.sample.observations,
+                            frequency_name(f), r.sample.first, r.sample.last));
+  if (r.sample.observations < short_sample_threshold(f))
+    out.push_back(fmt::format(
+        "Caution: fewer than {} periods (three years) is a short sample; the estimate is fragile.",
+        short_sample_threshold(f)));
+
+  if (!context.study.empty() && context.study_trials > 1)
+    out.push_back(fmt::format(
+        "This is one of {} runs recorded in study '{}': the best of many variants looks better "
+        "than it is; discount for the trials (a t statistic above 3 is a common bar for a "
+        "new idea, Harvey, Liu & Zhu 2016).",
+        context.study_trials, context.study));
+  if (context.strategy_runs > 1)
+    out.push_back(fmt::format("The ledger holds {} runs of this strategy, this one included.",
+                              context.strategy_runs));
+  for (const auto& c : standard_cautions()) out.push_back(c);
+  return out;
+}
+
+}  // namespace alphatrail::core

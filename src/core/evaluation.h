@@ -1,0 +1,173 @@
+// One evaluation of a strategy: prepare the inputs (resample, convert the risk-free rate,
+// align), regress the strategy's excess return on the market's excess return (and factor
+// returns when given), and derive the figures a reader needs. Pure computation: the ledger
+// supplies the series and records the result.
+//
+// Model: r_s - r_f = alpha + beta (r_m - r_f) + sum_j b_j f_j + e, where f_j are factor
+// returns used as given (factor sets hold zero-investment spread returns).
+//
+// Failure: throws alphatrail::Error(ExitCode::estimation) when the aligned sample is too short
+// or the design is collinear or ill-conditioned, and Error(ExitCode::bad_input) for inputs
+// that cannot be put on the evaluation frequency. Nothing is returned on failure.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/align.h"
+#include "core/dates.h"
+#include "core/rates.h"
+#include "core/regression.h"
+#include "core/resample.h"
+
+namespace alphatrail::core {
+
+enum class Annualize { compound, arithmetic };  // (1 + a)^P - 1 | a * P
+
+// Returns "compound" or "arithmetic".
+const char* annualize_name(Annualize a);
+// Parses "compound" or "arithmetic"; nullopt when unknown.
+std::optional<Annualize> parse_annualize(std::string_view name);
+
+struct EvaluationSettings {
+  std::optional<Frequency> frequency;  // nullopt: the lowest frequency among the inputs
+  std::optional<Day> from;
+  std::optional<Day> to;
+  CovarianceOptions covariance;  // default Newey-West, auto lags, no small-sample factor
+  double confidence = 0.95;
+  RateBasis rate_basis = RateBasis::compound;
+  RateTiming rate_timing = RateTiming::start;
+  Annualize annualize = Annualize::compound;
+};
+
+// A return series (decimal simple returns) with the frequency it was detected at.
+struct ReturnInput {
+  std::string name;
+  DatedSeries data;
+  std::optional<Frequency> frequency;  // nullopt: detect from the dates
+};
+
+// The risk-free rate: one tenor column of a rate curve.
+struct RateInput {
+  std::string name;   // curve name
+  std::string tenor;  // chosen tenor label
+  DatedSeries yields;
+  RateUnit unit = RateUnit::percent;
+  RateQuote quote = RateQuote::yield;
+};
+
+// Inputs shared by every strategy of one evaluate command.
+struct SharedInputs {
+  ReturnInput benchmark;
+  RateInput rate;
+  std::vector<ReturnInput> factors;  // name = the term name of the factor
+};
+
+struct DerivedStatistics {
+  int periods_per_year = 12;
+  double alpha_annualized = 0;       // by EvaluationSettings::annualize
+  double appraisal_ratio = 0;        // alpha / sd(e), annualized by sqrt(P)
+  double sharpe_strategy = 0;        // mean / sd of the strategy excess return, x sqrt(P)
+  double sharpe_benchmark = 0;       // the same for the benchmark
+  double treynor_ratio = 0;          // mean strategy excess / beta, annualized (x P)
+  double tracking_error = 0;         // sd(r_s - r_m), annualized (x sqrt(P))
+  double information_ratio = 0;      // mean(r_s - r_m) / sd(r_s - r_m), x sqrt(P)
+  double correlation = 0;            // of strategy and benchmark excess returns
+  double mean_excess_strategy = 0;   // per period
+  double mean_excess_benchmark = 0;  // per period
+  double up_market_beta = 0;         // slope over periods with benchmark excess > 0 (NaN if < 3)
+  double down_market_beta = 0;       // slope over periods with benchmark excess < 0 (NaN if < 3)
+  int up_periods = 0;
+  int down_periods = 0;
+};
+
+struct SampleDescription {
+  Frequency frequency = Frequency::monthly;
+  std::string first;  // period label, e.g. "2000-01"
+  std::string last;
+  int observations = 0;
+  std::vector<DroppedPeriod> dropped;
+  std::map<std::string, std::size_t> dropped_by_reason;
+  std::vector<std::string> gaps;           // gaps inside the kept sample
+  std::vector<std::string> preparation;    // each preparation step, in words
+  std::vector<std::string> warnings;       // short sample, stale rates, partial periods ...
+};
+
+struct EvaluationResult {
+  std::string strategy;
+  std::string rate_tenor;
+  SampleDescription sample;
+  OlsResult fit;
+  DerivedStatistics derived;
+  // The aligned sample, for charts: period keys, strategy and benchmark excess returns, the
+  // per-period risk-free rate and the strategy's own return.
+  std::vector<std::int64_t> keys;
+  std::vector<double> strategy_excess;
+  std::vector<double> benchmark_excess;
+  std::vector<double> risk_free;
+};
+
+// Returns the lowest frequency among the inputs (quarterly < monthly < weekly < daily).
+// Example: lowest_frequency({daily, monthly}) == monthly.
+Frequency lowest_frequency(const std::vector<Frequency>& frequencies);
+
+// Returns the number of periods below which a sample is short: three years' worth
+// (common practice: 36 months, 156 weeks, 756 trading days, 12 quarters).
+int short_sample_threshold(Frequency f);
+
+// Evaluates strategies against shared inputs at one frequency. The shared inputs are
+// resampled, converted and aligned once; strategies on the same sample share one design
+// matrix and one factorization.
+class Evaluator {
+ public:
+  // Prepares the shared inputs at `frequency` under the settings.
+  Evaluator(const SharedInputs& shared, Frequency frequency, const EvaluationSettings& settings);
+
+  // Evaluates one strategy; throws as described at the top of this file.
+  EvaluationResult evaluate(const ReturnInput& strategy) const;
+
+  // Evaluates many strategies; results are bit-identical to evaluate() on each. A strategy
+  // that cannot be estimated yields its error message instead of a result.
+  struct Outcome {
+    std::optional<EvaluationResult> result;
+    std::string error;
+    int error_code = 0;
+  };
+  std::vector<Outcome> evaluate_many(const std::vector<ReturnInput>& strategies,
+                                     int threads = 0) const;
+
+  Frequency frequency() const { return frequency_; }
+
+ private:
+  struct Prepared;  // one strategy aligned on the shared sample
+  Prepared prepare(const ReturnInput& strategy) const;
+  EvaluationResult finish(Prepared&& prepared, OlsResult&& fit) const;
+
+  EvaluationSettings settings_;
+  Frequency frequency_;
+  std::string rate_tenor_;
+  std::vector<std::string> factor_names_;
+  std::vector<std::string> term_names_;
+  std::vector<std::string> shared_preparation_;
+  std::vector<std::string> shared_warnings_;
+  std::optional<CommonSample> common_;
+};
+
+// Context for the plain-language reading that only the ledger knows.
+struct ReadingContext {
+  std::string study;      // empty when the run belongs to no study
+  int study_trials = 0;   // runs of this study in the ledger, this one included
+  int strategy_runs = 0;  // runs of this strategy in the ledger, this one included
+};
+
+// Returns the plain-language reading of a result: exposure, alpha's size and significance,
+// sample and multiple-trial warnings, and the cautions.
+std::vector<std::string> compose_reading(const EvaluationResult& result,
+                                         const EvaluationSettings& settings,
+                                         const ReadingContext& context);
+
+// The cautions that go with every result that could lead someone to risk money.
+const std::vector<std::string>& standard_cautions();
+
+}  // namespace alphatrail::core

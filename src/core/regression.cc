@@ -1,0 +1,465 @@
+#include "core/regression.h"
+
+#include <boost/math/distributions/fisher_f.hpp>
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <exception>
+#include <limits>
+#include <thread>
+
+#include "core/error.h"
+#include "core/student_t.h"
+
+namespace alphatrail::core {
+namespace {
+
+constexpr double nan_value = std::numeric_limits<double>::quiet_NaN();
+
+// A pivot of the scaled QR at or below this fraction of the largest one counts as zero: the
+// regressors are collinear (exactly, up to rounding of the data).
+constexpr double collinear_tolerance = 1e-13;
+// Above this 2-norm condition number of the column-scaled design, refuse: the rounding of the
+// inputs to double alone (relative 1e-16 each) may move the solution by cond * 1e-16, so fewer
+// than 6 of its digits would be determined by the data. (NIST Filip, 5e9, keeps 7 digits.)
+constexpr double condition_limit = 1e10;
+// Refinement of the least-squares solution: at most this many passes after the first solve;
+// stop once a correction is this small or stops shrinking; refuse when the last correction
+// is larger than trusted_correction of the solution (fewer than about 9 digits settled).
+constexpr int max_refinements = 6;
+constexpr double settled_correction = 1e-12;
+constexpr double trusted_correction = 1e-9;
+
+std::string quoted(const std::string& name) { return "'" + name + "'"; }
+
+// Joins names as "'a'", "'a' and 'b'", "'a', 'b' and 'c'".
+std::string join_names(const std::vector<std::string>& names) {
+  std::string text;
+  for (std::size_t i = 0; i < names.size(); ++i) {
+    if (i > 0) text += (i + 1 == names.size()) ? " and " : ", ";
+    text += quoted(names[i]);
+  }
+  return text;
+}
+
+std::string format_general(double value) {
+  char buffer[32];
+  std::snprintf(buffer, sizeof buffer, "%.3g", value);
+  return buffer;
+}
+
+[[noreturn]] void estimation_error(const std::string& message) {
+  throw Error(ExitCode::estimation, message);
+}
+
+// Everything about the design that does not depend on y: computed once, shared by every
+// column of a batch, so fit_ols and fit_ols_many run the very same arithmetic.
+struct Design {
+  const Eigen::MatrixXd* X = nullptr;  // the caller's design, alive during the call
+  std::vector<std::string> names;
+  bool has_intercept = false;
+  int n = 0;
+  int k = 0;
+  Eigen::VectorXd scale;                        // column norms of X
+  Eigen::ColPivHouseholderQR<Eigen::MatrixXd> qr;  // of X with unit-norm columns
+  Eigen::MatrixXd upper;                        // R, k x k
+  Eigen::MatrixXd q;                            // thin Q, T x k
+  Eigen::MatrixXd a;                            // D^-1 P R^-1: X'X^-1 = A A'
+  Eigen::MatrixXd xtx_inv;                      // (X'X)^-1 = A A'
+  Eigen::VectorXd leverage;                     // h_t = ||Q_t||^2
+  double condition_number = 0;
+};
+
+void check_finite_design(const Eigen::MatrixXd& X, const std::vector<std::string>& names) {
+  for (Eigen::Index j = 0; j < X.cols(); ++j) {
+    for (Eigen::Index t = 0; t < X.rows(); ++t) {
+      if (!std::isfinite(X(t, j))) {
+        estimation_error("regressor " + quoted(names[j]) + " has a non-finite value at observation " +
+                         std::to_string(t + 1) + "; remove or fill that observation");
+      }
+    }
+  }
+}
+
+bool is_constant(const Eigen::MatrixXd& X, Eigen::Index j) {
+  const double first = X(0, j);
+  for (Eigen::Index t = 1; t < X.rows(); ++t) {
+    if (X(t, j) != first) return false;
+  }
+  return true;
+}
+
+// Checks zero and duplicate-intercept columns, which deserve a plainer message than the
+// general collinearity one.
+void check_special_columns(const Eigen::MatrixXd& X, const std::vector<std::string>& names,
+                           bool has_intercept) {
+  Eigen::Index intercept = -1;
+  for (Eigen::Index j = 0; j < X.cols(); ++j) {
+    if (X.col(j).cwiseAbs().maxCoeff() == 0) {
+      estimation_error("regressor " + quoted(names[j]) +
+                       " is zero in every observation; drop it");
+    }
+    if (!is_constant(X, j)) continue;
+    if (intercept < 0) {
+      intercept = j;
+    } else if (has_intercept) {
+      estimation_error("regressor " + quoted(names[j]) + " is constant, which duplicates the intercept " +
+                       quoted(names[intercept]) + "; drop it");
+    }
+  }
+  if (has_intercept && intercept < 0) {
+    throw Error(ExitCode::failure,
+                "fit_ols: has_intercept is set but no column of the design is constant; "
+                "add a column of ones or clear has_intercept");
+  }
+}
+
+// Names the regressors that the rank-deficient QR shows to be collinear: each column beyond
+// the rank together with the columns it is a combination of.
+[[noreturn]] void collinear_error(const Design& d, Eigen::Index rank) {
+  const Eigen::Index k = d.k;
+  const auto& perm = d.qr.colsPermutation().indices();
+  Eigen::MatrixXd r = d.qr.matrixR().topLeftCorner(k, k).triangularView<Eigen::Upper>();
+  std::vector<bool> involved(static_cast<std::size_t>(k), false);
+  for (Eigen::Index j = rank; j < k; ++j) {
+    involved[static_cast<std::size_t>(perm(j))] = true;
+    if (rank == 0) continue;
+    // Unit-norm columns: column j ~ (kept columns) z with R11 z = R12(:, j).
+    Eigen::VectorXd z = r.topLeftCorner(rank, rank).triangularView<Eigen::Upper>().solve(
+        r.col(j).head(rank));
+    const double biggest = std::max(1.0, z.cwiseAbs().maxCoeff());
+    for (Eigen::Index i = 0; i < rank; ++i) {
+      if (std::fabs(z(i)) > 1e-8 * biggest) involved[static_cast<std::size_t>(perm(i))] = true;
+    }
+  }
+  std::vector<std::string> names;
+  for (Eigen::Index j = 0; j < k; ++j) {
+    if (involved[static_cast<std::size_t>(j)]) names.push_back(d.names[static_cast<std::size_t>(j)]);
+  }
+  const Eigen::Index drop = k - rank;
+  estimation_error("regressors " + join_names(names) + " are collinear (rank " + std::to_string(rank) +
+                   " of " + std::to_string(k) + "); drop " +
+                   (drop == 1 ? std::string("one") : std::to_string(drop)) + " of them");
+}
+
+Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names, bool has_intercept) {
+  Design d;
+  d.X = &X;
+  d.names = names;
+  d.has_intercept = has_intercept;
+  d.n = static_cast<int>(X.rows());
+  d.k = static_cast<int>(X.cols());
+  if (static_cast<Eigen::Index>(names.size()) != X.cols()) {
+    throw Error(ExitCode::failure, "fit_ols: " + std::to_string(names.size()) + " names for " +
+                                       std::to_string(X.cols()) + " columns; pass one name per column");
+  }
+  if (d.k < 1) throw Error(ExitCode::failure, "fit_ols: the design has no column; add a regressor");
+  if (d.n < d.k + 2) {
+    estimation_error("sample too short: " + std::to_string(d.n) + " observations for " +
+                     std::to_string(d.k) + " coefficients; need at least " + std::to_string(d.k + 2));
+  }
+  check_finite_design(X, names);
+  check_special_columns(X, names, has_intercept);
+
+  d.scale = X.colwise().norm().transpose();
+  Eigen::MatrixXd scaled = X * d.scale.cwiseInverse().asDiagonal();
+  d.qr.setThreshold(collinear_tolerance);
+  d.qr.compute(scaled);
+  const Eigen::Index rank = d.qr.rank();
+  if (rank < d.k) collinear_error(d, rank);
+
+  d.upper = d.qr.matrixR().topLeftCorner(d.k, d.k).triangularView<Eigen::Upper>();
+  Eigen::JacobiSVD<Eigen::MatrixXd> svd(d.upper);
+  const auto& sv = svd.singularValues();
+  d.condition_number = sv(0) / sv(sv.size() - 1);
+  if (!(d.condition_number <= condition_limit)) {
+    estimation_error("design is too ill-conditioned (condition number " + format_general(d.condition_number) +
+                     " after scaling the columns) for double precision; rescale or drop regressors");
+  }
+
+  d.q = d.qr.householderQ() * Eigen::MatrixXd::Identity(d.n, d.k);  // thin Q
+  d.leverage = d.q.rowwise().squaredNorm();
+  Eigen::MatrixXd r_inv = d.upper.triangularView<Eigen::Upper>().solve(Eigen::MatrixXd::Identity(d.k, d.k));
+  d.a = d.qr.colsPermutation() * r_inv;           // rows permuted: P R^-1
+  d.a = d.scale.cwiseInverse().asDiagonal() * d.a;  // D^-1 P R^-1
+  d.xtx_inv = d.a * d.a.transpose();
+  return d;
+}
+
+// Solves min ||y - X beta|| with the QR and refines the solution on the augmented system
+// [I X; X' 0][r; beta] = [y; 0] (Bjorck 1967), computing its residuals in long double from
+// the unscaled data. The first pass is the plain QR solution; the refinement restores the
+// digits that the plain solve loses on ill-conditioned or large-residual problems (NIST
+// Wampler5) and shows whether the answer can be trusted: when the corrections do not settle,
+// the design is refused as too ill-conditioned. A well-conditioned design takes one
+// refinement pass.
+void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& beta, Eigen::VectorXd& r) {
+  const Eigen::MatrixXd& X = *d.X;
+  const auto& perm = d.qr.colsPermutation();
+  beta = Eigen::VectorXd::Zero(d.k);
+  r = Eigen::VectorXd::Zero(d.n);
+  Eigen::VectorXd f = y;                       // pass 0: f = y - r - X beta = y
+  Eigen::VectorXd gs = Eigen::VectorXd::Zero(d.k);  // pass 0: g = -X' r = 0
+  std::vector<long double> g(static_cast<std::size_t>(d.k));
+  double correction = std::numeric_limits<double>::infinity();
+  for (int pass = 0; pass <= max_refinements; ++pass) {
+    if (pass > 0) {
+      // f = y - r - X beta and g = -X' r, accumulated in extended precision.
+      std::fill(g.begin(), g.end(), 0.0L);
+      for (int t = 0; t < d.n; ++t) {
+        long double acc = static_cast<long double>(y(t)) - r(t);
+        for (int j = 0; j < d.k; ++j) {
+          acc -= static_cast<long double>(X(t, j)) * beta(j);
+          g[static_cast<std::size_t>(j)] -= static_cast<long double>(X(t, j)) * r(t);
+        }
+        f(t) = static_cast<double>(acc);
+      }
+      for (int j = 0; j < d.k; ++j) gs(j) = static_cast<double>(g[static_cast<std::size_t>(j)]) / d.scale(j);
+    }
+    // With X = Q R P' D (thin Q): h = R^-T P' D^-1 g, c = Q'f, w = R^-1 (c - h),
+    // dr = Q h + (I - Q Q') f = f - Q (c - h).
+    const Eigen::VectorXd h = d.upper.triangularView<Eigen::Upper>().transpose().solve(perm.transpose() * gs);
+    const Eigen::VectorXd c = d.q.transpose() * f - h;
+    const Eigen::VectorXd w = d.upper.triangularView<Eigen::Upper>().solve(c);
+    beta += (perm * w).cwiseQuotient(d.scale);
+    r += f - d.q * c;
+    // Size of the correction relative to the solution, in the scaled coordinates.
+    const double size = (perm.transpose() * beta.cwiseProduct(d.scale)).norm();
+    const double previous = correction;
+    correction = size > 0 ? w.norm() / size : 0.0;
+    if (pass == 0) continue;
+    if (correction <= settled_correction || correction > 0.5 * previous) break;
+  }
+  if (!(correction <= trusted_correction)) {
+    estimation_error("design is too ill-conditioned (condition number " + format_general(d.condition_number) +
+                     " after scaling the columns) for double precision: the solution does not settle "
+                     "(last correction " + format_general(correction) + " of its size); rescale or drop regressors");
+  }
+}
+
+// Returns the robust "meat" Q' S Q in the orthogonal basis from the scores u_t = q_t e_t c_t
+// (c_t = 1, or the HC2/HC3 leverage factor): sum u_t u_t', plus for Newey-West the Bartlett-
+// weighted autocovariances sum_l w_l (G_l + G_l'), G_l = sum_{t>l} u_t u_{t-l}'.
+Eigen::MatrixXd robust_meat(const Design& d, const Eigen::VectorXd& e, ErrorKind kind, int lags) {
+  Eigen::VectorXd factor = e;
+  if (kind == ErrorKind::hc2 || kind == ErrorKind::hc3) {
+    for (int t = 0; t < d.n; ++t) {
+      const double room = 1 - d.leverage(t);
+      if (!(room > 1e-12)) {
+        estimation_error("observation " + std::to_string(t + 1) +
+                         " has leverage 1, so HC2 and HC3 errors are undefined; use hc1 or "
+                         "newey-west errors, or drop that observation");
+      }
+      factor(t) = kind == ErrorKind::hc2 ? e(t) / std::sqrt(room) : e(t) / room;
+    }
+  }
+  const Eigen::MatrixXd u = d.q.array().colwise() * factor.array();
+  Eigen::MatrixXd meat = u.transpose() * u;
+  if (lags == 0) return meat;
+  // sum_l w_l G_l = U' V with v_t = sum_l w_l u_{t-l}: one product instead of one per lag.
+  Eigen::MatrixXd v = Eigen::MatrixXd::Zero(d.n, d.k);
+  for (int l = 1; l <= lags; ++l) {
+    const double w = 1.0 - static_cast<double>(l) / (lags + 1);
+    v.bottomRows(d.n - l) += w * u.topRows(d.n - l);
+  }
+  const Eigen::MatrixXd g = u.transpose() * v;
+  meat += g + g.transpose();
+  return meat;
+}
+
+int resolve_lags(const CovarianceOptions& opts, int n) {
+  if (opts.kind != ErrorKind::newey_west) return 0;
+  if (opts.lags == -1) return auto_newey_west_lags(n);
+  if (opts.lags < 0 || opts.lags >= n) {
+    estimation_error("Newey-West lag " + std::to_string(opts.lags) + " is out of range for " +
+                     std::to_string(n) + " observations; use a lag from 0 to " + std::to_string(n - 1) +
+                     " or -1 for the automatic rule");
+  }
+  return opts.lags;
+}
+
+// Fits one response on a factorized design; the single code path of fit_ols and fit_ols_many.
+OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const CovarianceOptions& opts,
+                     double confidence, const std::string& what) {
+  const Eigen::MatrixXd& X = *d.X;
+  if (y.size() != d.n) {
+    throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
+                                       std::to_string(d.n) + " design rows; pass one response per row");
+  }
+  for (int t = 0; t < d.n; ++t) {
+    if (!std::isfinite(y(t))) {
+      estimation_error(what + " has a non-finite value at observation " + std::to_string(t + 1) +
+                       "; remove or fill that observation");
+    }
+  }
+  OlsResult res;
+  res.n = d.n;
+  res.k = d.k;
+  res.df = d.n - d.k;
+  res.has_intercept = d.has_intercept;
+  res.errors = opts.kind;
+  res.confidence = confidence;
+  res.condition_number = d.condition_number;
+  res.lags = resolve_lags(opts, d.n);
+
+  solve_refined(d, y, res.beta, res.residuals);
+  res.fitted = X * res.beta;
+
+  res.rss = res.residuals.squaredNorm();
+  if (d.has_intercept) {
+    res.tss = (y.array() - y.mean()).matrix().squaredNorm();
+  } else {
+    res.tss = y.squaredNorm();
+  }
+  const double dfd = res.df;
+  res.r_squared = res.tss > 0 ? 1 - res.rss / res.tss : nan_value;
+  const double centered = d.has_intercept ? 1.0 : 0.0;
+  res.adj_r_squared = 1 - (1 - res.r_squared) * (d.n - centered) / dfd;
+  const double s2 = res.rss / dfd;
+  res.residual_std = std::sqrt(s2);
+
+  const int q_tested = d.k - (d.has_intercept ? 1 : 0);
+  if (q_tested > 0) {
+    res.f_stat = ((res.tss - res.rss) / q_tested) / s2;
+    if (std::isnan(res.f_stat)) {
+      res.f_p_value = nan_value;
+    } else if (std::isinf(res.f_stat)) {
+      res.f_p_value = 0;
+    } else {
+      boost::math::fisher_f_distribution<double> f(q_tested, dfd);
+      res.f_p_value = boost::math::cdf(boost::math::complement(f, std::max(0.0, res.f_stat)));
+    }
+  } else {
+    res.f_stat = nan_value;
+    res.f_p_value = nan_value;
+  }
+
+  const double small_sample_factor = static_cast<double>(d.n) / static_cast<double>(d.n - d.k);
+  switch (opts.kind) {
+    case ErrorKind::classic:
+      res.covariance = s2 * d.xtx_inv;
+      break;
+    case ErrorKind::hc0:
+    case ErrorKind::hc1:
+    case ErrorKind::hc2:
+    case ErrorKind::hc3:
+    case ErrorKind::newey_west: {
+      const ErrorKind weights = opts.kind == ErrorKind::hc1 ? ErrorKind::hc0 : opts.kind;
+      const Eigen::MatrixXd meat = robust_meat(d, res.residuals, weights, res.lags);
+      Eigen::MatrixXd v = d.a * meat * d.a.transpose();
+      res.covariance = 0.5 * (v + v.transpose());
+      if (opts.kind == ErrorKind::hc1 || (opts.kind == ErrorKind::newey_west && opts.small_sample)) {
+        res.covariance *= small_sample_factor;
+        res.small_sample_applied = true;
+      }
+      break;
+    }
+  }
+
+  const double crit = student_t_quantile(0.5 + confidence / 2, dfd);
+  res.coefficients.resize(static_cast<std::size_t>(d.k));
+  for (int j = 0; j < d.k; ++j) {
+    Coefficient& c = res.coefficients[static_cast<std::size_t>(j)];
+    c.term = d.names[static_cast<std::size_t>(j)];
+    c.estimate = res.beta(j);
+    c.std_error = std::sqrt(res.covariance(j, j));
+    c.t_stat = c.estimate / c.std_error;
+    c.p_value = student_t_two_sided_p(c.t_stat, dfd);
+    c.ci_low = c.estimate - crit * c.std_error;
+    c.ci_high = c.estimate + crit * c.std_error;
+  }
+  return res;
+}
+
+void check_confidence(double confidence) {
+  if (!(confidence > 0 && confidence < 1)) {
+    throw Error(ExitCode::failure, "fit_ols: confidence " + std::to_string(confidence) +
+                                       " is outside (0, 1); pass e.g. 0.95");
+  }
+}
+
+}  // namespace
+
+const char* error_kind_name(ErrorKind kind) {
+  switch (kind) {
+    case ErrorKind::classic: return "classic";
+    case ErrorKind::hc0: return "hc0";
+    case ErrorKind::hc1: return "hc1";
+    case ErrorKind::hc2: return "hc2";
+    case ErrorKind::hc3: return "hc3";
+    case ErrorKind::newey_west: return "newey-west";
+  }
+  return "unknown";
+}
+
+std::optional<ErrorKind> parse_error_kind(std::string_view name) {
+  for (ErrorKind kind : {ErrorKind::classic, ErrorKind::hc0, ErrorKind::hc1, ErrorKind::hc2, ErrorKind::hc3,
+                         ErrorKind::newey_west}) {
+    if (name == error_kind_name(kind)) return kind;
+  }
+  return std::nullopt;
+}
+
+int auto_newey_west_lags(int T) {
+  if (T <= 0) return 0;
+  return static_cast<int>(std::floor(4.0 * std::pow(T / 100.0, 2.0 / 9.0)));
+}
+
+OlsResult fit_ols(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const std::vector<std::string>& names,
+                  bool has_intercept, const CovarianceOptions& opts, double confidence) {
+  check_confidence(confidence);
+  if (y.size() != X.rows()) {
+    throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
+                                       std::to_string(X.rows()) + " design rows; pass one response per row");
+  }
+  const Design d = factorize(X, names, has_intercept);
+  return fit_column(d, y, opts, confidence, "the response");
+}
+
+std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::MatrixXd& Y,
+                                    const std::vector<std::string>& names, bool has_intercept,
+                                    const CovarianceOptions& opts, double confidence, int threads) {
+  check_confidence(confidence);
+  if (Y.rows() != X.rows()) {
+    throw Error(ExitCode::failure, "fit_ols_many: " + std::to_string(Y.rows()) + " response rows for " +
+                                       std::to_string(X.rows()) + " design rows; pass one row per period");
+  }
+  const Design d = factorize(X, names, has_intercept);
+  const Eigen::Index m = Y.cols();
+  std::vector<OlsResult> results(static_cast<std::size_t>(m));
+  std::vector<std::exception_ptr> failures(static_cast<std::size_t>(m));
+
+  auto run_range = [&](Eigen::Index begin, Eigen::Index end) {
+    for (Eigen::Index j = begin; j < end; ++j) {
+      try {
+        const Eigen::VectorXd y = Y.col(j);
+        results[static_cast<std::size_t>(j)] =
+            fit_column(d, y, opts, confidence, "response column " + std::to_string(j + 1));
+      } catch (...) {
+        failures[static_cast<std::size_t>(j)] = std::current_exception();
+      }
+    }
+  };
+
+  int workers = threads > 0 ? threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  workers = static_cast<int>(std::min<Eigen::Index>(workers, std::max<Eigen::Index>(1, m / 16)));
+  if (workers <= 1) {
+    run_range(0, m);
+  } else {
+    std::vector<std::thread> pool;
+    const Eigen::Index chunk = (m + workers - 1) / workers;
+    for (int w = 0; w < workers; ++w) {
+      const Eigen::Index begin = std::min<Eigen::Index>(m, w * chunk);
+      const Eigen::Index end = std::min<Eigen::Index>(m, begin + chunk);
+      pool.emplace_back(run_range, begin, end);
+    }
+    for (auto& thread : pool) thread.join();
+  }
+  for (const auto& failure : failures) {
+    if (failure) std::rethrow_exception(failure);
+  }
+  return results;
+}
+
+}  // namespace alphatrail::core

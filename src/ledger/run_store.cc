@@ -1,0 +1,440 @@
+#include "ledger/run_store.h"
+
+#include <SQLiteCpp/Statement.h>
+#include <fmt/format.h>
+
+#include <cmath>
+
+#include "core/error.h"
+#include "core/sha256.h"
+#include "ledger/series_store.h"
+#include "version.h"
+
+namespace alphatrail::ledger {
+
+namespace {
+
+using ordered_json = nlohmann::ordered_json;
+
+ordered_json number(double v) {
+  if (!std::isfinite(v)) return nullptr;
+  return v;
+}
+
+// Text of a double that survives a round trip through SQLite: NaN is stored as NULL.
+std::string canonical_double(double v) {
+  if (std::isnan(v)) return "null";
+  return fmt::format("{}", v);
+}
+
+template <typename T>
+std::string canonical_optional(const std::optional<T>& v) {
+  if (!v) return "null";
+  return fmt::format("{}", *v);
+}
+
+void bind_double(SQLite::Statement& q, int index, double v) {
+  if (std::isnan(v))
+    q.bind(index);
+  else
+    q.bind(index, v);
+}
+
+double column_double(const SQLite::Column& c) { return c.isNull() ? NAN : c.getDouble(); }
+
+std::optional<std::string> column_text(const SQLite::Column& c) {
+  if (c.isNull()) return std::nullopt;
+  return c.getString();
+}
+
+std::optional<std::string> non_empty(const std::string& s) {
+  if (s.empty()) return std::nullopt;
+  return s;
+}
+
+}  // namespace
+
+std::string inputs_hash(const std::string& engine_version, const nlohmann::json& parameters,
+                        const std::vector<RunInput>& inputs) {
+  core::Sha256 h;
+  h.update("alphatrail inputs v1\nengine: ");
+  h.update(engine_version);
+  h.update("\nparameters: ");
+  h.update(parameters.dump());  // nlohmann::json keeps keys sorted: a canonical form
+  h.update("\n");
+  for (const auto& in : inputs)
+    h.update(fmt::format("input: {} {} {} {} {} {}\n", in.role, in.position, in.series,
+                         in.version, in.content_hash, fmt::join(in.columns, ",")));
+  return h.hex();
+}
+
+ordered_json result_json(const core::EvaluationResult& r, const std::vector<std::string>& reading) {
+  const auto& fit = r.fit;
+  const auto& d = r.derived;
+  ordered_json dropped = ordered_json::array();
+  for (const auto& p : r.sample.dropped) dropped.push_back({{"period", p.label}, {"reason", p.reason}});
+  ordered_json by_reason = ordered_json::object();
+  for (const auto& [reason, count] : r.sample.dropped_by_reason) by_reason[reason] = count;
+  ordered_json sample = {{"first", r.sample.first},
+                         {"last", r.sample.last},
+                         {"observations", r.sample.observations},
+                         {"frequency", core::frequency_name(r.sample.frequency)},
+                         {"periods_per_year", d.periods_per_year},
+                         {"dropped", r.sample.dropped.size()},
+                         {"dropped_by_reason", by_reason},
+                         {"dropped_periods", dropped},
+                         {"gaps", r.sample.gaps}};
+  ordered_json coefficients = ordered_json::array();
+  for (const auto& c : fit.coefficients)
+    coefficients.push_back({{"term", c.term},
+                            {"estimate", number(c.estimate)},
+                            {"std_error", number(c.std_error)},
+                            {"t_stat", number(c.t_stat)},
+                            {"p_value", number(c.p_value)},
+                            {"ci_low", number(c.ci_low)},
+                            {"ci_high", number(c.ci_high)}});
+  ordered_json statistics = {
+      {"r_squared", number(fit.r_squared)},
+      {"adj_r_squared", number(fit.adj_r_squared)},
+      {"residual_std", number(fit.residual_std)},
+      {"f_stat", number(fit.f_stat)},
+      {"f_p_value", number(fit.f_p_value)},
+      {"observations", fit.n},
+      {"coefficients", fit.k},
+      {"degrees_of_freedom", fit.df},
+      {"errors", core::error_kind_name(fit.errors)},
+      {"lags", fit.lags},
+      {"small_sample_factor", fit.small_sample_applied},
+      {"confidence", fit.confidence},
+      {"condition_number", number(fit.condition_number)},
+      {"alpha_annualized", number(d.alpha_annualized)},
+      {"appraisal_ratio", number(d.appraisal_ratio)},
+      {"sharpe_strategy", number(d.sharpe_strategy)},
+      {"sharpe_benchmark", number(d.sharpe_benchmark)},
+      {"treynor_ratio", number(d.treynor_ratio)},
+      {"tracking_error", number(d.tracking_error)},
+      {"information_ratio", number(d.information_ratio)},
+      {"correlation", number(d.correlation)},
+      {"mean_excess_strategy", number(d.mean_excess_strategy)},
+      {"mean_excess_benchmark", number(d.mean_excess_benchmark)},
+      {"up_market_beta", number(d.up_market_beta)},
+      {"down_market_beta", number(d.down_market_beta)},
+      {"up_periods", d.up_periods},
+      {"down_periods", d.down_periods}};
+  return {{"sample", sample},
+          {"coefficients", coefficients},
+          {"statistics", statistics},
+          {"reading", reading},
+          {"preparation", r.sample.preparation},
+          {"warnings", r.sample.warnings}};
+}
+
+std::string canonical_run_record(const RunRow& r) {
+  std::string text = fmt::format(
+      "alphatrail run v1\nrun_id: {}\ncreated_at: {}\nengine_version: {}\nstrategy: {}\n"
+      "benchmark: {}\nrate: {}\nfactors: {}\nstudy: {}\nnote: {}\nrevises_run_id: {}\n"
+      "parameters: {}\ninputs_hash: {}\nsample: {} {} {} {} {}\nerrors: {} {}\n"
+      "headline: {} {} {} {} {} {} {} {}\nresult: {}\nprevious: {}\n",
+      r.run_id, r.created_at, r.engine_version, r.strategy, r.benchmark, r.rate,
+      canonical_optional(r.factors), canonical_optional(r.study), canonical_optional(r.note),
+      canonical_optional(r.revises_run_id), r.parameters_json, r.inputs_hash, r.frequency,
+      r.first_period, r.last_period, r.observations, r.dropped_periods, r.errors, r.lags,
+      canonical_double(r.alpha), canonical_double(r.alpha_std_error), canonical_double(r.alpha_t),
+      canonical_double(r.alpha_p), canonical_double(r.alpha_annualized), canonical_double(r.beta),
+      canonical_double(r.beta_t), canonical_double(r.r_squared), r.result_json,
+      r.previous_record_hash);
+  for (const auto& in : r.inputs)
+    text += fmt::format("input: {} {} {} {}\n", in.role, in.position, in.version_id, in.columns);
+  for (const auto& c : r.coefficients)
+    text += fmt::format("coefficient: {} {} {} {} {} {} {}\n", c.term, canonical_double(c.estimate),
+                        canonical_double(c.std_error), canonical_double(c.t_stat),
+                        canonical_double(c.p_value), canonical_double(c.ci_low),
+                        canonical_double(c.ci_high));
+  return text;
+}
+
+std::string chain_hash(const std::string& previous_record_hash, const std::string& record) {
+  return core::sha256_hex(previous_record_hash + "\n" + record);
+}
+
+std::int64_t store_run(Ledger& ledger, const NewRun& run) {
+  auto& db = ledger.db();
+  const core::EvaluationResult& r = *run.result;
+  const auto& alpha = r.fit.coefficients.at(0);
+  const auto& beta = r.fit.coefficients.at(1);
+
+  RunRow row;
+  row.run_id = db.execAndGet("SELECT coalesce(max(run_id), 0) + 1 FROM runs").getInt64();
+  row.created_at = utc_now();
+  row.engine_version = kEngineVersion;
+  row.strategy = run.strategy;
+  row.benchmark = run.benchmark;
+  row.rate = run.rate;
+  row.factors = non_empty(run.factors);
+  row.study = non_empty(run.study);
+  row.note = non_empty(run.note);
+  row.revises_run_id = run.revises_run_id;
+  row.parameters_json = run.parameters.dump();
+  row.inputs_hash = inputs_hash(kEngineVersion, run.parameters, run.inputs);
+  row.frequency = core::frequency_name(r.sample.frequency);
+  row.first_period = r.sample.first;
+  row.last_period = r.sample.last;
+  row.observations = r.sample.observations;
+  row.dropped_periods = static_cast<int>(r.sample.dropped.size());
+  row.errors = core::error_kind_name(r.fit.errors);
+  row.lags = r.fit.lags;
+  row.alpha = alpha.estimate;
+  row.alpha_std_error = alpha.std_error;
+  row.alpha_t = alpha.t_stat;
+  row.alpha_p = alpha.p_value;
+  row.alpha_annualized = r.derived.alpha_annualized;
+  row.beta = beta.estimate;
+  row.beta_t = beta.t_stat;
+  row.r_squared = r.fit.r_squared;
+  row.result_json = result_json(r, run.reading).dump();
+  {
+    SQLite::Statement last(db, "SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
+    row.previous_record_hash = last.executeStep() ? last.getColumn(0).getString() : kGenesisHash;
+  }
+  for (const auto& in : run.inputs)
+    row.inputs.push_back({in.role, in.position, in.version_id, fmt::format("{}", fmt::join(in.columns, ","))});
+  row.coefficients = r.fit.coefficients;
+  row.record_hash = chain_hash(row.previous_record_hash, canonical_run_record(row));
+
+  SQLite::Statement insert(
+      db,
+      "INSERT INTO runs (run_id, created_at, engine_version, strategy, benchmark, rate, factors, "
+      "study, note, revises_run_id, parameters_json, inputs_hash, frequency, first_period, "
+      "last_period, observations, dropped_periods, errors, lags, alpha, alpha_std_error, alpha_t, "
+      "alpha_p, alpha_annualized, beta, beta_t, r_squared, result_json, previous_record_hash, "
+      "record_hash) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, "
+      "?, ?, ?, ?, ?, ?, ?)");
+  int i = 1;
+  const auto bind_optional = [&](const std::optional<std::string>& v) {
+    if (v) insert.bind(i, *v); else insert.bind(i);
+    ++i;
+  };
+  insert.bind(i++, row.run_id);
+  insert.bind(i++, row.created_at);
+  insert.bind(i++, row.engine_version);
+  insert.bind(i++, row.strategy);
+  insert.bind(i++, row.benchmark);
+  insert.bind(i++, row.rate);
+  bind_optional(row.factors);
+  bind_optional(row.study);
+  bind_optional(row.note);
+  if (row.revises_run_id) insert.bind(i++, *row.revises_run_id); else insert.bind(i++);
+  insert.bind(i++, row.parameters_json);
+  insert.bind(i++, row.inputs_hash);
+  insert.bind(i++, row.frequency);
+  insert.bind(i++, row.first_period);
+  insert.bind(i++, row.last_period);
+  insert.bind(i++, row.observations);
+  insert.bind(i++, row.dropped_periods);
+  insert.bind(i++, row.errors);
+  insert.bind(i++, row.lags);
+  for (double v : {row.alpha, row.alpha_std_error, row.alpha_t, row.alpha_p, row.alpha_annualized,
+                   row.beta, row.beta_t, row.r_squared})
+    bind_double(insert, i++, v);
+  insert.bind(i++, row.result_json);
+  insert.bind(i++, row.previous_record_hash);
+  insert.bind(i++, row.record_hash);
+  insert.exec();
+
+  SQLite::Statement add_input(
+      db, "INSERT INTO run_inputs (run_id, role, position, version_id, columns) VALUES (?, ?, ?, ?, ?)");
+  for (const auto& in : row.inputs) {
+    add_input.reset();
+    add_input.bind(1, row.run_id);
+    add_input.bind(2, in.role);
+    add_input.bind(3, in.position);
+    add_input.bind(4, in.version_id);
+    add_input.bind(5, in.columns);
+    add_input.exec();
+  }
+  SQLite::Statement add_coefficient(
+      db,
+      "INSERT INTO run_coefficients (run_id, position, term, estimate, std_error, t_stat, "
+      "p_value, ci_low, ci_high) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)");
+  for (std::size_t c = 0; c < row.coefficients.size(); ++c) {
+    const auto& co = row.coefficients[c];
+    add_coefficient.reset();
+    add_coefficient.bind(1, row.run_id);
+    add_coefficient.bind(2, static_cast<int>(c + 1));
+    add_coefficient.bind(3, co.term);
+    int k = 4;
+    for (double v : {co.estimate, co.std_error, co.t_stat, co.p_value, co.ci_low, co.ci_high})
+      bind_double(add_coefficient, k++, v);
+    add_coefficient.exec();
+  }
+  return row.run_id;
+}
+
+std::optional<RunRow> read_run_row(Ledger& ledger, std::int64_t run_id) {
+  auto& db = ledger.db();
+  SQLite::Statement q(
+      db,
+      "SELECT run_id, created_at, engine_version, strategy, benchmark, rate, factors, study, "
+      "note, revises_run_id, parameters_json, inputs_hash, frequency, first_period, last_period, "
+      "observations, dropped_periods, errors, lags, alpha, alpha_std_error, alpha_t, alpha_p, "
+      "alpha_annualized, beta, beta_t, r_squared, result_json, previous_record_hash, record_hash "
+      "FROM runs WHERE run_id = ?");
+  q.bind(1, run_id);
+  if (!q.executeStep()) return std::nullopt;
+  RunRow r;
+  r.run_id = q.getColumn(0).getInt64();
+  r.created_at = q.getColumn(1).getString();
+  r.engine_version = q.getColumn(2).getString();
+  r.strategy = q.getColumn(3).getString();
+  r.benchmark = q.getColumn(4).getString();
+  r.rate = q.getColumn(5).getString();
+  r.factors = column_text(q.getColumn(6));
+  r.study = column_text(q.getColumn(7));
+  r.note = column_text(q.getColumn(8));
+  if (!q.getColumn(9).isNull()) r.revises_run_id = q.getColumn(9).getInt64();
+  r.parameters_json = q.getColumn(10).getString();
+  r.inputs_hash = q.getColumn(11).getString();
+  r.frequency = q.getColumn(12).getString();
+  r.first_period = q.getColumn(13).getString();
+  r.last_period = q.getColumn(14).getString();
+  r.observations = q.getColumn(15).getInt();
+  r.dropped_periods = q.getColumn(16).getInt();
+  r.errors = q.getColumn(17).getString();
+  r.lags = q.getColumn(18).getInt();
+  r.alpha = column_double(q.getColumn(19));
+  r.alpha_std_error = column_double(q.getColumn(20));
+  r.alpha_t = column_double(q.getColumn(21));
+  r.alpha_p = column_double(q.getColumn(22));
+  r.alpha_annualized = column_double(q.getColumn(23));
+  r.beta = column_double(q.getColumn(24));
+  r.beta_t = column_double(q.getColumn(25));
+  r.r_squared = column_double(q.getColumn(26));
+  r.result_json = q.getColumn(27).getString();
+  r.previous_record_hash = q.getColumn(28).getString();
+  r.record_hash = q.getColumn(29).getString();
+
+  SQLite::Statement inputs(db,
+                           "SELECT role, position, version_id, columns FROM run_inputs WHERE "
+                           "run_id = ? ORDER BY CASE role WHEN 'strategy' THEN 1 WHEN "
+                           "'benchmark' THEN 2 WHEN 'rate' THEN 3 ELSE 4 END, position");
+  inputs.bind(1, run_id);
+  while (inputs.executeStep())
+    r.inputs.push_back({inputs.getColumn(0).getString(), inputs.getColumn(1).getInt(),
+                        inputs.getColumn(2).getInt64(), inputs.getColumn(3).getString()});
+  SQLite::Statement coefficients(db,
+                                 "SELECT term, estimate, std_error, t_stat, p_value, ci_low, "
+                                 "ci_high FROM run_coefficients WHERE run_id = ? ORDER BY position");
+  coefficients.bind(1, run_id);
+  while (coefficients.executeStep()) {
+    core::Coefficient c;
+    c.term = coefficients.getColumn(0).getString();
+    c.estimate = column_double(coefficients.getColumn(1));
+    c.std_error = column_double(coefficients.getColumn(2));
+    c.t_stat = column_double(coefficients.getColumn(3));
+    c.p_value = column_double(coefficients.getColumn(4));
+    c.ci_low = column_double(coefficients.getColumn(5));
+    c.ci_high = column_double(coefficients.getColumn(6));
+    r.coefficients.push_back(c);
+  }
+  return r;
+}
+
+int count_study_runs(Ledger& ledger, const std::string& study) {
+  if (study.empty()) return 0;
+  SQLite::Statement q(ledger.db(), "SELECT count(*) FROM runs WHERE study = ?");
+  q.bind(1, study);
+  q.executeStep();
+  return q.getColumn(0).getInt();
+}
+
+int count_strategy_runs(Ledger& ledger, const std::string& strategy) {
+  SQLite::Statement q(ledger.db(), "SELECT count(*) FROM runs WHERE strategy = ?");
+  q.bind(1, strategy);
+  q.executeStep();
+  return q.getColumn(0).getInt();
+}
+
+ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
+  const auto row = read_run_row(ledger, run_id);
+  if (!row)
+    throw Error(ExitCode::not_found,
+                fmt::format("no run {} in {}; `alphatrail runs` lists them", run_id,
+                            ledger.path().string()));
+  ordered_json inputs = ordered_json::array();
+  SQLite::Statement q(ledger.db(),
+                      "SELECT i.role, i.position, s.name, v.version, v.content_hash, i.columns, "
+                      "v.source_file, coalesce(v.note, ''), (SELECT max(version) FROM "
+                      "series_versions w WHERE w.series_id = v.series_id) FROM run_inputs i "
+                      "JOIN series_versions v ON v.version_id = i.version_id JOIN series s ON "
+                      "s.series_id = v.series_id WHERE i.run_id = ? ORDER BY CASE i.role WHEN "
+                      "'strategy' THEN 1 WHEN 'benchmark' THEN 2 WHEN 'rate' THEN 3 ELSE 4 END, "
+                      "i.position");
+  q.bind(1, run_id);
+  while (q.executeStep())
+    inputs.push_back({{"role", q.getColumn(0).getString()},
+                      {"series", q.getColumn(2).getString()},
+                      {"version", q.getColumn(3).getInt()},
+                      {"content_hash", q.getColumn(4).getString()},
+                      {"columns", q.getColumn(5).getString()},
+                      {"source_file", q.getColumn(6).getString()},
+                      {"note", q.getColumn(7).getString()},
+                      {"latest_version", q.getColumn(8).getInt()}});
+  const auto result = ordered_json::parse(row->result_json);
+  ordered_json run = {{"run_id", row->run_id},
+                      {"created_at", row->created_at},
+                      {"engine_version", row->engine_version},
+                      {"inputs_hash", row->inputs_hash},
+                      {"strategy", row->strategy},
+                      {"benchmark", row->benchmark},
+                      {"rate", row->rate},
+                      {"factors", row->factors ? ordered_json(*row->factors) : ordered_json()},
+                      {"study", row->study ? ordered_json(*row->study) : ordered_json()},
+                      {"note", row->note ? ordered_json(*row->note) : ordered_json()},
+                      {"revises_run_id", row->revises_run_id ? ordered_json(*row->revises_run_id)
+                                                             : ordered_json()},
+                      {"parameters", ordered_json::parse(row->parameters_json)},
+                      {"inputs", inputs}};
+  for (const auto& [key, value] : result.items()) run[key] = value;
+  run["record_hash"] = row->record_hash;
+  return run;
+}
+
+std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter) {
+  SQLite::Statement q(
+      ledger.db(),
+      "SELECT r.run_id, r.created_at, r.strategy, r.benchmark, coalesce(r.study, ''), "
+      "r.inputs_hash, r.frequency, r.observations, r.alpha, r.alpha_annualized, r.alpha_t, "
+      "r.alpha_p, r.beta, r.r_squared, r.errors, r.lags, r.revises_run_id, EXISTS (SELECT 1 FROM "
+      "run_inputs i JOIN series_versions v ON v.version_id = i.version_id WHERE i.run_id = "
+      "r.run_id AND EXISTS (SELECT 1 FROM series_versions w WHERE w.series_id = v.series_id AND "
+      "w.version > v.version)) FROM runs r WHERE (?1 = '' OR r.strategy = ?1) AND (?2 = '' OR "
+      "r.study = ?2) ORDER BY r.run_id");
+  q.bind(1, filter.strategy);
+  q.bind(2, filter.study);
+  std::vector<RunSummary> out;
+  while (q.executeStep()) {
+    RunSummary s;
+    s.run_id = q.getColumn(0).getInt64();
+    s.created_at = q.getColumn(1).getString();
+    s.strategy = q.getColumn(2).getString();
+    s.benchmark = q.getColumn(3).getString();
+    s.study = q.getColumn(4).getString();
+    s.inputs_hash = q.getColumn(5).getString();
+    s.frequency = q.getColumn(6).getString();
+    s.observations = q.getColumn(7).getInt();
+    s.alpha = column_double(q.getColumn(8));
+    s.alpha_annualized = column_double(q.getColumn(9));
+    s.alpha_t = column_double(q.getColumn(10));
+    s.alpha_p = column_double(q.getColumn(11));
+    s.beta = column_double(q.getColumn(12));
+    s.r_squared = column_double(q.getColumn(13));
+    s.errors = q.getColumn(14).getString();
+    s.lags = q.getColumn(15).getInt();
+    if (!q.getColumn(16).isNull()) s.revises_run_id = q.getColumn(16).getInt64();
+    s.stale = q.getColumn(17).getInt() != 0;
+    out.push_back(s);
+  }
+  return out;
+}
+
+}  // namespace alphatrail::ledger

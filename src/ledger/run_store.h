@@ -1,0 +1,151 @@
+// Evaluation runs in the ledger: recording a run (with its inputs hash and its place in the
+// hash chain), counting and listing runs, and reading one back as the JSON run object.
+//
+// Runs are immutable. Each stores the SHA-256 of its own record and of the previous run's
+// record, so that editing, removing or reordering runs breaks the chain (`verify`).
+#pragma once
+
+#include <nlohmann/json.hpp>
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "core/evaluation.h"
+#include "ledger/ledger.h"
+
+namespace alphatrail::ledger {
+
+// One input version of a run and its role in it.
+struct RunInput {
+  std::string role;  // strategy | benchmark | rate | factor
+  int position = 1;  // order among inputs of the same role
+  std::int64_t version_id = 0;
+  std::string series;
+  int version = 0;
+  std::string content_hash;
+  std::vector<std::string> columns;  // columns used: the tenor, the factors
+};
+
+// Returns the inputs hash: SHA-256 over the engine version, the canonical parameters and
+// every input's role, position, series, version, content hash and columns.
+std::string inputs_hash(const std::string& engine_version, const nlohmann::json& parameters,
+                        const std::vector<RunInput>& inputs);
+
+// A run to record.
+struct NewRun {
+  std::string strategy;
+  std::string benchmark;
+  std::string rate;     // curve:tenor
+  std::string factors;  // "set:col,col; set2" or empty
+  std::string study;
+  std::string note;
+  std::optional<std::int64_t> revises_run_id;
+  nlohmann::json parameters;  // canonical: sorted keys, every default written out
+  std::vector<RunInput> inputs;
+  const core::EvaluationResult* result = nullptr;
+  std::vector<std::string> reading;
+};
+
+// Returns the result part of a run (sample, coefficients, statistics, reading, preparation,
+// warnings) as it is stored in runs.result_json.
+nlohmann::ordered_json result_json(const core::EvaluationResult& result,
+                                   const std::vector<std::string>& reading);
+
+// Records a run; must run inside Ledger::write_transaction. Returns its run id.
+std::int64_t store_run(Ledger& ledger, const NewRun& run);
+
+// Returns how many runs a study has (0 for an empty study name).
+int count_study_runs(Ledger& ledger, const std::string& study);
+// Returns how many runs a strategy has.
+int count_strategy_runs(Ledger& ledger, const std::string& strategy);
+
+// Returns the JSON run object of a run (the contract of `show --format json`); throws
+// Error(not_found) when absent.
+nlohmann::ordered_json load_run(Ledger& ledger, std::int64_t run_id);
+
+struct RunFilter {
+  std::string strategy;
+  std::string study;
+};
+
+// One line of `alphatrail runs`.
+struct RunSummary {
+  std::int64_t run_id = 0;
+  std::string created_at;
+  std::string strategy;
+  std::string benchmark;
+  std::string study;
+  std::string inputs_hash;
+  std::string frequency;
+  int observations = 0;
+  double alpha = 0;
+  double alpha_annualized = 0;
+  double alpha_t = 0;
+  double alpha_p = 0;
+  double beta = 0;
+  double r_squared = 0;
+  std::string errors;
+  int lags = 0;
+  bool stale = false;  // an input has a newer version than the run used
+  std::optional<std::int64_t> revises_run_id;
+};
+
+// Returns the runs matching the filter, oldest first.
+std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter);
+
+// A run as stored: every field its record hash covers.
+struct RunRow {
+  std::int64_t run_id = 0;
+  std::string created_at;
+  std::string engine_version;
+  std::string strategy;
+  std::string benchmark;
+  std::string rate;
+  std::optional<std::string> factors;
+  std::optional<std::string> study;
+  std::optional<std::string> note;
+  std::optional<std::int64_t> revises_run_id;
+  std::string parameters_json;
+  std::string inputs_hash;
+  std::string frequency;
+  std::string first_period;
+  std::string last_period;
+  int observations = 0;
+  int dropped_periods = 0;
+  std::string errors;
+  int lags = 0;
+  double alpha = 0;
+  double alpha_std_error = 0;
+  double alpha_t = 0;
+  double alpha_p = 0;
+  double alpha_annualized = 0;
+  double beta = 0;
+  double beta_t = 0;
+  double r_squared = 0;
+  std::string result_json;
+  std::string previous_record_hash;
+  std::string record_hash;
+  struct Input {
+    std::string role;
+    int position = 0;
+    std::int64_t version_id = 0;
+    std::string columns;
+  };
+  std::vector<Input> inputs;
+  std::vector<core::Coefficient> coefficients;
+};
+
+// Reads a run row with its inputs and coefficients; nullopt when absent.
+std::optional<RunRow> read_run_row(Ledger& ledger, std::int64_t run_id);
+
+// Returns the canonical text of a run row that its record hash covers (all but record_hash).
+std::string canonical_run_record(const RunRow& row);
+
+// Returns SHA-256 of previous hash, a line break and a canonical record.
+std::string chain_hash(const std::string& previous_record_hash, const std::string& record);
+
+inline const std::string kGenesisHash(64, '0');
+
+}  // namespace alphatrail::ledger

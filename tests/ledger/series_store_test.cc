@@ -1,0 +1,317 @@
+// Tests of the series store: new series, unchanged content and next versions inside a write
+// transaction, all-or-nothing batches, bit-exact loading, version history and not-found errors.
+#include "ledger/series_store.h"
+
+#include <SQLiteCpp/Database.h>
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <cstdint>
+#include <cstring>
+#include <limits>
+#include <regex>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "core/error.h"
+#include "support/test_support.h"
+
+namespace {
+
+namespace ledger = alphatrail::ledger;
+namespace core = alphatrail::core;
+using alphatrail::Error;
+using alphatrail::ExitCode;
+using alphatrail::testing::ScratchDir;
+
+const double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+core::Day day(int y, int m, int d) { return core::to_day({y, m, d}); }
+
+std::vector<core::Day> month_ends(int months) {
+  std::vector<core::Day> out;
+  for (int i = 0; i < months; ++i) {
+    const int m = i % 12 + 1;
+    const int y = 2021 + i / 12;
+    out.push_back(day(y, m, core::days_in_month(y, m)));
+  }
+  return out;
+}
+
+std::uint64_t bits(double x) {
+  std::uint64_t b = 0;
+  std::memcpy(&b, &x, sizeof b);
+  return b;
+}
+
+ledger::NewVersion returns(const std::string& name, std::vector<double> values,
+                           const std::string& kind = "strategy") {
+  ledger::NewVersion v;
+  v.name = name;
+  v.meta = {kind, "decimal return", std::nullopt};
+  v.input_unit = "decimal";
+  v.columns.push_back({name, month_ends(static_cast<int>(values.size())), std::move(values)});
+  return v;
+}
+
+class SeriesStore : public ::testing::Test {
+ protected:
+  SeriesStore() : ledger_(ledger::Ledger::open(dir_ / "ledger.db", ledger::OpenMode::create, notices_)) {}
+
+  std::vector<ledger::StoreOutcome> store(std::vector<ledger::NewVersion> versions,
+                                          const std::string& note = "") {
+    std::vector<ledger::StoreOutcome> out;
+    ledger_.write_transaction([&] {
+      out = ledger::store_versions(ledger_, std::move(versions),
+                                   {"input.csv", std::string(64, 'a'), note});
+    });
+    return out;
+  }
+
+  int rows(const std::string& table) {
+    return ledger_.db().execAndGet("SELECT count(*) FROM " + table).getInt();
+  }
+
+  ScratchDir dir_;
+  std::ostringstream notices_;
+  ledger::Ledger ledger_;
+};
+
+TEST_F(SeriesStore, NewSeriesThenUnchangedThenNextVersion) {
+  auto out = store({returns("fund", {0.01, -0.005, 0.012})});
+  ASSERT_EQ(out.size(), 1u);
+  EXPECT_EQ(out[0].name, "fund");
+  EXPECT_EQ(out[0].kind, "strategy");
+  EXPECT_EQ(out[0].version, 1);
+  EXPECT_TRUE(out[0].new_series);
+  EXPECT_FALSE(out[0].unchanged);
+  // The outcome's hash is the hash of the canonical content.
+  const auto v = returns("fund", {0.01, -0.005, 0.012});
+  EXPECT_EQ(out[0].content_hash,
+            ledger::content_hash(v.meta, {{"fund", ledger::encode_values_json(v.columns[0])}}));
+  const std::string first_hash = out[0].content_hash;
+
+  out = store({returns("fund", {0.01, -0.005, 0.012})});
+  ASSERT_EQ(out.size(), 1u);
+  EXPECT_EQ(out[0].version, 1);
+  EXPECT_TRUE(out[0].unchanged);
+  EXPECT_FALSE(out[0].new_series);
+  EXPECT_EQ(out[0].content_hash, first_hash);
+  EXPECT_EQ(rows("series"), 1);
+  EXPECT_EQ(rows("series_versions"), 1);
+  EXPECT_EQ(rows("version_columns"), 1);
+
+  out = store({returns("fund", {0.01, -0.005, 0.013})});
+  EXPECT_EQ(out[0].version, 2);
+  EXPECT_FALSE(out[0].unchanged);
+  EXPECT_FALSE(out[0].new_series);
+  EXPECT_NE(out[0].content_hash, first_hash);
+  EXPECT_EQ(rows("series"), 1);
+  EXPECT_EQ(rows("series_versions"), 2);
+
+  // Back to the first content: that is a change from the latest, so version 3.
+  out = store({returns("fund", {0.01, -0.005, 0.012})});
+  EXPECT_EQ(out[0].version, 3);
+  EXPECT_EQ(out[0].content_hash, first_hash);
+  EXPECT_EQ(rows("series_versions"), 3);
+}
+
+TEST_F(SeriesStore, BatchMixesNewUnchangedAndChanged) {
+  store({returns("a", {0.01, 0.02}), returns("b", {0.03, 0.04})});
+  const auto out =
+      store({returns("a", {0.01, 0.02}), returns("b", {0.03, 0.05}), returns("c", {0.06})});
+  ASSERT_EQ(out.size(), 3u);
+  EXPECT_TRUE(out[0].unchanged);
+  EXPECT_EQ(out[0].version, 1);
+  EXPECT_EQ(out[1].version, 2);
+  EXPECT_FALSE(out[1].unchanged);
+  EXPECT_TRUE(out[2].new_series);
+  EXPECT_EQ(out[2].version, 1);
+  EXPECT_EQ(rows("series_versions"), 4);
+}
+
+TEST_F(SeriesStore, NameOfAnotherKindRollsBackTheBatch) {
+  store({returns("fund", {0.01})});
+  try {
+    store({returns("new-one", {0.02}, "benchmark"), returns("fund", {0.01}, "benchmark")});
+    ADD_FAILURE() << "stored a benchmark under a strategy's name";
+  } catch (const Error& e) {
+    EXPECT_EQ(e.code(), ExitCode::bad_input);
+    EXPECT_EQ(std::string(e.what()),
+              "input.csv: series 'fund' already exists as a strategy series, not benchmark; "
+              "rename the column or use --name");
+  }
+  EXPECT_EQ(rows("series"), 1);
+  EXPECT_EQ(rows("series_versions"), 1);
+  EXPECT_EQ(rows("version_columns"), 1);
+}
+
+TEST_F(SeriesStore, LoadVersionRoundTripsValuesBitForBit) {
+  const std::vector<double> values{0.1,      1.0 / 3, kNaN,    -0.0,    5e-324,
+                                   1e-300,   -0.99,   0.1 + 0.2, 123.456, 110.0 / 100 - 1};
+  store({returns("exact", values)}, "a note");
+  const auto loaded = ledger::load_version(ledger_, "exact");
+  ASSERT_EQ(loaded.columns.size(), 1u);
+  const auto& c = loaded.columns[0];
+  EXPECT_EQ(c.name, "exact");
+  EXPECT_EQ(c.dates, month_ends(static_cast<int>(values.size())));
+  ASSERT_EQ(c.values.size(), values.size());
+  for (std::size_t i = 0; i < values.size(); ++i) {
+    if (std::isnan(values[i]))
+      EXPECT_TRUE(std::isnan(c.values[i])) << i;
+    else
+      EXPECT_EQ(bits(c.values[i]), bits(values[i])) << i << ": " << values[i];
+  }
+  const auto& info = loaded.info;
+  EXPECT_EQ(info.name, "exact");
+  EXPECT_EQ(info.kind, "strategy");
+  EXPECT_EQ(info.version, 1);
+  EXPECT_EQ(info.unit, "decimal return");
+  EXPECT_EQ(info.input_unit, "decimal");
+  EXPECT_FALSE(info.quote.has_value());
+  EXPECT_EQ(info.frequency, std::optional<std::string>("monthly"));
+  EXPECT_EQ(info.first_date, "2021-01-31");
+  EXPECT_EQ(info.last_date, "2021-10-31");
+  EXPECT_EQ(info.observations, 10);
+  EXPECT_EQ(info.missing, 1);
+  EXPECT_EQ(info.source_file, "input.csv");
+  EXPECT_EQ(info.source_sha256, std::string(64, 'a'));
+  EXPECT_EQ(info.note, "a note");
+  EXPECT_EQ(info.columns, std::vector<std::string>{"exact"});
+  EXPECT_FALSE(info.ingested_by.empty());
+  EXPECT_TRUE(std::regex_match(info.ingested_at,
+                               std::regex(R"(\d{4}-\d\d-\d\dT\d\d:\d\d:\d\d\.\d{3}Z)")))
+      << info.ingested_at;
+}
+
+TEST_F(SeriesStore, LoadVersionPicksTheAskedVersion) {
+  store({returns("fund", {0.01, 0.02})});
+  store({returns("fund", {0.01, 0.03})});
+  EXPECT_EQ(ledger::load_version(ledger_, "fund").info.version, 2);
+  EXPECT_EQ(ledger::load_version(ledger_, "fund").columns[0].values[1], 0.03);
+  const auto first = ledger::load_version(ledger_, "fund", 1);
+  EXPECT_EQ(first.info.version, 1);
+  EXPECT_EQ(first.columns[0].values[1], 0.02);
+}
+
+TEST_F(SeriesStore, SetWithSeveralColumnsKeepsTheirOrderAndDateUnion) {
+  ledger::NewVersion set;
+  set.name = "ff";
+  set.meta = {"factor", "decimal return", std::nullopt};
+  set.input_unit = "percent";
+  const auto d = month_ends(4);
+  set.columns.push_back({"smb", {d[1], d[2], d[3]}, {0.002, kNaN, 0.001}});
+  set.columns.push_back({"mkt_rf", {d[0], d[1], d[2]}, {0.01, 0.02, 0.03}});
+  const auto out = store({set});
+  EXPECT_TRUE(out[0].new_series);
+  const auto loaded = ledger::load_version(ledger_, "ff");
+  ASSERT_EQ(loaded.columns.size(), 2u);
+  EXPECT_EQ(loaded.columns[0].name, "smb");
+  EXPECT_EQ(loaded.columns[1].name, "mkt_rf");
+  EXPECT_EQ(loaded.columns[0].dates, (std::vector<core::Day>{d[1], d[2], d[3]}));
+  EXPECT_EQ(loaded.info.columns, (std::vector<std::string>{"smb", "mkt_rf"}));
+  EXPECT_EQ(loaded.info.observations, 4);  // dates of any column
+  EXPECT_EQ(loaded.info.first_date, "2021-01-31");
+  EXPECT_EQ(loaded.info.last_date, "2021-04-30");
+  EXPECT_EQ(loaded.info.missing, 1);
+  EXPECT_EQ(loaded.info.input_unit, "percent");
+  EXPECT_EQ(rows("version_columns"), 2);
+}
+
+TEST_F(SeriesStore, RateCurveKeepsItsQuote) {
+  ledger::NewVersion curve;
+  curve.name = "ust";
+  curve.meta = {"rate", "percent yield", std::string("discount")};
+  curve.input_unit = "percent";
+  curve.columns.push_back({"3M", month_ends(2), {4.5, 4.25}});
+  store({curve});
+  const auto loaded = ledger::load_version(ledger_, "ust");
+  EXPECT_EQ(loaded.info.quote, std::optional<std::string>("discount"));
+  EXPECT_EQ(loaded.info.unit, "percent yield");
+  // The same numbers quoted as yields are other content.
+  curve.meta.quote = "yield";
+  EXPECT_EQ(store({curve})[0].version, 2);
+}
+
+TEST_F(SeriesStore, VersionHistoryIsOldestFirst) {
+  store({returns("fund", {0.01})}, "first");
+  store({returns("fund", {0.01, 0.02})}, "second");
+  store({returns("other", {0.05})});
+  store({returns("fund", {0.01, 0.02, 0.03})}, "third");
+  const auto history = ledger::version_history(ledger_, "fund");
+  ASSERT_EQ(history.size(), 3u);
+  for (int i = 0; i < 3; ++i) {
+    EXPECT_EQ(history[i].name, "fund");
+    EXPECT_EQ(history[i].version, i + 1);
+    EXPECT_EQ(history[i].observations, i + 1);
+  }
+  EXPECT_EQ(history[0].note, "first");
+  EXPECT_EQ(history[2].note, "third");
+  EXPECT_EQ(history[2].last_date, "2021-03-31");
+  EXPECT_FALSE(history[0].frequency.has_value());  // one date: no frequency
+  EXPECT_LT(history[0].version_id, history[1].version_id);
+  EXPECT_LE(history[0].ingested_at, history[2].ingested_at);
+}
+
+TEST_F(SeriesStore, ListHoldsTheLatestOfEachByKindThenName) {
+  store({returns("zeta", {0.01}, "benchmark"), returns("beta", {0.01}), returns("alpha", {0.02})});
+  store({returns("beta", {0.03})});
+  ledger::NewVersion factors = returns("aaa-factors", {0.01}, "factor");
+  store({factors});
+  const auto list = ledger::list_latest_versions(ledger_);
+  ASSERT_EQ(list.size(), 4u);
+  EXPECT_EQ(list[0].name, "alpha");
+  EXPECT_EQ(list[1].name, "beta");
+  EXPECT_EQ(list[1].version, 2);
+  EXPECT_EQ(list[2].name, "zeta");
+  EXPECT_EQ(list[3].name, "aaa-factors");
+}
+
+TEST_F(SeriesStore, UnknownNamesAndVersionsAreNotFound) {
+  store({returns("fund", {0.01})});
+  const auto expect_not_found = [](auto&& call, const std::string& message) {
+    try {
+      call();
+      ADD_FAILURE() << "found: " << message;
+    } catch (const Error& e) {
+      EXPECT_EQ(e.code(), ExitCode::not_found);
+      EXPECT_NE(std::string(e.what()).find(message), std::string::npos) << e.what();
+    }
+  };
+  expect_not_found([&] { ledger::version_history(ledger_, "nope"); }, "no series named 'nope'");
+  expect_not_found([&] { ledger::load_version(ledger_, "nope"); }, "no series named 'nope'");
+  expect_not_found([&] { ledger::load_version(ledger_, "nope", 1); }, "no series named 'nope'");
+  expect_not_found([&] { ledger::load_version(ledger_, "fund", 2); },
+                   "series 'fund' has no version 2");
+  expect_not_found([&] { ledger::load_version(ledger_, "fund", 0); },
+                   "series 'fund' has no version 0");
+  // Names are exact: no case folding, no prefixes.
+  expect_not_found([&] { ledger::load_version(ledger_, "FUND"); }, "no series named 'FUND'");
+  expect_not_found([&] { ledger::load_version(ledger_, "fun"); }, "no series named 'fun'");
+}
+
+TEST_F(SeriesStore, ManySeriesInOneBatch) {
+  // Enough series that encoding runs on several threads; each keeps its own content.
+  std::vector<ledger::NewVersion> batch;
+  for (int i = 0; i < 200; ++i) batch.push_back(returns("s" + std::to_string(i), {i * 1e-4, 0.01}));
+  const auto out = store(batch);
+  ASSERT_EQ(out.size(), 200u);
+  for (int i = 0; i < 200; ++i) {
+    EXPECT_EQ(out[i].name, "s" + std::to_string(i));
+    EXPECT_TRUE(out[i].new_series);
+  }
+  EXPECT_EQ(rows("series"), 200);
+  EXPECT_EQ(ledger::load_version(ledger_, "s123").columns[0].values[0], 123 * 1e-4);
+  EXPECT_EQ(ledger_.db().execAndGet("SELECT count(DISTINCT content_hash) FROM series_versions")
+                .getInt(),
+            200);
+}
+
+TEST(UtcNow, IsIsoWithMilliseconds) {
+  const std::string now = ledger::utc_now();
+  EXPECT_TRUE(std::regex_match(now, std::regex(R"(20\d\d-[01]\d-[0-3]\dT[0-2]\d:[0-5]\d:[0-5]\d\.\d{3}Z)")))
+      << now;
+}
+
+}  // namespace
