@@ -5,9 +5,11 @@
 
 #include "cli/commands.h"
 #include "cli/demo_scenario.h"
+#include "cli/evaluate.h"
 #include "cli/ingest.h"
 #include "core/error.h"
 #include "ledger/ledger.h"
+#include "ledger/run_store.h"
 
 namespace alphatrail::cli {
 
@@ -55,7 +57,35 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
                              request.percent ? " --percent" : "", request.levels ? " --levels" : "");
     ingest_file(path, request, std::cout, std::cerr);
   }
-  std::cout << fmt::format("\nDemo ledger: {}\n", path.string());
+
+  // The main job: every strategy against the index, bills and style factors.
+  EvaluateRequest request;
+  request.benchmark = kDemoBenchmark;
+  request.rate = kDemoRate;
+  request.factors = {kDemoFactors};
+  request.strategies = {"trend-*"};
+  request.study = kDemoStudy;
+  request.note = "demo: trend look-back variants";
+  auto ledger = ledger::Ledger::open(path, ledger::OpenMode::existing, std::cerr);
+  std::cout << fmt::format("\n$ alphatrail evaluate 'trend-*' --benchmark {} --rate {} --factor {} "
+                           "--study {}\n",
+                           kDemoBenchmark, kDemoRate, kDemoFactors, kDemoStudy);
+  auto runs = evaluate_and_record(ledger, request, false);
+  request.strategies = {"carry-g10", "defensive-tilt", "crash-hedge"};
+  request.study.clear();
+  request.note = "demo: other books";
+  std::cout << fmt::format("$ alphatrail evaluate carry-g10 defensive-tilt crash-hedge "
+                           "--benchmark {} --rate {} --factor {}\n\n",
+                           kDemoBenchmark, kDemoRate, kDemoFactors);
+  const auto more = evaluate_and_record(ledger, request, false);
+  runs.insert(runs.end(), more.begin(), more.end());
+  print_runs(std::cout, ledger, runs, Format::table);
+
+  std::cout << fmt::format("\n$ alphatrail show {}\n\n", runs.front());
+  print_run_text(std::cout, ledger::load_run(ledger, runs.front()));
+  std::cout << fmt::format("Demo ledger: {} (try `alphatrail runs --ledger {}` or "
+                           "`alphatrail series --ledger {}`)\n",
+                           path.string(), path.string(), path.string());
 }
 
 }  // namespace

@@ -47,8 +47,8 @@ struct StrategySpec {
 // Invented strategies: three trend look-backs (one study), a carry book, a defensive
 // tilt and a hedging overlay that runs against the market.
 constexpr StrategySpec kStrategies[] = {
-    {"trend-12m", 0.0030, 0.55, 0.10, -0.05, 0.020},
-    {"trend-6m", 0.0012, 0.65, 0.05, 0.00, 0.022},
+    {"trend-12m", 0.0035, 0.55, 0.10, -0.05, 0.012},
+    {"trend-6m", 0.0012, 0.65, 0.05, 0.00, 0.018},
     {"trend-3m", -0.0004, 0.75, 0.00, 0.05, 0.025},
     {"carry-g10", 0.0018, 0.25, 0.00, 0.10, 0.015},
     {"defensive-tilt", 0.0006, 0.60, -0.20, 0.30, 0.010},
