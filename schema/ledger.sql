@@ -1,4 +1,4 @@
--- alphatrail ledger schema, current version (PRAGMA user_version = 1,
+-- alphatrail ledger schema, current version (PRAGMA user_version = 2,
 -- PRAGMA application_id = 0x4154524C, "ATRL").
 --
 -- This file is the reference for people who query a ledger with SQL. It is kept equal to
@@ -85,3 +85,83 @@ CREATE TRIGGER version_columns_no_update BEFORE UPDATE ON version_columns
 BEGIN SELECT RAISE(ABORT, 'observations are immutable: ingest a new version instead'); END;
 CREATE TRIGGER version_columns_no_delete BEFORE DELETE ON version_columns
 BEGIN SELECT RAISE(ABORT, 'observations are never deleted: the ledger keeps every revision'); END;
+
+-- One row per evaluation: an immutable record of one strategy tested against a benchmark,
+-- a risk-free rate and optional factors. Headline figures are copied out of result_json so
+-- that plain SQL can filter and sort on them.
+CREATE TABLE runs (
+  run_id               INTEGER PRIMARY KEY,  -- 1, 2, 3 ... in the order runs were recorded
+  created_at           TEXT NOT NULL,        -- UTC time of recording
+  engine_version       TEXT NOT NULL,        -- alphatrail version that computed the result
+  strategy             TEXT NOT NULL,        -- strategy series name
+  benchmark            TEXT NOT NULL,        -- benchmark series name
+  rate                 TEXT NOT NULL,        -- rate curve and tenor, 'curve:1M'
+  factors              TEXT,                 -- 'set:col,col; set2:col', NULL for the single-index model
+  study                TEXT,                 -- --study: the family of variants this run is a trial of
+  note                 TEXT,                 -- --note
+  revises_run_id       INTEGER REFERENCES runs (run_id),  -- the run this one re-evaluates after a data revision
+  parameters_json      TEXT NOT NULL,        -- every parameter, defaults written out, canonical JSON (sorted keys)
+  -- SHA-256 over the engine version, parameters_json and each input version's role,
+  -- series, version and content hash: equal inputs hashes mean bit-identical results.
+  inputs_hash          TEXT NOT NULL CHECK (length(inputs_hash) = 64),
+  frequency            TEXT NOT NULL CHECK (frequency IN ('daily', 'weekly', 'monthly', 'quarterly')),  -- evaluation frequency
+  first_period         TEXT NOT NULL,        -- first period of the sample used, e.g. '2000-01'
+  last_period          TEXT NOT NULL,        -- last period of the sample used
+  observations         INTEGER NOT NULL,     -- T, periods in the regression
+  dropped_periods      INTEGER NOT NULL,     -- periods dropped because an input was missing or out of range
+  errors               TEXT NOT NULL,        -- standard errors: classic, hc0, hc1, hc2, hc3, newey-west
+  lags                 INTEGER NOT NULL,     -- Newey-West lags used (0 for other kinds)
+  alpha                REAL NOT NULL,        -- intercept: decimal return per period
+  alpha_std_error      REAL NOT NULL,        -- its standard error under `errors`
+  alpha_t              REAL,                 -- its t statistic
+  alpha_p              REAL,                 -- two-sided p-value, Student t with T - k degrees of freedom
+  alpha_annualized     REAL NOT NULL,        -- decimal per year, compound or arithmetic as parameters say
+  beta                 REAL NOT NULL,        -- slope on the benchmark's excess return
+  beta_t               REAL,                 -- its t statistic
+  r_squared            REAL,                 -- R-squared of the regression
+  result_json          TEXT NOT NULL,        -- sample, coefficients, statistics, reading, preparation, warnings
+  previous_record_hash TEXT NOT NULL CHECK (length(previous_record_hash) = 64),  -- record_hash of the run before (zeros for run 1)
+  record_hash          TEXT NOT NULL CHECK (length(record_hash) = 64)  -- SHA-256 of previous_record_hash and this run's canonical record
+);
+CREATE INDEX runs_by_strategy ON runs (strategy, run_id);
+CREATE INDEX runs_by_study ON runs (study, run_id);
+CREATE INDEX runs_by_inputs_hash ON runs (inputs_hash);
+
+-- The input versions of each run and their roles.
+CREATE TABLE run_inputs (
+  run_id       INTEGER NOT NULL REFERENCES runs (run_id),
+  role         TEXT NOT NULL CHECK (role IN ('strategy', 'benchmark', 'rate', 'factor')),
+  position     INTEGER NOT NULL,  -- order among inputs of the same role (factor sets)
+  version_id   INTEGER NOT NULL REFERENCES series_versions (version_id),  -- the exact version used
+  columns      TEXT NOT NULL,     -- columns used, comma-separated: the tenor, the factors
+  PRIMARY KEY (run_id, role, position)
+);
+CREATE INDEX run_inputs_by_version ON run_inputs (version_id);
+
+-- Every coefficient of each run: alpha, beta, then one per factor.
+CREATE TABLE run_coefficients (
+  run_id    INTEGER NOT NULL REFERENCES runs (run_id),
+  position  INTEGER NOT NULL,  -- 1 alpha, 2 beta, 3... factors
+  term      TEXT NOT NULL,     -- 'alpha', 'beta' or the factor name
+  estimate  REAL NOT NULL,
+  std_error REAL NOT NULL,     -- under the run's `errors`
+  t_stat    REAL,
+  p_value   REAL,              -- two-sided, Student t with T - k degrees of freedom
+  ci_low    REAL,              -- confidence interval at parameters.confidence
+  ci_high   REAL,
+  PRIMARY KEY (run_id, position)
+);
+
+-- Immutability of runs.
+CREATE TRIGGER runs_no_update BEFORE UPDATE ON runs
+BEGIN SELECT RAISE(ABORT, 'runs are immutable: evaluate again to record a new run'); END;
+CREATE TRIGGER runs_no_delete BEFORE DELETE ON runs
+BEGIN SELECT RAISE(ABORT, 'runs are never deleted: the ledger keeps every test'); END;
+CREATE TRIGGER run_inputs_no_update BEFORE UPDATE ON run_inputs
+BEGIN SELECT RAISE(ABORT, 'run inputs are immutable'); END;
+CREATE TRIGGER run_inputs_no_delete BEFORE DELETE ON run_inputs
+BEGIN SELECT RAISE(ABORT, 'run inputs are never deleted'); END;
+CREATE TRIGGER run_coefficients_no_update BEFORE UPDATE ON run_coefficients
+BEGIN SELECT RAISE(ABORT, 'run coefficients are immutable'); END;
+CREATE TRIGGER run_coefficients_no_delete BEFORE DELETE ON run_coefficients
+BEGIN SELECT RAISE(ABORT, 'run coefficients are never deleted'); END;
