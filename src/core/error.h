@@ -2,6 +2,8 @@
 // the kind to a documented exit code.
 #pragma once
 
+#include <fmt/format.h>
+
 #include <stdexcept>
 #include <string>
 
@@ -39,12 +41,11 @@ class InputError : public Error {
  private:
   static std::string format(const std::string& file, long line, long column,
                             const std::string& problem, const std::string& fix) {
-    std::string text = file;
-    if (line > 0) text.append(":").append(std::to_string(line));
-    if (column > 0) text.append(":").append(std::to_string(column));
-    text.append(": ").append(problem);
-    if (!fix.empty()) text.append(" (").append(fix).append(")");
-    return text;
+    std::string where = file;
+    if (line > 0) where += fmt::format(":{}", line);
+    if (column > 0) where += fmt::format(":{}", column);
+    return fix.empty() ? fmt::format("{}: {}", where, problem)
+                       : fmt::format("{}: {} ({})", where, problem, fix);
   }
 };
 
