@@ -25,10 +25,13 @@ std::string read_input_file(const std::string& path) {
     throw InputError(path, 0, 0, "is a folder, not a file", "name a CSV file");
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError(path, 0, 0, "cannot be read", "check its permissions");
-  std::string bytes(std::filesystem::file_size(path, ec), '\0');
-  in.read(bytes.data(), static_cast<std::streamsize>(bytes.size()));
-  if (ec || in.gcount() != static_cast<std::streamsize>(bytes.size()))
-    throw InputError(path, 0, 0, "cannot be read", "check the file");
+  std::string bytes;
+  if (std::filesystem::is_regular_file(path, ec)) bytes.reserve(std::filesystem::file_size(path, ec));
+  // Read in blocks: pipes and devices have no size, but their bytes are the file.
+  char block[1 << 16];
+  while (in.read(block, sizeof block) || in.gcount() > 0)
+    bytes.append(block, static_cast<std::size_t>(in.gcount()));
+  if (in.bad()) throw InputError(path, 0, 0, "cannot be read", "check the file");
   return bytes;
 }
 

@@ -74,7 +74,10 @@ ColumnData decode_values_json(const std::string& name, std::string_view json) {
     ++i;
   };
   expect('{');
-  if (i < json.size() && json[i] == '}') return column;
+  if (i < json.size() && json[i] == '}') {
+    if (i + 1 != json.size()) malformed(name, i + 1);
+    return column;
+  }
   while (true) {
     expect('"');
     if (i + 10 > json.size()) malformed(name, i);
@@ -88,9 +91,10 @@ ColumnData decode_values_json(const std::string& name, std::string_view json) {
       i += 4;
     } else {
       const auto [end, ec] = std::from_chars(json.data() + i, json.data() + json.size(), value);
-      if (ec != std::errc()) malformed(name, i);
+      if (ec != std::errc() || !std::isfinite(value)) malformed(name, i);  // JSON has no nan/inf
       i = static_cast<std::size_t>(end - json.data());
     }
+    if (!column.dates.empty() && date.day <= column.dates.back()) malformed(name, i);  // ascending
     column.dates.push_back(date.day);
     column.values.push_back(value);
     if (i < json.size() && json[i] == ',') {

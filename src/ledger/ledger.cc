@@ -102,7 +102,11 @@ Ledger::Ledger(std::filesystem::path path, std::unique_ptr<SQLite::Database> db)
     : path_(std::move(path)), db_(std::move(db)) {}
 
 Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostream& notices) {
-  const bool exists = std::filesystem::exists(path);
+  std::error_code ec;
+  // SQLite takes a zero-byte file for an empty database: it becomes a new ledger.
+  const bool exists = std::filesystem::exists(path, ec) &&
+                      !(std::filesystem::is_regular_file(path, ec) &&
+                        std::filesystem::file_size(path, ec) == 0);
   if (!exists && mode != OpenMode::create)
     throw ledger_error(fmt::format(
         "no ledger at {}; create one with `alphatrail init --ledger {}` or name another with "
