@@ -22,5 +22,7 @@ void setup_demo(CLI::App& app, const GlobalOptions& global);
 void setup_evaluate(CLI::App& app, const GlobalOptions& global);
 void setup_runs(CLI::App& app, const GlobalOptions& global);
 void setup_show(CLI::App& app, const GlobalOptions& global);
+void setup_verify(CLI::App& app, const GlobalOptions& global);
+void setup_query(CLI::App& app, const GlobalOptions& global);
 
 }  // namespace alphatrail::cli

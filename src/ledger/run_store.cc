@@ -54,13 +54,13 @@ std::optional<std::string> non_empty(const std::string& s) {
 
 }  // namespace
 
-std::string inputs_hash(const std::string& engine_version, const nlohmann::json& parameters,
+std::string inputs_hash(const std::string& engine_version, const std::string& parameters_json,
                         const std::vector<RunInput>& inputs) {
   core::Sha256 h;
   h.update("alphatrail inputs v1\nengine: ");
   h.update(engine_version);
   h.update("\nparameters: ");
-  h.update(parameters.dump());  // nlohmann::json keeps keys sorted: a canonical form
+  h.update(parameters_json);
   h.update("\n");
   for (const auto& in : inputs)
     h.update(fmt::format("input: {} {} {} {} {} {}\n", in.role, in.position, in.series,
@@ -175,7 +175,7 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   row.note = non_empty(run.note);
   row.revises_run_id = run.revises_run_id;
   row.parameters_json = run.parameters.dump();
-  row.inputs_hash = inputs_hash(kEngineVersion, run.parameters, run.inputs);
+  row.inputs_hash = inputs_hash(kEngineVersion, row.parameters_json, run.inputs);
   row.frequency = core::frequency_name(r.sample.frequency);
   row.first_period = r.sample.first;
   row.last_period = r.sample.last;
@@ -337,6 +337,36 @@ std::optional<RunRow> read_run_row(Ledger& ledger, std::int64_t run_id) {
     r.coefficients.push_back(c);
   }
   return r;
+}
+
+std::vector<RunInput> read_run_inputs(Ledger& ledger, std::int64_t run_id) {
+  SQLite::Statement q(ledger.db(),
+                      "SELECT i.role, i.position, i.version_id, s.name, v.version, "
+                      "v.content_hash, i.columns FROM run_inputs i JOIN series_versions v ON "
+                      "v.version_id = i.version_id JOIN series s ON s.series_id = v.series_id "
+                      "WHERE i.run_id = ? ORDER BY CASE i.role WHEN 'strategy' THEN 1 WHEN "
+                      "'benchmark' THEN 2 WHEN 'rate' THEN 3 ELSE 4 END, i.position");
+  q.bind(1, run_id);
+  std::vector<RunInput> inputs;
+  while (q.executeStep()) {
+    RunInput in;
+    in.role = q.getColumn(0).getString();
+    in.position = q.getColumn(1).getInt();
+    in.version_id = q.getColumn(2).getInt64();
+    in.series = q.getColumn(3).getString();
+    in.version = q.getColumn(4).getInt();
+    in.content_hash = q.getColumn(5).getString();
+    const std::string columns = q.getColumn(6).getString();
+    std::size_t start = 0;
+    while (!columns.empty()) {
+      const auto comma = columns.find(',', start);
+      in.columns.push_back(columns.substr(start, comma - start));
+      if (comma == std::string::npos) break;
+      start = comma + 1;
+    }
+    inputs.push_back(std::move(in));
+  }
+  return inputs;
 }
 
 int count_study_runs(Ledger& ledger, const std::string& study) {

@@ -30,8 +30,12 @@ struct RunInput {
 
 // Returns the inputs hash: SHA-256 over the engine version, the canonical parameters and
 // every input's role, position, series, version, content hash and columns.
-std::string inputs_hash(const std::string& engine_version, const nlohmann::json& parameters,
+// parameters_json is the canonical text (nlohmann::json dump: sorted keys, no spaces).
+std::string inputs_hash(const std::string& engine_version, const std::string& parameters_json,
                         const std::vector<RunInput>& inputs);
+
+// Returns the inputs of a stored run with their versions' names, numbers and hashes.
+std::vector<RunInput> read_run_inputs(Ledger& ledger, std::int64_t run_id);
 
 // A run to record.
 struct NewRun {

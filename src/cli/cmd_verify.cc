@@ -1,0 +1,41 @@
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+
+#include <iostream>
+
+#include "cli/commands.h"
+#include "core/error.h"
+#include "ledger/verify.h"
+
+namespace alphatrail::cli {
+
+namespace {
+
+void run_verify(const GlobalOptions& global) {
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::read_only, std::cerr);
+  const auto report = ledger::verify_ledger(ledger);
+  for (const auto& p : report.problems)
+    std::cout << fmt::format("MISMATCH {}: {}\n", p.object, p.problem);
+  std::cout << fmt::format(
+      "checked {} series versions and {} runs; SQLite integrity check run; chain head {}\n",
+      report.versions_checked, report.runs_checked, report.chain_head);
+  if (!report.ok())
+    throw Error(ExitCode::verify_failed,
+                fmt::format("{} mismatch{} found in {}: the ledger was altered outside "
+                            "alphatrail or is damaged; restore it from a copy",
+                            report.problems.size(), report.problems.size() == 1 ? "" : "es",
+                            ledger.path().string()));
+  std::cout << "everything checks out\n";
+}
+
+}  // namespace
+
+void setup_verify(CLI::App& app, const GlobalOptions& global) {
+  auto* cmd = app.add_subcommand(
+      "verify",
+      "Recompute every content hash, inputs hash and the run hash chain; exit 7 on a mismatch");
+  cmd->callback([&global] { run_verify(global); });
+}
+
+}  // namespace alphatrail::cli

@@ -1,0 +1,98 @@
+#include "ledger/verify.h"
+
+#include <SQLiteCpp/Statement.h>
+#include <fmt/format.h>
+
+#include "core/error.h"
+#include "ledger/content.h"
+#include "ledger/run_store.h"
+
+namespace alphatrail::ledger {
+
+namespace {
+
+void verify_versions(Ledger& ledger, VerifyReport& report) {
+  SQLite::Statement versions(ledger.db(),
+                             "SELECT v.version_id, s.name, s.kind, v.version, v.unit, v.quote, "
+                             "v.content_hash FROM series_versions v JOIN series s ON s.series_id "
+                             "= v.series_id ORDER BY v.version_id");
+  SQLite::Statement columns(ledger.db(),
+                            "SELECT column_name, values_json FROM version_columns WHERE "
+                            "version_id = ? ORDER BY position");
+  while (versions.executeStep()) {
+    ++report.versions_checked;
+    const std::string object = fmt::format("series {} version {}", versions.getColumn(1).getString(),
+                                           versions.getColumn(3).getInt());
+    ContentMeta meta{versions.getColumn(2).getString(), versions.getColumn(4).getString(),
+                     std::nullopt};
+    if (!versions.getColumn(5).isNull()) meta.quote = versions.getColumn(5).getString();
+    std::vector<EncodedColumn> encoded;
+    columns.reset();
+    columns.bind(1, versions.getColumn(0).getInt64());
+    while (columns.executeStep()) {
+      encoded.push_back({columns.getColumn(0).getString(), columns.getColumn(1).getString()});
+      try {
+        decode_values_json(encoded.back().name, encoded.back().values_json);
+      } catch (const Error& e) {
+        report.problems.push_back({object, fmt::format("column '{}' is malformed", encoded.back().name)});
+      }
+    }
+    if (encoded.empty()) report.problems.push_back({object, "has no stored observations"});
+    const std::string stored = versions.getColumn(6).getString();
+    const std::string computed = content_hash(meta, encoded);
+    if (stored != computed)
+      report.problems.push_back(
+          {object, fmt::format("content hash {} does not match its observations ({})",
+                               stored.substr(0, 12), computed.substr(0, 12))});
+  }
+}
+
+void verify_runs(Ledger& ledger, VerifyReport& report) {
+  SQLite::Statement ids(ledger.db(), "SELECT run_id FROM runs ORDER BY run_id");
+  std::string previous = kGenesisHash;
+  std::int64_t expected_id = 1;
+  while (ids.executeStep()) {
+    const std::int64_t id = ids.getColumn(0).getInt64();
+    ++report.runs_checked;
+    const std::string object = fmt::format("run {}", id);
+    if (id != expected_id)
+      report.problems.push_back(
+          {object, fmt::format("runs are not numbered without gaps: expected run {} here",
+                               expected_id)});
+    expected_id = id + 1;
+    const auto row = read_run_row(ledger, id);
+    const std::string inputs = inputs_hash(row->engine_version, row->parameters_json,
+                                           read_run_inputs(ledger, id));
+    if (inputs != row->inputs_hash)
+      report.problems.push_back(
+          {object, fmt::format("inputs hash {} does not match its inputs and parameters ({})",
+                               row->inputs_hash.substr(0, 12), inputs.substr(0, 12))});
+    if (row->previous_record_hash != previous)
+      report.problems.push_back(
+          {object, "the hash chain is broken before this run: a run was removed, reordered or "
+                   "edited"});
+    const std::string record = chain_hash(row->previous_record_hash, canonical_run_record(*row));
+    if (record != row->record_hash)
+      report.problems.push_back(
+          {object, "its record does not match its record hash: the run was edited"});
+    previous = row->record_hash;
+  }
+  report.chain_head = previous;
+}
+
+}  // namespace
+
+VerifyReport verify_ledger(Ledger& ledger) {
+  VerifyReport report;
+  report.chain_head = kGenesisHash;
+  SQLite::Statement integrity(ledger.db(), "PRAGMA integrity_check");
+  while (integrity.executeStep()) {
+    const std::string line = integrity.getColumn(0).getString();
+    if (line != "ok") report.problems.push_back({"ledger file", "integrity check: " + line});
+  }
+  verify_versions(ledger, report);
+  verify_runs(ledger, report);
+  return report;
+}
+
+}  // namespace alphatrail::ledger

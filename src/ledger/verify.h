@@ -1,0 +1,32 @@
+// Verification of a ledger: every version's content hash recomputed from its stored
+// observations, every run's inputs hash and record hash, the hash chain over all runs, and
+// SQLite's own integrity check. Read-only.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <vector>
+
+#include "ledger/ledger.h"
+
+namespace alphatrail::ledger {
+
+struct VerifyProblem {
+  std::string object;   // "series trend-12m version 2", "run 14", "ledger file"
+  std::string problem;  // what does not match
+};
+
+struct VerifyReport {
+  int versions_checked = 0;
+  int runs_checked = 0;
+  std::string chain_head;  // record hash of the last run (zeros when there are none)
+  std::vector<VerifyProblem> problems;
+  bool ok() const { return problems.empty(); }
+};
+
+// Checks everything the ledger can prove about itself.
+// Note: removing the newest runs leaves a shorter but consistent chain; compare chain_head
+// with a value kept outside the ledger to detect that.
+VerifyReport verify_ledger(Ledger& ledger);
+
+}  // namespace alphatrail::ledger
