@@ -54,9 +54,16 @@ std::vector<std::string> resolve_strategies(ledger::Ledger& ledger,
   return chosen;
 }
 
-ledger::LoadedVersion load_kind(ledger::Ledger& ledger, const std::string& name,
-                                const std::vector<std::string>& kinds, const std::string& role) {
-  auto loaded = ledger::load_version(ledger, name);
+std::optional<int> pinned(const EvaluateRequest& rq, const std::string& name) {
+  const auto it = rq.pinned_versions.find(name);
+  if (it == rq.pinned_versions.end()) return std::nullopt;
+  return it->second;
+}
+
+ledger::LoadedVersion load_kind(ledger::Ledger& ledger, const EvaluateRequest& rq,
+                                const std::string& name, const std::vector<std::string>& kinds,
+                                const std::string& role) {
+  auto loaded = ledger::load_version(ledger, name, pinned(rq, name));
   if (std::find(kinds.begin(), kinds.end(), loaded.info.kind) == kinds.end())
     throw usage(fmt::format("'{}' is a {} series, not a {}; name a {} series with --{}", name,
                             loaded.info.kind, role, kinds.front(), role));
@@ -128,8 +135,7 @@ void draw_progress(std::size_t done, std::size_t total) {
 
 }  // namespace
 
-std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const EvaluateRequest& rq,
-                                              bool progress) {
+std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateRequest& rq) {
   core::EvaluationSettings settings;
   settings.covariance.kind = *core::parse_error_kind(rq.errors);
   if (rq.lags != "auto") {
@@ -157,9 +163,9 @@ std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const Eval
     throw usage("--to comes before --from; swap them");
 
   const auto strategy_names = resolve_strategies(ledger, rq.strategies);
-  auto benchmark = load_kind(ledger, rq.benchmark, {"benchmark", "strategy"}, "benchmark");
+  auto benchmark = load_kind(ledger, rq, rq.benchmark, {"benchmark", "strategy"}, "benchmark");
   const auto [rate_name, rate_tenor] = split_colon(rq.rate);
-  auto rate = load_kind(ledger, rate_name, {"rate"}, "rate");
+  auto rate = load_kind(ledger, rq, rate_name, {"rate"}, "rate");
   if (!rate_tenor.empty() &&
       std::find(rate.info.columns.begin(), rate.info.columns.end(), rate_tenor) ==
           rate.info.columns.end())
@@ -170,7 +176,7 @@ std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const Eval
   std::set<std::string> factor_terms;
   for (const auto& spec : rq.factors) {
     const auto [set_name, cols] = split_colon(spec);
-    FactorChoice choice{load_kind(ledger, set_name, {"factor"}, "factor"), split_commas(cols)};
+    FactorChoice choice{load_kind(ledger, rq, set_name, {"factor"}, "factor"), split_commas(cols)};
     if (choice.columns.empty()) choice.columns = choice.version.info.columns;
     for (const auto& c : choice.columns) {
       if (std::find(choice.version.info.columns.begin(), choice.version.info.columns.end(), c) ==
@@ -186,7 +192,7 @@ std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const Eval
   // Strategies and the frequency each is evaluated at.
   std::vector<ledger::LoadedVersion> strategies;
   strategies.reserve(strategy_names.size());
-  for (const auto& name : strategy_names) strategies.push_back(ledger::load_version(ledger, name));
+  for (const auto& name : strategy_names) strategies.push_back(ledger::load_version(ledger, name, pinned(rq, name)));
 
   const auto detected = [](const ledger::VersionInfo& info, const std::string& what) {
     if (!info.frequency)
@@ -294,35 +300,55 @@ std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const Eval
     return ledger::RunInput{role,         position,     info.version_id, info.name,
                             info.version, info.content_hash, std::move(columns)};
   };
+  std::vector<PendingRun> pending;
+  pending.reserve(strategies.size());
+  for (auto& [f, plan] : plans)
+    for (std::size_t i : plan.members) {
+      PendingRun p;
+      p.result = std::move(*results[i]);
+      p.settings = settings;
+      ledger::NewRun& run = p.run;
+      run.strategy = strategies[i].info.name;
+      run.benchmark = benchmark.info.name;
+      run.rate = fmt::format("{}:{}", rate.info.name, plan.tenor);
+      run.factors = factor_label;
+      run.study = rq.study;
+      run.note = rq.note;
+      run.revises_run_id = rq.revises_run_id;
+      run.parameters = plan.parameters;
+      run.inputs.push_back(input_of("strategy", 1, strategies[i].info, {strategies[i].info.name}));
+      run.inputs.push_back(input_of("benchmark", 1, benchmark.info, {benchmark.info.columns.front()}));
+      run.inputs.push_back(input_of("rate", 1, rate.info, {plan.tenor}));
+      int position = 1;
+      for (const auto& fc : factors)
+        run.inputs.push_back(input_of("factor", position++, fc.version.info, fc.columns));
+      pending.push_back(std::move(p));
+    }
+  return pending;
+}
+
+std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<PendingRun>& pending,
+                                      bool progress) {
   std::vector<std::int64_t> run_ids;
   ledger.write_transaction([&] {
-    for (auto& [f, plan] : plans)
-      for (std::size_t i : plan.members) {
-        const auto& result = *results[i];
-        ledger::NewRun run;
-        run.strategy = strategies[i].info.name;
-        run.benchmark = benchmark.info.name;
-        run.rate = fmt::format("{}:{}", rate.info.name, plan.tenor);
-        run.factors = factor_label;
-        run.study = rq.study;
-        run.note = rq.note;
-        run.parameters = plan.parameters;
-        run.inputs.push_back(input_of("strategy", 1, strategies[i].info, {strategies[i].info.name}));
-        run.inputs.push_back(input_of("benchmark", 1, benchmark.info, {benchmark.info.columns.front()}));
-        run.inputs.push_back(input_of("rate", 1, rate.info, {plan.tenor}));
-        int position = 1;
-        for (const auto& fc : factors)
-          run.inputs.push_back(input_of("factor", position++, fc.version.info, fc.columns));
-        core::ReadingContext context{rq.study,
-                                     rq.study.empty() ? 0 : ledger::count_study_runs(ledger, rq.study) + 1,
-                                     ledger::count_strategy_runs(ledger, run.strategy) + 1};
-        run.reading = core::compose_reading(result, settings, context);
-        run.result = &result;
-        run_ids.push_back(ledger::store_run(ledger, run));
-        if (progress && strategies.size() > 1) draw_progress(run_ids.size(), strategies.size());
-      }
+    for (auto& p : pending) {
+      ledger::NewRun& run = p.run;
+      const core::ReadingContext context{
+          run.study, run.study.empty() ? 0 : ledger::count_study_runs(ledger, run.study) + 1,
+          ledger::count_strategy_runs(ledger, run.strategy) + 1};
+      run.reading = core::compose_reading(p.result, p.settings, context);
+      run.result = &p.result;
+      run_ids.push_back(ledger::store_run(ledger, run));
+      if (progress && pending.size() > 1) draw_progress(run_ids.size(), pending.size());
+    }
   });
   return run_ids;
+}
+
+std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const EvaluateRequest& rq,
+                                              bool progress) {
+  auto pending = evaluate_request(ledger, rq);
+  return record_runs(ledger, pending, progress);
 }
 
 namespace {

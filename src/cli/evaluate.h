@@ -3,13 +3,16 @@
 #pragma once
 
 #include <cstdint>
+#include <map>
 #include <optional>
 #include <ostream>
 #include <string>
 #include <vector>
 
 #include "cli/output.h"
+#include "core/evaluation.h"
 #include "ledger/ledger.h"
+#include "ledger/run_store.h"
 
 namespace alphatrail::cli {
 
@@ -30,7 +33,29 @@ struct EvaluateRequest {
   std::string annualize = "compound";
   std::string study;
   std::string note;
+  // Re-runs and reproductions: versions to use instead of the latest, and the run revised.
+  std::map<std::string, int> pinned_versions;
+  std::optional<std::int64_t> revises_run_id;
 };
+
+// One evaluated strategy, ready to be recorded.
+struct PendingRun {
+  ledger::NewRun run;
+  core::EvaluationResult result;
+  core::EvaluationSettings settings;
+};
+
+// Evaluates every strategy the request names without recording anything. Throws
+// alphatrail::Error when any strategy cannot be evaluated.
+std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateRequest& request);
+
+// Records evaluated runs in one transaction (the reading counts the runs already recorded).
+std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<PendingRun>& pending,
+                                      bool progress);
+
+// Rebuilds the request that produced a run: same parameters, and with pin_versions the
+// exact input versions it used (otherwise the latest).
+EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bool pin_versions);
 
 // Evaluates every strategy the request names and records each as a run, all in one
 // transaction. Shows a progress bar on stderr when `progress` and many strategies.

@@ -38,8 +38,8 @@ const char* find_stop(const char* p, const char* end) {
       const std::uint64_t comma = word ^ (kOnes * ',');
       const std::uint64_t newline = word ^ (kOnes * '\n');
       const std::uint64_t quote = word ^ (kOnes * '"');
-      const std::uint64_t found = ((comma - kOnes) & ~comma) | ((newline - kOnes) & ~newline) |
-                                  ((quote - kOnes) & ~quote);
+      const std::uint64_t found =
+          ((comma - kOnes) & ~comma) | ((newline - kOnes) & ~newline) | ((quote - kOnes) & ~quote);
       if ((found & kHighs) != 0) return p + std::countr_zero(found & kHighs) / 8;
       p += 8;
     }
@@ -59,9 +59,12 @@ std::size_t line_ends_in(const char* p, const char* end) {
   return count;
 }
 
-bool is_blank_byte(char c) { return c == ' ' || c == '\t' || c == '\r' || c == '\n' || c == ','; }
+bool is_blank_byte(char c) {
+  return c == ' ' || c == '\t' || c == '\r' || c == '\n' || c == ',';
+}
 
-constexpr const char* kQuoteFix = "put quotes around the whole field and write a quote inside it as \"\"";
+constexpr const char* kQuoteFix =
+    "put quotes around the whole field and write a quote inside it as \"\"";
 
 }  // namespace
 
@@ -78,8 +81,9 @@ bool CsvReader::only_blanks_follow(const char* p) {
   // Remembering where the last look found data keeps a long run of blank lines linear.
   if (p < next_data_) return false;
   while (p < file_end_ && is_blank_byte(*p)) ++p;
+  if (p == file_end_) return true;
   next_data_ = p;
-  return p == file_end_;
+  return false;
 }
 
 bool CsvReader::next(CsvRecord& record) {

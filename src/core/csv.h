@@ -66,8 +66,8 @@ class CsvReader {
 
   std::string file_name_;
   const char* pos_ = nullptr;
-  const char* end_ = nullptr;       // end of this reader's part
-  const char* file_end_ = nullptr;  // end of the whole file: trailing blanks are judged on it
+  const char* end_ = nullptr;        // end of this reader's part
+  const char* file_end_ = nullptr;   // end of the whole file: trailing blanks are judged on it
   const char* next_data_ = nullptr;  // a byte that is no blank, found by looking ahead
   long line_ = 1;
   std::deque<std::string> unescaped_;  // a deque keeps earlier strings in place as it grows

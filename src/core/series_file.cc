@@ -6,6 +6,7 @@
 #include <charconv>
 #include <cmath>
 #include <cstdint>
+#include <cstdlib>
 #include <exception>
 #include <limits>
 #include <numeric>
@@ -75,7 +76,14 @@ bool is_tenor(std::string_view name) {
   for (std::size_t i = 0; i + 1 < name.size(); ++i)
     if (name[i] < '0' || name[i] > '9') return false;
   switch (name.back()) {
-    case 'D': case 'W': case 'M': case 'Y': case 'd': case 'w': case 'm': case 'y': return true;
+    case 'D':
+    case 'W':
+    case 'M':
+    case 'Y':
+    case 'd':
+    case 'w':
+    case 'm':
+    case 'y': return true;
     default: return false;
   }
 }
@@ -108,6 +116,36 @@ std::string quoted(std::string_view text) {
   return fmt::format("'{}'", text);
 }
 
+// Returns the first control character of a name (a line break, a tab...), or 0.
+char control_character(std::string_view name) {
+  for (const char c : name)
+    if (static_cast<unsigned char>(c) < 0x20 || c == 0x7f) return c;
+  return 0;
+}
+
+// Writes a name with its control characters escaped, so a message stays on one line.
+std::string printable(std::string_view name) {
+  std::string out;
+  for (const char c : name) {
+    if (c == '\n') {
+      out += "\\n";
+    } else if (c == '\r') {
+      out += "\\r";
+    } else if (c == '\t') {
+      out += "\\t";
+    } else if (control_character(std::string_view(&c, 1)) != 0) {
+      out += fmt::format("\\x{:02x}", static_cast<unsigned char>(c));
+    } else {
+      out += c;
+    }
+  }
+  return out;
+}
+
+std::string what_control(char c) {
+  return c == '\n' || c == '\r' ? "a line break" : c == '\t' ? "a tab" : "a control character";
+}
+
 std::string month_or_day(Day day, bool month_only) {
   std::string text = format_date(day);
   return month_only ? text.substr(0, 7) : text;
@@ -131,7 +169,7 @@ bool equals_ignoring_case(std::string_view a, std::string_view b) {
          });
 }
 
-// Parses a plain decimal "[-]digits[.digits]" whose digits form an integer m below 2^53 with at
+// Parses a plain decimal "[-]digits[.digits]" whose digits form an integer m up to 2^53 with at
 // most 22 decimals. Then m and 10^k are exact doubles and one IEEE division rounds m / 10^k
 // correctly (Clinger's fast path), so the result equals std::from_chars's; returns false for
 // anything else, which from_chars then handles.
@@ -174,8 +212,12 @@ Cell parse_cell(std::string_view text, double& value) {
   if (t.size() > 1 && t[0] == '+' && t[1] != '-' && t[1] != '+') t.remove_prefix(1);
   const auto [ptr, ec] = std::from_chars(t.data(), t.data() + t.size(), value);
   if (ptr == t.data() + t.size()) {
-    if (ec == std::errc::result_out_of_range) return Cell::not_finite;
     if (ec == std::errc()) return std::isfinite(value) ? Cell::value : Cell::not_finite;
+    if (ec == std::errc::result_out_of_range) {
+      // Too large is no finite number; too small (1e-999) rounds to zero as strtod does.
+      value = std::strtod(std::string(t).c_str(), nullptr);
+      return std::isfinite(value) ? Cell::value : Cell::not_finite;
+    }
   }
   if (t.back() == '%') return Cell::percent_sign;
   return Cell::not_number;
@@ -184,8 +226,8 @@ Cell parse_cell(std::string_view text, double& value) {
 // Where each field of a row goes, decided from the header.
 struct Layout {
   std::string file;
-  std::size_t width = 0;       // fields per row
-  std::size_t date_field = 0;  // 0-based
+  std::size_t width = 0;                  // fields per row
+  std::size_t date_field = 0;             // 0-based
   std::vector<std::size_t> value_fields;  // the selected series, in file order
   std::vector<std::string> names;         // their final names
   SeriesKind kind = SeriesKind::strategy;
@@ -225,10 +267,11 @@ Layout make_layout(const std::string& file, const CsvRecord& header,
     return found;
   };
   auto ambiguous = [&](const std::vector<std::size_t>& found) {
-    return InputError(file, line, static_cast<long>(found[1]) + 1,
-                      fmt::format("column name '{}' appears twice in the header (columns {} and {})",
-                                  names[found[0]], found[0] + 1, found[1] + 1),
-                      "give each series a unique name in the header row");
+    return InputError(
+        file, line, static_cast<long>(found[1]) + 1,
+        fmt::format("column name '{}' appears twice in the header (columns {} and {})",
+                    names[found[0]], found[0] + 1, found[1] + 1),
+        "give each series a unique name in the header row");
   };
 
   std::vector<bool> selected(names.size(), false);
@@ -242,10 +285,10 @@ Layout make_layout(const std::string& file, const CsvRecord& header,
     if (found.size() > 1) throw ambiguous(found);
     layout.date_field = found[0];
   } else if (parse_date(names[0]).status != DateParse::malformed) {
-    throw InputError(file, line, 1,
-                     fmt::format("the first row starts with the date {} where a header belongs",
-                                 names[0]),
-                     kHeaderFix);
+    throw InputError(
+        file, line, 1,
+        fmt::format("the first row starts with the date {} where a header belongs", names[0]),
+        kHeaderFix);
   }
 
   if (options.columns.empty()) {
@@ -287,17 +330,31 @@ Layout make_layout(const std::string& file, const CsvRecord& header,
       layout.value_fields.push_back(i);
       layout.names.push_back(names[i]);
     }
+  // A name with a line break could not be typed on a command line, would break table output
+  // and could forge the "column: NAME" lines the content hash is made of.
+  if (options.rename.empty()) {
+    for (std::size_t j = 0; j < layout.names.size(); ++j)
+      if (const char c = control_character(layout.names[j]); c != 0)
+        throw InputError(
+            file, line, static_cast<long>(layout.value_fields[j]) + 1,
+            fmt::format("column name '{}' holds {}", printable(layout.names[j]), what_control(c)),
+            "rename the column in the header: a name must fit on one line");
+  }
   if (layout.value_fields.empty())
     throw InputError(file, line, 0, "the header names only the date column",
                      "add a column for each series next to the date column");
 
   if (!options.rename.empty()) {
     if (layout.names.size() != 1)
+      throw InputError(file, 0, 0,
+                       fmt::format("a new name fits a single series, but the file has {}: {}",
+                                   layout.names.size(), join_names(layout.names)),
+                       "pick one column with --columns, or keep the names of the header");
+    if (const char c = control_character(options.rename); c != 0)
       throw InputError(
           file, 0, 0,
-          fmt::format("a new name fits a single series, but the file has {}: {}",
-                      layout.names.size(), join_names(layout.names)),
-          "pick one column with --columns, or keep the names of the header");
+          fmt::format("the new name '{}' holds {}", printable(options.rename), what_control(c)),
+          "give a name that fits on one line");
     layout.names[0] = std::string(trim(options.rename));
   }
 
@@ -383,11 +440,11 @@ std::size_t parse_rows(CsvReader reader, const Layout& layout, std::size_t first
     const long line = record.line;
     if (fields.size() != layout.width) {
       if (all_blank(fields)) throw blank_line(file, line);
-      throw InputError(file, line, 0,
-                       fmt::format("the row has {} fields but the header has {}", fields.size(),
-                                   layout.width),
-                       "give every row one field per header column; leave a cell empty when "
-                       "a value is missing");
+      throw InputError(
+          file, line, 0,
+          fmt::format("the row has {} fields but the header has {}", fields.size(), layout.width),
+          "give every row one field per header column; leave a cell empty when "
+          "a value is missing");
     }
     const std::string_view date_text = trim(fields[layout.date_field]);
     const ParsedDate date = parse_date(date_text);
@@ -414,12 +471,8 @@ std::size_t parse_rows(CsvReader reader, const Layout& layout, std::size_t first
       const long column = static_cast<long>(field) + 1;
       double v = 0;
       switch (parse_cell(text, v)) {
-        case Cell::value:
-          table.columns[j][row] = convert(layout, v, text, line, column);
-          break;
-        case Cell::missing:
-          table.columns[j][row] = kMissing;
-          break;
+        case Cell::value: table.columns[j][row] = convert(layout, v, text, line, column); break;
+        case Cell::missing: table.columns[j][row] = kMissing; break;
         case Cell::not_finite:
           throw InputError(file, line, column,
                            fmt::format("{} is not a finite number", quoted(trim(text))),
@@ -515,10 +568,10 @@ void check_return_scale(const Layout& layout, std::size_t j, const std::vector<d
                                  "positive, median {:.4g})",
                                  name, median),
                      "pass --levels if these are prices, or --percent if they are percent returns");
-  throw InputError(layout.file, header_line, column,
-                   fmt::format("column '{}' looks like percent (median |value| {:.4g})", name,
-                               median),
-                   "pass --percent, or --levels if these are prices");
+  throw InputError(
+      layout.file, header_line, column,
+      fmt::format("column '{}' looks like percent (median |value| {:.4g})", name, median),
+      "pass --percent, or --levels if these are prices");
 }
 
 unsigned thread_count(const SeriesFileOptions& options, std::size_t bytes) {
@@ -552,8 +605,7 @@ SeriesFile parse_series_file(const std::string& display_name, std::string_view c
   // Each part owns a block of rows as long as its lines (one more for the last line, which
   // may lack a line end), so the parts write straight into one table in file order.
   std::vector<std::size_t> first_row(parts.size() + 1, 0);
-  run_parallel(parts.size(),
-               [&](std::size_t k) { first_row[k + 1] = parts[k].count_line_ends(); });
+  run_parallel(parts.size(), [&](std::size_t k) { first_row[k + 1] = parts[k].count_line_ends(); });
   first_row.back() += 1;
   for (std::size_t k = 1; k < first_row.size(); ++k) first_row[k] += first_row[k - 1];
   const std::size_t capacity = first_row.back();
@@ -607,13 +659,13 @@ SeriesFile parse_series_file(const std::string& display_name, std::string_view c
   const long date_column = static_cast<long>(layout.date_field) + 1;
   for (std::size_t i = 1; i < n; ++i) {
     if (month_only[i] == month_only[0]) continue;
-    throw InputError(display_name, lines[i], date_column,
-                     fmt::format("{} is {} but line {} has {} {}",
-                                 month_or_day(dates[i], month_only[i]),
-                                 month_only[i] ? "a month" : "a full date", lines[0],
-                                 month_only[0] ? "a month," : "a full date,",
-                                 month_or_day(dates[0], month_only[0])),
-                     "write every date in one form: YYYY-MM-DD or YYYY-MM");
+    throw InputError(
+        display_name, lines[i], date_column,
+        fmt::format("{} is {} but line {} has {} {}", month_or_day(dates[i], month_only[i]),
+                    month_only[i] ? "a month" : "a full date", lines[0],
+                    month_only[0] ? "a month," : "a full date,",
+                    month_or_day(dates[0], month_only[0])),
+        "write every date in one form: YYYY-MM-DD or YYYY-MM");
   }
 
   result.month_only_dates = month_only[0] != 0;
@@ -646,8 +698,7 @@ SeriesFile parse_series_file(const std::string& display_name, std::string_view c
   if (first_disorder != 0)
     result.notes.push_back(fmt::format(
         "dates were out of order and have been sorted (line {} has {} after {})",
-        lines[first_disorder],
-        month_or_day(dates[first_disorder], month_only[first_disorder]),
+        lines[first_disorder], month_or_day(dates[first_disorder], month_only[first_disorder]),
         month_or_day(dates[first_disorder - 1], month_only[first_disorder - 1])));
 
   std::vector<Day> sorted_dates(n);

@@ -61,8 +61,8 @@ bool is_tenor(std::string_view name);
 
 struct SeriesFileOptions {
   SeriesKind kind = SeriesKind::strategy;
-  std::string date_column;           // empty: the first column
-  std::vector<std::string> columns;  // empty: every other column; the result keeps file order
+  std::string date_column;              // empty: the first column
+  std::vector<std::string> columns;     // empty: every other column; the result keeps file order
   ValueUnit unit = ValueUnit::decimal;  // rates: percent or decimal only (see default_unit)
   RateQuote quote = RateQuote::yield;   // rates only; metadata, values are not converted
   std::string rename;  // new name of the single series column (error when there are several)
@@ -73,8 +73,8 @@ struct SeriesFileOptions {
 };
 
 struct SeriesColumn {
-  std::string name;           // header name, or options.rename; rate tenors upper-cased
-  std::vector<Day> dates;     // ascending, unique
+  std::string name;            // header name, or options.rename; rate tenors upper-cased
+  std::vector<Day> dates;      // ascending, unique
   std::vector<double> values;  // same length as dates; NaN = missing
 };
 

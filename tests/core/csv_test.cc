@@ -12,9 +12,13 @@ namespace {
 
 using Rows = std::vector<std::vector<std::string>>;
 
-Rows rows_of(std::string_view text) { return read_csv_table("t.csv", text).rows; }
+Rows rows_of(std::string_view text) {
+  return read_csv_table("t.csv", text).rows;
+}
 
-std::vector<long> lines_of(std::string_view text) { return read_csv_table("t.csv", text).lines; }
+std::vector<long> lines_of(std::string_view text) {
+  return read_csv_table("t.csv", text).lines;
+}
 
 std::string error_of(std::string_view text) {
   try {
@@ -50,10 +54,18 @@ TEST(Csv, AcceptsCrlfAndLfLineEnds) {
 }
 
 TEST(Csv, SkipsByteOrderMark) {
-  EXPECT_EQ(rows_of("\xEF\xBB\xBF" "date,a\n2021-01,1\n"), (Rows{{"date", "a"}, {"2021-01", "1"}}));
-  EXPECT_EQ(lines_of("\xEF\xBB\xBF" "date,a\n2021-01,1\n"), (std::vector<long>{1, 2}));
+  EXPECT_EQ(rows_of("\xEF\xBB\xBF"
+                    "date,a\n2021-01,1\n"),
+            (Rows{{"date", "a"}, {"2021-01", "1"}}));
+  EXPECT_EQ(lines_of("\xEF\xBB\xBF"
+                     "date,a\n2021-01,1\n"),
+            (std::vector<long>{1, 2}));
   // Only at the start: elsewhere the bytes are data.
-  EXPECT_EQ(rows_of("a\n\xEF\xBB\xBF" "b\n"), (Rows{{"a"}, {"\xEF\xBB\xBF" "b"}}));
+  EXPECT_EQ(rows_of("a\n\xEF\xBB\xBF"
+                    "b\n"),
+            (Rows{{"a"},
+                  {"\xEF\xBB\xBF"
+                   "b"}}));
 }
 
 TEST(Csv, ReadsQuotedFieldsWithCommasEscapesAndLineEnds) {
@@ -142,7 +154,8 @@ TEST(Csv, SplitReadsTheSameRecordsAsOneReader) {
     if (i % 101 == 50) body += "\n";
     body += std::to_string(i) + "," + std::string(static_cast<std::size_t>(i % 13), 'x') + ",z\n";
   }
-  for (const std::string& text : {"h1,h2,h3\n" + body + "end,1,2", "h1,h2,h3\n" + body + "\n ,\n"}) {
+  for (const std::string& text :
+       {"h1,h2,h3\n" + body + "end,1,2", "h1,h2,h3\n" + body + "\n ,\n"}) {
     CsvReader whole("t.csv", text);
     CsvRecord record;
     ASSERT_TRUE(whole.next(record));  // header

@@ -37,7 +37,9 @@ std::string error_of(std::string_view text, const SeriesFileOptions& options = k
   return "no error";
 }
 
-std::string fixture_path(const std::string& name) { return "fixtures/ingest/" + name; }
+std::string fixture_path(const std::string& name) {
+  return "fixtures/ingest/" + name;
+}
 
 SeriesFile parse_fixture(const std::string& name, const SeriesFileOptions& options) {
   const std::string text = testing::read_file(testing::source_path(fixture_path(name)));
@@ -53,7 +55,9 @@ std::string fixture_error(const std::string& name, const SeriesFileOptions& opti
   return "no error";
 }
 
-Day day(const char* text) { return parse_date(text).day; }
+Day day(const char* text) {
+  return parse_date(text).day;
+}
 
 // Compares two results exactly, NaN included (bit patterns).
 bool same(const SeriesFile& a, const SeriesFile& b) {
@@ -72,8 +76,8 @@ bool same(const SeriesFile& a, const SeriesFile& b) {
 // ---- names -------------------------------------------------------------------------------
 
 TEST(SeriesFileNames, RoundTrip) {
-  for (auto kind : {SeriesKind::strategy, SeriesKind::benchmark, SeriesKind::rate,
-                    SeriesKind::factor})
+  for (auto kind :
+       {SeriesKind::strategy, SeriesKind::benchmark, SeriesKind::rate, SeriesKind::factor})
     EXPECT_EQ(parse_series_kind(series_kind_name(kind)), kind);
   for (auto unit : {ValueUnit::decimal, ValueUnit::percent, ValueUnit::levels})
     EXPECT_EQ(parse_value_unit(value_unit_name(unit)), unit);
@@ -110,7 +114,8 @@ TEST(SeriesFile, ReadsDecimalReturnsAndTrimsMissingEnds) {
   EXPECT_EQ(slow.values[3], 0.0102);
   // carry_late starts in March and stops in May: the empty ends are dropped.
   const auto& late = file.columns[2];
-  EXPECT_EQ(late.dates, (std::vector<Day>{day("2021-03-31"), day("2021-04-30"), day("2021-05-31")}));
+  EXPECT_EQ(late.dates,
+            (std::vector<Day>{day("2021-03-31"), day("2021-04-30"), day("2021-05-31")}));
   EXPECT_EQ(late.values, (std::vector<double>{0.0150, -0.0075, 0.0061}));
 }
 
@@ -187,18 +192,24 @@ TEST(SeriesFile, ReadsBomCrlfAndQuotedNames) {
   ASSERT_EQ(file.columns.size(), 3u);
   EXPECT_EQ(file.columns[0].name, "Fund, A");
   EXPECT_EQ(file.columns[1].name, "The \"B\" fund");
-  EXPECT_EQ(file.columns[2].name, "multi\nline");
-  EXPECT_EQ(file.columns[0].values, (std::vector<double>{0.01, 0.04}));
+  EXPECT_EQ(file.columns[2].name, "plain");
+  EXPECT_EQ(file.columns[0].values, (std::vector<double>{0.01, 0.04}));  // "0.04" was quoted
   EXPECT_EQ(file.columns[2].values, (std::vector<double>{0.03, 0.06}));
-  // The header spans lines 1 and 2, so the first data row is line 3.
-  EXPECT_EQ(error_of("date,\"multi\nline\"\r\n2021-01,zz\r\n"),
-            "f.csv:3:2: 'zz' is not a number (write plain numbers such as 0.0123 or -1.5e-3; "
+}
+
+TEST(SeriesFile, CountsLinesInsideQuotedCells) {
+  // The memo cell of line 2 spans lines 2 and 3, so the bad value is on line 4.
+  SeriesFileOptions options = kDecimal;
+  options.columns = {"a"};
+  EXPECT_EQ(error_of("date,a,memo\r\n2021-01,0.01,\"two\r\nlines\"\r\n2021-02,zz,x\r\n", options),
+            "f.csv:4:2: 'zz' is not a number (write plain numbers such as 0.0123 or -1.5e-3; "
             "leave the cell empty or write NA when a value is missing)");
 }
 
 TEST(SeriesFile, AcceptsMissingMarkersSignsAndBlanks) {
   const SeriesFile file = parse_series_file(
-      "f.csv", "date , a\n 2021-01 ,+0.01\n2021-02, NA\n2021-03,n/a\n2021-04,na\n2021-05,\t-2e-2 \n",
+      "f.csv",
+      "date , a\n 2021-01 ,+0.01\n2021-02, NA\n2021-03,n/a\n2021-04,na\n2021-05,\t-2e-2 \n",
       kDecimal);
   ASSERT_EQ(file.columns.size(), 1u);
   EXPECT_EQ(file.columns[0].name, "a");
@@ -214,10 +225,11 @@ TEST(SeriesFile, ParsesNumbersLikeFromChars) {
   const SeriesFile file = parse_series_file(
       "f.csv",
       "d,a\n2021-01,0.1\n2021-02,-0.0000001\n2021-03,0.123456789012345\n2021-04,.5\n"
-      "2021-05,1e-3\n2021-06,0.30000000000000004441\n2021-07,-0\n",
+      "2021-05,1e-3\n2021-06,0.30000000000000004441\n2021-07,-0\n2021-08,1e-999\n"
+      "2021-09,0.1\n",
       kDecimal);
   const auto& v = file.columns[0].values;
-  ASSERT_EQ(v.size(), 7u);
+  ASSERT_EQ(v.size(), 9u);
   EXPECT_EQ(v[0], 0.1);
   EXPECT_EQ(v[1], -0.0000001);
   EXPECT_EQ(v[2], 0.123456789012345);
@@ -225,6 +237,7 @@ TEST(SeriesFile, ParsesNumbersLikeFromChars) {
   EXPECT_EQ(v[4], 1e-3);
   EXPECT_EQ(v[5], 0.30000000000000004441);
   EXPECT_TRUE(v[6] == 0 && std::signbit(v[6]));
+  EXPECT_EQ(v[7], 0.0);  // underflows to zero: tiny, but finite
 }
 
 TEST(SeriesFile, SelectsColumnsInFileOrder) {
@@ -300,14 +313,33 @@ TEST(SeriesFileErrors, NoHeader) {
   const std::string fix = " (add a header row naming the date column and each series)";
   EXPECT_EQ(fixture_error("no_header.csv"),
             "fixtures/ingest/no_header.csv:1:1: the first row starts with the date 2021-01-29 "
-            "where a header belongs" + fix);
-  EXPECT_EQ(error_of("2021-02-30,0.01\n"),
-            "f.csv:1:1: the first row starts with the date 2021-02-30 where a header belongs" +
+            "where a header belongs" +
                 fix);
-  EXPECT_EQ(error_of("date,a,,b\n2021-01,1,2,3\n"), "f.csv:1:3: column 3 has no name in the header" + fix);
+  EXPECT_EQ(
+      error_of("2021-02-30,0.01\n"),
+      "f.csv:1:1: the first row starts with the date 2021-02-30 where a header belongs" + fix);
+  EXPECT_EQ(error_of("date,a,,b\n2021-01,1,2,3\n"),
+            "f.csv:1:3: column 3 has no name in the header" + fix);
   EXPECT_EQ(error_of("\ndate,a\n2021-01,0.01\n"),
             "f.csv:1: the first line is blank where the header row belongs (remove the blank "
             "lines above the header row)");
+}
+
+TEST(SeriesFileErrors, NameWithALineBreak) {
+  EXPECT_EQ(fixture_error("name_with_line_break.csv"),
+            "fixtures/ingest/name_with_line_break.csv:1:2: column name 'x\\ny' holds a line "
+            "break (rename the column in the header: a name must fit on one line)");
+  EXPECT_EQ(error_of("date,a\tb\n2021-01,0.01\n"),
+            "f.csv:1:2: column name 'a\\tb' holds a tab (rename the column in the header: a "
+            "name must fit on one line)");
+  // A new name replaces the header's, and is checked instead.
+  SeriesFileOptions options = kDecimal;
+  options.rename = "ok";
+  EXPECT_EQ(parse_fixture("name_with_line_break.csv", options).columns[0].name, "ok");
+  options.rename = "a\x01";
+  EXPECT_EQ(error_of("date,x\n2021-01,0.01\n", options),
+            "f.csv: the new name 'a\\x01' holds a control character (give a name that fits on "
+            "one line)");
 }
 
 TEST(SeriesFileErrors, DuplicateColumnName) {
@@ -331,7 +363,8 @@ TEST(SeriesFileErrors, RaggedRow) {
 }
 
 TEST(SeriesFileErrors, BlankLineInside) {
-  const std::string expected = "f.csv:3: the line is blank (remove the blank line between the rows)";
+  const std::string expected =
+      "f.csv:3: the line is blank (remove the blank line between the rows)";
   EXPECT_EQ(error_of("date,a\n2021-01,0.01\n\n2021-02,0.02\n"), expected);
   EXPECT_EQ(error_of("date,a\n2021-01,0.01\n , \n2021-02,0.02\n"), expected);
 }
@@ -383,7 +416,8 @@ TEST(SeriesFileErrors, NotFinite) {
             "fixtures/ingest/nan_value.csv:3:2: 'NaN' is not a finite number" + fix);
   EXPECT_EQ(fixture_error("infinite_value.csv"),
             "fixtures/ingest/infinite_value.csv:3:2: 'inf' is not a finite number" + fix);
-  EXPECT_EQ(error_of("date,a\n2021-01,-Infinity\n"), "f.csv:2:2: '-Infinity' is not a finite number" + fix);
+  EXPECT_EQ(error_of("date,a\n2021-01,-Infinity\n"),
+            "f.csv:2:2: '-Infinity' is not a finite number" + fix);
   EXPECT_EQ(error_of("date,a\n2021-01,1e999\n"), "f.csv:2:2: '1e999' is not a finite number" + fix);
   EXPECT_EQ(error_of("date,1M\n2021-01,nan\n", kRatePercent),
             "f.csv:2:2: 'nan' is not a finite number" + fix);
