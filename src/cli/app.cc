@@ -47,6 +47,9 @@ int run_app(int argc, char** argv) {
   setup_evaluate(app, global);
   setup_runs(app, global);
   setup_show(app, global);
+  setup_rerun(app, global);
+  setup_reproduce(app, global);
+  setup_compare(app, global);
   setup_verify(app, global);
   setup_query(app, global);
   setup_demo(app, global);

@@ -24,5 +24,8 @@ void setup_runs(CLI::App& app, const GlobalOptions& global);
 void setup_show(CLI::App& app, const GlobalOptions& global);
 void setup_verify(CLI::App& app, const GlobalOptions& global);
 void setup_query(CLI::App& app, const GlobalOptions& global);
+void setup_rerun(CLI::App& app, const GlobalOptions& global);
+void setup_reproduce(CLI::App& app, const GlobalOptions& global);
+void setup_compare(CLI::App& app, const GlobalOptions& global);
 
 }  // namespace alphatrail::cli

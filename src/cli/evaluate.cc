@@ -503,3 +503,40 @@ void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std
 }
 
 }  // namespace alphatrail::cli
+
+namespace alphatrail::cli {
+
+EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bool pin_versions) {
+  const auto row = ledger::read_run_row(ledger, run_id);
+  if (!row)
+    throw Error(ExitCode::not_found,
+                fmt::format("no run {}; `alphatrail runs` lists them", run_id));
+  const auto p = nlohmann::json::parse(row->parameters_json);
+  EvaluateRequest rq;
+  rq.strategies = {row->strategy};
+  rq.benchmark = row->benchmark;
+  const std::string tenor = p.at("rate_tenor");
+  const std::string curve = row->rate.substr(0, row->rate.rfind(':'));
+  rq.rate = p.at("tenor_rule") == "given" ? curve + ":" + tenor : curve;
+  for (const auto& f : p.at("factors"))
+    rq.factors.push_back(fmt::format("{}:{}", f.at("set").get<std::string>(),
+                                     fmt::join(f.at("columns").get<std::vector<std::string>>(), ",")));
+  if (p.at("frequency_rule") == "given") rq.frequency = p.at("frequency");
+  if (p.at("from").is_string()) rq.from = p.at("from");
+  if (p.at("to").is_string()) rq.to = p.at("to");
+  rq.errors = p.at("errors");
+  rq.lags = p.at("lags").is_string() ? "auto" : std::to_string(p.at("lags").get<int>());
+  rq.small_sample = p.at("small_sample").get<bool>() ? "on" : "off";
+  rq.confidence = p.at("confidence");
+  rq.rate_basis = p.at("rate_basis");
+  rq.rate_timing = p.at("rate_timing");
+  rq.annualize = p.at("annualize");
+  rq.study = row->study.value_or("");
+  rq.note = row->note.value_or("");
+  if (pin_versions)
+    for (const auto& in : ledger::read_run_inputs(ledger, run_id))
+      rq.pinned_versions[in.series] = in.version;
+  return rq;
+}
+
+}  // namespace alphatrail::cli

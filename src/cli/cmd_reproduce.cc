@@ -1,0 +1,62 @@
+#include <CLI/CLI.hpp>
+#include <fmt/format.h>
+
+#include <iostream>
+
+#include "cli/commands.h"
+#include "cli/evaluate.h"
+#include "cli/json_diff.h"
+#include "core/error.h"
+#include "version.h"
+
+namespace alphatrail::cli {
+
+namespace {
+
+void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::read_only, std::cerr);
+  const auto row = ledger::read_run_row(ledger, run_id);
+  if (!row) throw Error(ExitCode::not_found, fmt::format("no run {}; `alphatrail runs` lists them", run_id));
+  auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
+  const auto& p = pending.front();
+  const std::string recomputed_hash =
+      ledger::inputs_hash(kEngineVersion, p.run.parameters.dump(), p.run.inputs);
+
+  // The reading counts runs in the ledger, so compare the figures, not the words.
+  auto stored = nlohmann::ordered_json::parse(row->result_json);
+  auto fresh = ledger::result_json(p.result, {});
+  for (auto* j : {&stored, &fresh}) j->erase("reading");
+  const auto differences = json_differences(stored, fresh);
+
+  std::cout << fmt::format("run {} ({}), recorded by engine {}; this is engine {}\n", run_id,
+                           row->strategy, row->engine_version, kEngineVersion);
+  std::cout << fmt::format("inputs hash: stored {}, recomputed {} ({})\n", row->inputs_hash.substr(0, 12),
+                           recomputed_hash.substr(0, 12),
+                           recomputed_hash == row->inputs_hash ? "identical" : "different");
+  for (const auto& d : differences)
+    std::cout << fmt::format("  {}: stored {}, recomputed {}\n", d.path, d.before.dump(), d.after.dump());
+  if (differences.empty() && recomputed_hash == row->inputs_hash) {
+    std::cout << "reproduced: every coefficient and statistic is identical, bit for bit\n";
+    return;
+  }
+  throw Error(ExitCode::verify_failed,
+              fmt::format("run {} does not reproduce: {} value{} differ{}", run_id,
+                          differences.size(), differences.size() == 1 ? "" : "s",
+                          row->engine_version != kEngineVersion
+                              ? fmt::format(" (the engine changed from {} to {})",
+                                            row->engine_version, kEngineVersion)
+                              : ""));
+}
+
+}  // namespace
+
+void setup_reproduce(CLI::App& app, const GlobalOptions& global) {
+  auto run_id = std::make_shared<std::int64_t>(0);
+  auto* cmd = app.add_subcommand(
+      "reproduce", "Recompute a run from its stored input versions and parameters and compare");
+  cmd->add_option("run", *run_id, "Run id")->required();
+  cmd->callback([run_id, &global] { run_reproduce(*run_id, global); });
+}
+
+}  // namespace alphatrail::cli

@@ -1,0 +1,141 @@
+#include <CLI/CLI.hpp>
+#include <SQLiteCpp/Statement.h>
+#include <fmt/format.h>
+#include <unistd.h>
+
+#include <cmath>
+#include <iostream>
+
+#include "cli/commands.h"
+#include "cli/evaluate.h"
+#include "cli/output.h"
+#include "core/error.h"
+
+namespace alphatrail::cli {
+
+namespace {
+
+struct RerunOptions {
+  std::vector<std::int64_t> runs;
+  bool all_stale = false;
+  bool dry_run = false;
+  Format format = Format::table;
+};
+
+// Stale runs that no later run revises yet.
+std::vector<std::int64_t> unrevised_stale_runs(ledger::Ledger& ledger) {
+  std::vector<std::int64_t> ids;
+  SQLite::Statement q(ledger.db(),
+                      "SELECT run_id FROM run_summary s WHERE stale AND NOT EXISTS (SELECT 1 "
+                      "FROM runs r WHERE r.revises_run_id = s.run_id) ORDER BY run_id");
+  while (q.executeStep()) ids.push_back(q.getColumn(0).getInt64());
+  return ids;
+}
+
+std::string revisions_of(ledger::Ledger& ledger, std::int64_t run_id) {
+  std::vector<std::string> parts;
+  SQLite::Statement q(ledger.db(),
+                      "SELECT series, version, latest_version FROM run_input_versions WHERE "
+                      "run_id = ? AND latest_version > version");
+  q.bind(1, run_id);
+  while (q.executeStep())
+    parts.push_back(fmt::format("{} v{} -> v{}", q.getColumn(0).getString(), q.getColumn(1).getInt(),
+                                q.getColumn(2).getInt()));
+  return parts.empty() ? "no newer input versions" : fmt::format("{}", fmt::join(parts, ", "));
+}
+
+std::string verdict(double p_old, double p_new, double a_old, double a_new, double level) {
+  std::vector<std::string> flips;
+  if (p_old < level && !(p_new < level)) flips.push_back("significance lost");
+  if (!(p_old < level) && p_new < level) flips.push_back("became significant");
+  if ((a_old > 0) != (a_new > 0)) flips.push_back("alpha changed sign");
+  return flips.empty() ? "conclusion unchanged" : fmt::format("FLIPPED: {}", fmt::join(flips, ", "));
+}
+
+std::string fixed(double v, int digits) { return std::isnan(v) ? "n/a" : fmt::format("{:.{}f}", v, digits); }
+
+void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::existing, std::cerr);
+  if (o.runs.empty() && !o.all_stale)
+    throw Error(ExitCode::usage, "name the runs to re-run, or pass --all-stale");
+  std::vector<std::int64_t> ids = o.all_stale ? unrevised_stale_runs(ledger) : o.runs;
+  if (ids.empty()) {
+    std::cout << "no stale runs: every run used the latest versions of its inputs\n";
+    return;
+  }
+  if (o.dry_run) {
+    for (auto id : ids) {
+      const auto row = ledger::read_run_row(ledger, id);
+      if (!row) throw Error(ExitCode::not_found, fmt::format("no run {}; `alphatrail runs` lists them", id));
+      std::cout << fmt::format("would re-run run {} ({}): {}\n", id, row->strategy, revisions_of(ledger, id));
+    }
+    return;
+  }
+  std::vector<PendingRun> pending;
+  for (auto id : ids) {
+    auto rq = request_from_run(ledger, id, false);
+    rq.revises_run_id = id;
+    auto one = evaluate_request(ledger, rq);
+    for (auto& p : one) pending.push_back(std::move(p));
+  }
+  const auto new_ids = record_runs(ledger, pending, isatty(2) != 0);
+
+  Table table;
+  table.header = {"run", "new run", "strategy", "alpha a year", "alpha t", "alpha p", "beta",
+                  "R2", "conclusion"};
+  auto array = nlohmann::ordered_json::array();
+  for (std::size_t i = 0; i < ids.size(); ++i) {
+    const auto before = *ledger::read_run_row(ledger, ids[i]);
+    const auto after = *ledger::read_run_row(ledger, new_ids[i]);
+    const double level = 1.0 - pending[i].settings.confidence;
+    const std::string conclusion =
+        verdict(before.alpha_p, after.alpha_p, before.alpha, after.alpha, level);
+    const auto pair = [](const std::string& a, const std::string& b) { return a + " -> " + b; };
+    table.rows.push_back(
+        {std::to_string(ids[i]), std::to_string(new_ids[i]), after.strategy,
+         pair(fmt::format("{:+.2f}%", 100 * before.alpha_annualized),
+              fmt::format("{:+.2f}%", 100 * after.alpha_annualized)),
+         pair(fixed(before.alpha_t, 2), fixed(after.alpha_t, 2)),
+         pair(fixed(before.alpha_p, 4), fixed(after.alpha_p, 4)),
+         pair(fixed(before.beta, 3), fixed(after.beta, 3)),
+         pair(fixed(before.r_squared, 3), fixed(after.r_squared, 3)), conclusion});
+    array.push_back({{"run_id", ids[i]},
+                     {"new_run_id", new_ids[i]},
+                     {"strategy", after.strategy},
+                     {"before", {{"alpha_annualized", json_number(before.alpha_annualized)},
+                                 {"alpha_t", json_number(before.alpha_t)},
+                                 {"alpha_p", json_number(before.alpha_p)},
+                                 {"beta", json_number(before.beta)},
+                                 {"r_squared", json_number(before.r_squared)}}},
+                     {"after", {{"alpha_annualized", json_number(after.alpha_annualized)},
+                                {"alpha_t", json_number(after.alpha_t)},
+                                {"alpha_p", json_number(after.alpha_p)},
+                                {"beta", json_number(after.beta)},
+                                {"r_squared", json_number(after.r_squared)}}},
+                     {"conclusion", conclusion}});
+  }
+  switch (o.format) {
+    case Format::json: print_json(std::cout, array); break;
+    case Format::csv: print_csv(std::cout, table); break;
+    case Format::table:
+      print_table(std::cout, table);
+      std::cout << "\nalpha a year as each run annualizes it; significance at each run's own "
+                   "confidence level.\n";
+  }
+}
+
+}  // namespace
+
+void setup_rerun(CLI::App& app, const GlobalOptions& global) {
+  auto o = std::make_shared<RerunOptions>();
+  auto* cmd = app.add_subcommand(
+      "rerun", "Re-evaluate stale runs against the latest input versions, same parameters");
+  cmd->add_option("runs", o->runs, "Runs to re-run");
+  cmd->add_flag("--all-stale", o->all_stale, "Every stale run not yet re-run");
+  cmd->add_flag("--dry-run", o->dry_run, "List what would be re-run and why; record nothing");
+  add_format_option(*cmd, o->format);
+  cmd->callback([o, &global] { run_rerun(*o, global); });
+}
+
+}  // namespace alphatrail::cli
