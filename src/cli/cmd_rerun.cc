@@ -54,24 +54,10 @@ std::string verdict(double p_old, double p_new, double a_old, double a_new, doub
 
 std::string fixed(double v, int digits) { return std::isnan(v) ? "n/a" : fmt::format("{:.{}f}", v, digits); }
 
-void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::existing, std::cerr);
-  if (o.runs.empty() && !o.all_stale)
-    throw Error(ExitCode::usage, "name the runs to re-run, or pass --all-stale");
-  std::vector<std::int64_t> ids = o.all_stale ? unrevised_stale_runs(ledger) : o.runs;
-  if (ids.empty()) {
-    std::cout << "no stale runs: every run used the latest versions of its inputs\n";
-    return;
-  }
-  if (o.dry_run) {
-    for (auto id : ids) {
-      const auto row = ledger::read_run_row(ledger, id);
-      if (!row) throw Error(ExitCode::not_found, fmt::format("no run {}; `alphatrail runs` lists them", id));
-      std::cout << fmt::format("would re-run run {} ({}): {}\n", id, row->strategy, revisions_of(ledger, id));
-    }
-    return;
-  }
+}  // namespace
+
+void rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids, Format format,
+                std::ostream& out, bool progress) {
   std::vector<PendingRun> pending;
   for (auto id : ids) {
     auto rq = request_from_run(ledger, id, false);
@@ -79,7 +65,7 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
     auto one = evaluate_request(ledger, rq);
     for (auto& p : one) pending.push_back(std::move(p));
   }
-  const auto new_ids = record_runs(ledger, pending, isatty(2) != 0);
+  const auto new_ids = record_runs(ledger, pending, progress);
 
   Table table;
   table.header = {"run", "new run", "strategy", "alpha a year", "alpha t", "alpha p", "beta",
@@ -115,14 +101,37 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
                                 {"r_squared", json_number(after.r_squared)}}},
                      {"conclusion", conclusion}});
   }
-  switch (o.format) {
-    case Format::json: print_json(std::cout, array); break;
-    case Format::csv: print_csv(std::cout, table); break;
+  switch (format) {
+    case Format::json: print_json(out, array); break;
+    case Format::csv: print_csv(out, table); break;
     case Format::table:
-      print_table(std::cout, table);
-      std::cout << "\nalpha a year as each run annualizes it; significance at each run's own "
+      print_table(out, table);
+      out << "\nalpha a year as each run annualizes it; significance at each run's own "
                    "confidence level.\n";
   }
+}
+
+namespace {
+
+void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::existing, std::cerr);
+  if (o.runs.empty() && !o.all_stale)
+    throw Error(ExitCode::usage, "name the runs to re-run, or pass --all-stale");
+  std::vector<std::int64_t> ids = o.all_stale ? unrevised_stale_runs(ledger) : o.runs;
+  if (ids.empty()) {
+    std::cout << "no stale runs: every run used the latest versions of its inputs\n";
+    return;
+  }
+  if (o.dry_run) {
+    for (auto id : ids) {
+      const auto row = ledger::read_run_row(ledger, id);
+      if (!row) throw Error(ExitCode::not_found, fmt::format("no run {}; `alphatrail runs` lists them", id));
+      std::cout << fmt::format("would re-run run {} ({}): {}\n", id, row->strategy, revisions_of(ledger, id));
+    }
+    return;
+  }
+  rerun_runs(ledger, ids, o.format, std::cout, isatty(2) != 0);
 }
 
 }  // namespace

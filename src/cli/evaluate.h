@@ -63,6 +63,12 @@ EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bo
 std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger,
                                               const EvaluateRequest& request, bool progress);
 
+// Re-evaluates runs against the latest versions of their inputs with the same parameters,
+// records each as a run that revises the old one, and prints old and new figures with a
+// plain verdict when a conclusion flipped.
+void rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids, Format format,
+                std::ostream& out, bool progress);
+
 // Prints runs in the chosen format: a block per run (a table for many), a JSON array of run
 // objects, or CSV with one row per run.
 void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std::int64_t>& runs,

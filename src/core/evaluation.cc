@@ -397,16 +397,24 @@ std::vector<std::string> compose_reading(const EvaluationResult& r,
   const double beta = fit.coefficients[1].estimate;
   const auto& a = fit.coefficients[0];
 
-  if (beta > 1)
+  // Classify beta as it is printed, so that 1.00 never reads as "more" or "less" strongly.
+  const double shown = std::round(beta * 100) / 100;
+  if (shown > 1)
     out.push_back(fmt::format(
         "Beta is {:.2f}: the strategy moves with the market, more strongly than the market "
         "itself (a 1% market excess return goes with about {:.2f}% in the strategy).",
         beta, beta));
-  else if (beta > 0)
+  else if (shown == 1)
+    out.push_back(fmt::format(
+        "Beta is {:.2f}: the strategy moves with the market about one for one.", beta));
+  else if (shown > 0)
     out.push_back(fmt::format(
         "Beta is {:.2f}: the strategy moves with the market, less strongly than the market "
         "itself (a 1% market excess return goes with about {:.2f}% in the strategy).",
         beta, beta));
+  else if (shown == 0)
+    out.push_back(fmt::format(
+        "Beta is {:.2f}: the strategy hardly moves with the market at all.", std::abs(beta)));
   else
     out.push_back(fmt::format(
         "Beta is {:.2f}: the strategy tends to move against the market (a 1% market excess "

@@ -21,7 +21,7 @@ inline constexpr int kApplicationId = 0x4154524C;
 enum class OpenMode {
   create,     // create the file if missing (and say so), migrate
   existing,   // the file must exist, migrate
-  read_only,  // the file must exist and be current; no writes
+  read_only,  // the file must exist; upgraded if older, then opened without writes
 };
 
 // Returns the ledger path: the --ledger option when given, else $ALPHATRAIL_LEDGER, else
@@ -30,7 +30,8 @@ std::filesystem::path resolve_ledger_path(const std::string& option_value);
 
 class Ledger {
  public:
-  // Opens (and when needed creates or upgrades) the ledger; notices go to `notices`.
+  // Opens (and when needed creates or upgrades) the ledger; notices go to `notices`. An older
+  // ledger is upgraded first in every mode, read_only included.
   static Ledger open(const std::filesystem::path& path, OpenMode mode, std::ostream& notices);
 
   SQLite::Database& db() { return *db_; }

@@ -585,17 +585,19 @@ TEST_F(IngestTest, LevelsBecomeSimpleReturns) {
 }
 
 TEST_F(IngestTest, PercentReturnsAreDividedByOneHundred) {
+  // Percent is divided by 100, not multiplied by 0.01: 1.04 / 100 is the double nearest 0.0104,
+  // while 1.04 * 0.01 is 0.010400000000000001, so the stored text tells the two apart.
   const std::string file =
-      write("pct.csv", "date,p\n2021-01-31,1.5\n2021-02-28,-2.25\n2021-03-31,0.75\n");
+      write("pct.csv", "date,p\n2021-01-31,1.04\n2021-02-28,-2.25\n2021-03-31,0.75\n");
   const CommandResult r = ingest({"strategy", file, "--percent"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto obs = observations(ledger_, "p", 1);
   ASSERT_EQ(obs.size(), 3u);
-  EXPECT_DOUBLE_EQ(*obs[0].value, 1.5 / 100);  // 0.015
+  EXPECT_DOUBLE_EQ(*obs[0].value, 1.04 / 100);
   EXPECT_DOUBLE_EQ(*obs[1].value, -2.25 / 100);
   EXPECT_DOUBLE_EQ(*obs[2].value, 0.75 / 100);
   EXPECT_EQ(text(ledger_, "SELECT values_json FROM version_columns"),
-            R"({"2021-01-31":0.015,"2021-02-28":-0.0225,"2021-03-31":0.0075})");
+            R"({"2021-01-31":0.0104,"2021-02-28":-0.0225,"2021-03-31":0.0075})");
   EXPECT_EQ(text(ledger_, "SELECT input_unit || '|' || unit FROM series_versions"),
             "percent|decimal return");
 }
@@ -751,7 +753,7 @@ TEST_F(IngestTest, NamedPipeIsRead) {
   const int unblock = open(fifo.c_str(), O_RDONLY | O_NONBLOCK);
   writer.join();
   if (unblock >= 0) close(unblock);
-  EXPECT_EQ(r.exit_code, 0) << r.err;
+  ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_EQ(observations(ledger_, "seed", 1).size(), 3u);
 }
 

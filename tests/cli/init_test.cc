@@ -264,8 +264,9 @@ TEST_F(V1Fixture, IngestAddsBesideTheOldData) {
           .string();
   const CommandResult r = run_alphatrail({"--ledger", ledger_.string(), "ingest", "strategy", csv});
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  if (fixture_version_ < current_schema_version())
+  if (fixture_version_ < current_schema_version()) {
     EXPECT_TRUE(contains(r.err, upgrade_notice())) << r.err;
+  }
   EXPECT_TRUE(contains(r.out, "strategy fund-one: version 2 (")) << r.out;
   expect_upgraded_with_data();
 }

@@ -1,0 +1,554 @@
+// Command-level tests of `alphatrail verify` and `alphatrail query` through the real binary.
+//
+// verify: a fresh demo ledger checks out (exit 0); copies altered by raw SQL (triggers dropped
+// and restored around the edit, so the schema stays as it was) must exit 7 with a MISMATCH
+// line naming the altered object; a file with garbage bytes must exit 4 or 7 without
+// crashing. Every altered copy is first checked with SQLite's own integrity check: the
+// logical edits leave a sound SQLite file, which is why the ledger needs its own hashes.
+//
+// query: the views answer as expected in JSON, CSV and table form; statements that would write
+// exit 2 and leave the file byte for byte as it was.
+#include <SQLiteCpp/Database.h>
+#include <SQLiteCpp/Statement.h>
+#include <SQLiteCpp/Transaction.h>
+#include <fmt/format.h>
+#include <gtest/gtest.h>
+
+#include <cstdint>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "core/sha256.h"
+#include "ledger/content.h"
+#include "support/test_support.h"
+
+namespace {
+
+namespace fs = std::filesystem;
+using alphatrail::testing::CommandResult;
+using alphatrail::testing::read_file;
+using alphatrail::testing::run_alphatrail;
+using alphatrail::testing::ScratchDir;
+using nlohmann::json;
+
+constexpr const char* kStrategies[] = {"trend-12m", "trend-3m",       "trend-6m",
+                                       "carry-g10", "defensive-tilt", "crash-hedge"};
+
+bool contains(const std::string& text, const std::string& part) {
+  return text.find(part) != std::string::npos;
+}
+
+std::vector<std::string> lines_of(const std::string& text) {
+  std::vector<std::string> lines;
+  std::istringstream in(text);
+  for (std::string line; std::getline(in, line);) lines.push_back(line);
+  return lines;
+}
+
+CommandResult at(const std::string& ledger, const std::vector<std::string>& args) {
+  std::vector<std::string> all{"--ledger", ledger};
+  all.insert(all.end(), args.begin(), args.end());
+  return run_alphatrail(all);
+}
+
+void copy_ledger(const fs::path& from, const fs::path& to) {
+  fs::copy_file(from, to, fs::copy_options::overwrite_existing);
+  const fs::path wal = from.string() + "-wal";
+  if (fs::exists(wal)) fs::copy_file(wal, to.string() + "-wal", fs::copy_options::overwrite_existing);
+}
+
+void checkpoint(const fs::path& ledger) {
+  SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
+  db.exec("PRAGMA wal_checkpoint(TRUNCATE)");
+}
+
+// SQLite's own check through a separate connection: "ok", or its first complaint.
+std::string integrity(const fs::path& ledger) {
+  try {
+    SQLite::Database db(ledger.string(), SQLite::OPEN_READONLY);
+    SQLite::Statement q(db, "PRAGMA integrity_check");
+    std::string all;
+    while (q.executeStep()) all += (all.empty() ? "" : "; ") + q.getColumn(0).getString();
+    return all;
+  } catch (const std::exception& e) {
+    return std::string("error: ") + e.what();
+  }
+}
+
+std::string sha256_of_file(const fs::path& path) {
+  return alphatrail::core::sha256_hex(read_file(path));
+}
+
+// The MISMATCH lines of a verify report.
+std::vector<std::string> mismatches(const CommandResult& r) {
+  std::vector<std::string> out;
+  for (const auto& line : lines_of(r.out))
+    if (line.rfind("MISMATCH ", 0) == 0) out.push_back(line);
+  return out;
+}
+
+// True when a MISMATCH line names the object (e.g. "run 3") and says the problem.
+bool names(const std::vector<std::string>& lines, const std::string& object,
+           const std::string& problem) {
+  for (const auto& line : lines)
+    if (line.rfind("MISMATCH " + object + ": ", 0) == 0 && contains(line, problem)) return true;
+  return false;
+}
+
+std::string joined(const std::vector<std::string>& lines) {
+  std::string out;
+  for (const auto& l : lines) out += l + "\n";
+  return out;
+}
+
+// Runs statements on the ledger the way a tamperer would: the guarding triggers dropped, the
+// rows edited, the triggers put back exactly as they were, all in one transaction. Each
+// statement must change at least one row, so that the edit really happened.
+void tamper(const fs::path& ledger, const std::vector<std::string>& triggers,
+            const std::vector<std::string>& statements) {
+  SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
+  db.exec("PRAGMA foreign_keys = OFF");
+  std::vector<std::string> trigger_sql;
+  for (const auto& t : triggers) {
+    SQLite::Statement q(db, "SELECT sql FROM sqlite_master WHERE type = 'trigger' AND name = ?");
+    q.bind(1, t);
+    ASSERT_TRUE(q.executeStep()) << "no trigger " << t;
+    trigger_sql.push_back(q.getColumn(0).getString());
+  }
+  SQLite::Transaction tx(db);
+  for (const auto& t : triggers) db.exec("DROP TRIGGER " + t);
+  for (const auto& s : statements) {
+    const int changed = db.exec(s);
+    ASSERT_GE(changed, 1) << "changed nothing: " << s;
+  }
+  for (const auto& sql : trigger_sql) db.exec(sql);
+  tx.commit();
+  db.exec("PRAGMA wal_checkpoint(TRUNCATE)");
+}
+
+std::string text_of(SQLite::Database& db, const std::string& sql) {
+  return db.execAndGet(sql).getString();
+}
+
+// The demo ledger, built once; every test works on its own copy.
+class VerifyLedgerTest : public ::testing::Test {
+ protected:
+  static void SetUpTestSuite() {
+    dir_ = new ScratchDir();
+    const CommandResult r = at(base().string(), {"demo"});
+    ASSERT_EQ(r.exit_code, 0) << r.err;
+    checkpoint(base());
+  }
+  static void TearDownTestSuite() {
+    delete dir_;
+    dir_ = nullptr;
+  }
+  static fs::path base() { return *dir_ / "demo.db"; }
+
+  void SetUp() override {
+    ASSERT_NE(dir_, nullptr);
+    copy_ledger(base(), path());
+  }
+  void TearDown() override {
+    // The sanity check every test ends with: the untouched copy is sound.
+    EXPECT_EQ(integrity(base()), "ok");
+  }
+  fs::path path() const { return scratch_ / "ledger.db"; }
+  std::string ledger() const { return path().string(); }
+
+  // Verify must report the alteration: exit 7 and a MISMATCH line for the object. The
+  // altered copy is still a sound SQLite file.
+  std::vector<std::string> expect_mismatch(const std::string& object, const std::string& problem) {
+    EXPECT_EQ(integrity(path()), "ok") << "the edit should leave a sound SQLite file";
+    const CommandResult r = at(ledger(), {"verify"});
+    EXPECT_EQ(r.exit_code, 7) << r.out << r.err;
+    const auto lines = mismatches(r);
+    EXPECT_TRUE(names(lines, object, problem))
+        << "no MISMATCH " << object << " (" << problem << ") in\n" << r.out;
+    EXPECT_TRUE(contains(r.err, "mismatch")) << r.err;
+    EXPECT_FALSE(contains(r.out, "everything checks out")) << r.out;
+    return lines;
+  }
+
+  static ScratchDir* dir_;
+  ScratchDir scratch_;
+};
+
+ScratchDir* VerifyLedgerTest::dir_ = nullptr;
+
+TEST_F(VerifyLedgerTest, FreshDemoLedgerChecksOut) {
+  EXPECT_EQ(integrity(path()), "ok");
+  const CommandResult r = at(ledger(), {"verify"});
+  EXPECT_EQ(r.exit_code, 0) << r.out << r.err;
+  EXPECT_TRUE(mismatches(r).empty()) << r.out;
+  EXPECT_TRUE(contains(r.out, "checked 9 series versions and 6 runs")) << r.out;
+  EXPECT_TRUE(contains(r.out, "everything checks out")) << r.out;
+  // The chain head printed is the last run's record hash.
+  SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
+  const std::string head = text_of(db, "SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
+  EXPECT_TRUE(contains(r.out, "chain head " + head)) << r.out;
+}
+
+TEST_F(VerifyLedgerTest, EditedObservationIsAContentHashMismatch) {
+  std::string json_text;
+  {
+    SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
+    json_text = text_of(db,
+                        "SELECT c.values_json FROM version_columns c JOIN series_versions v USING "
+                        "(version_id) JOIN series s USING (series_id) WHERE s.name = 'trend-6m'");
+  }
+  // Change the tenth number by one basis point.
+  std::size_t colon = 0;
+  for (int i = 0; i < 10; ++i) colon = json_text.find("\":", colon + 1);
+  ASSERT_NE(colon, std::string::npos);
+  const std::size_t start = colon + 2;
+  const std::size_t end = json_text.find_first_of(",}", start);
+  const double value = std::strtod(json_text.substr(start, end - start).c_str(), nullptr);
+  const std::string edited =
+      json_text.substr(0, start) + fmt::format("{}", value + 0.0001) + json_text.substr(end);
+  ASSERT_NE(edited, json_text);
+  tamper(path(), {"version_columns_no_update"},
+         {"UPDATE version_columns SET values_json = '" + edited + "' WHERE version_id = (SELECT "
+          "version_id FROM series_versions JOIN series USING (series_id) WHERE name = 'trend-6m')"});
+  const auto lines = expect_mismatch("series trend-6m version 1", "content hash");
+  EXPECT_EQ(lines.size(), 1u) << joined(lines);
+}
+
+// A tamperer who also recomputes the version's content hash is caught by the runs that used
+// the version: their inputs hashes cover the content hash.
+TEST_F(VerifyLedgerTest, EditedObservationWithRecomputedContentHashBreaksTheRunsInputsHash) {
+  std::string json_text;
+  std::string column;
+  std::int64_t run_id = 0;
+  {
+    SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
+    json_text = text_of(db, "SELECT values_json FROM version_columns c JOIN series_versions v USING "
+                            "(version_id) JOIN series s USING (series_id) WHERE s.name = 'carry-g10'");
+    column = text_of(db, "SELECT column_name FROM version_columns c JOIN series_versions v USING "
+                         "(version_id) JOIN series s USING (series_id) WHERE s.name = 'carry-g10'");
+    run_id = db.execAndGet("SELECT run_id FROM runs WHERE strategy = 'carry-g10'").getInt64();
+  }
+  const std::size_t colon = json_text.find("\":", json_text.size() / 2);
+  const std::size_t end = json_text.find_first_of(",}", colon + 2);
+  const std::string edited = json_text.substr(0, colon + 2) + "0.5" + json_text.substr(end);
+  const std::string hash = alphatrail::ledger::content_hash(
+      {"strategy", "decimal return", std::nullopt}, {{column, edited}});
+  tamper(path(), {"version_columns_no_update", "series_versions_no_update"},
+         {"UPDATE version_columns SET values_json = '" + edited + "' WHERE values_json = '" + json_text + "'",
+          "UPDATE series_versions SET content_hash = '" + hash + "' WHERE version_id = (SELECT "
+          "version_id FROM series_versions JOIN series USING (series_id) WHERE name = 'carry-g10')"});
+  const auto lines = expect_mismatch(fmt::format("run {}", run_id), "inputs hash");
+  EXPECT_FALSE(names(lines, "series carry-g10 version 1", "content hash"))
+      << "the recomputed content hash should match: " << joined(lines);
+}
+
+TEST_F(VerifyLedgerTest, EditedCoefficientBreaksThatRunsRecordHash) {
+  tamper(path(), {"run_coefficients_no_update"},
+         {"UPDATE run_coefficients SET estimate = estimate * 1.01 WHERE run_id = 2 AND position = 2"});
+  const auto lines = expect_mismatch("run 2", "record does not match its record hash");
+  EXPECT_EQ(lines.size(), 1u) << joined(lines);
+}
+
+TEST_F(VerifyLedgerTest, EditedParameterBreaksInputsAndRecordHash) {
+  {
+    SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
+    ASSERT_TRUE(contains(text_of(db, "SELECT parameters_json FROM runs WHERE run_id = 4"),
+                         "\"confidence\":0.95"));
+  }
+  tamper(path(), {"runs_no_update"},
+         {"UPDATE runs SET parameters_json = replace(parameters_json, '\"confidence\":0.95', "
+          "'\"confidence\":0.9') WHERE run_id = 4"});
+  const auto lines = expect_mismatch("run 4", "inputs hash");
+  EXPECT_TRUE(names(lines, "run 4", "record does not match")) << joined(lines);
+  for (const auto& l : lines) EXPECT_EQ(l.rfind("MISMATCH run 4: ", 0), 0u) << l;
+}
+
+TEST_F(VerifyLedgerTest, EditedHeadlineFigureBreaksThatRunsRecordHash) {
+  tamper(path(), {"runs_no_update"}, {"UPDATE runs SET alpha = alpha + 0.000001 WHERE run_id = 5"});
+  const auto lines = expect_mismatch("run 5", "record does not match its record hash");
+  EXPECT_EQ(lines.size(), 1u) << joined(lines);
+}
+
+TEST_F(VerifyLedgerTest, DeletedRunInTheMiddleIsAGapAndABrokenChain) {
+  tamper(path(), {"runs_no_delete", "run_inputs_no_delete", "run_coefficients_no_delete"},
+         {"DELETE FROM run_inputs WHERE run_id = 3", "DELETE FROM run_coefficients WHERE run_id = 3",
+          "DELETE FROM runs WHERE run_id = 3"});
+  const auto lines = expect_mismatch("run 4", "not numbered without gaps: expected run 3");
+  EXPECT_TRUE(names(lines, "run 4", "hash chain is broken")) << joined(lines);
+}
+
+// The last run has no successor to betray its removal; the chain head printed changes, which is
+// what a reader who noted the head compares.
+TEST_F(VerifyLedgerTest, DeletedLastRunChangesTheChainHead) {
+  const CommandResult before = at(ledger(), {"verify"});
+  ASSERT_EQ(before.exit_code, 0) << before.out;
+  tamper(path(), {"runs_no_delete", "run_inputs_no_delete", "run_coefficients_no_delete"},
+         {"DELETE FROM run_inputs WHERE run_id = 6", "DELETE FROM run_coefficients WHERE run_id = 6",
+          "DELETE FROM runs WHERE run_id = 6"});
+  const CommandResult after = at(ledger(), {"verify"});
+  const auto head = [](const std::string& out) {
+    const auto at = out.find("chain head ");
+    return at == std::string::npos ? std::string() : out.substr(at + 11, 64);
+  };
+  ASSERT_EQ(head(before.out).size(), 64u) << before.out;
+  EXPECT_NE(head(before.out), head(after.out)) << after.out;
+  EXPECT_TRUE(contains(after.out, "and 5 runs")) << after.out;
+}
+
+TEST_F(VerifyLedgerTest, ReorderedRunsBreakTheirRecordHashes) {
+  std::vector<std::string> statements;
+  for (const char* table : {"runs", "run_inputs", "run_coefficients"})
+    for (const auto& [from, to] : std::vector<std::pair<int, int>>{{2, 1000}, {5, 2}, {1000, 5}})
+      statements.push_back(fmt::format("UPDATE {} SET run_id = {} WHERE run_id = {}", table, to, from));
+  tamper(path(), {"runs_no_update", "run_inputs_no_update", "run_coefficients_no_update"}, statements);
+  {
+    SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
+    ASSERT_EQ(text_of(db, "SELECT strategy FROM runs WHERE run_id = 2"), "defensive-tilt");
+  }
+  const auto lines = expect_mismatch("run 2", "record does not match");
+  EXPECT_TRUE(names(lines, "run 5", "record does not match")) << joined(lines);
+  EXPECT_TRUE(names(lines, "run 2", "hash chain is broken")) << joined(lines);
+}
+
+TEST_F(VerifyLedgerTest, EditedContentHashIsAMismatchOfTheVersionAndOfTheRunsUsingIt) {
+  const std::string other = alphatrail::core::sha256_hex("not the observations");
+  tamper(path(), {"series_versions_no_update"},
+         {"UPDATE series_versions SET content_hash = '" + other + "' WHERE version_id = (SELECT "
+          "version_id FROM series_versions JOIN series USING (series_id) WHERE name = "
+          "'alder-vale-composite')"});
+  const auto lines = expect_mismatch("series alder-vale-composite version 1", "content hash");
+  // Every run used the benchmark: each inputs hash no longer matches.
+  for (int id = 1; id <= 6; ++id)
+    EXPECT_TRUE(names(lines, fmt::format("run {}", id), "inputs hash")) << joined(lines);
+}
+
+// Garbage written over whole pages in the middle of the file: verify must fail (4 or 7) and
+// not crash, whichever page it hits.
+TEST_F(VerifyLedgerTest, GarbageBytesInTheFileFailWithoutACrash) {
+  const auto size = fs::file_size(base());
+  std::int64_t page_size = 0;
+  {
+    SQLite::Database db(base().string(), SQLite::OPEN_READONLY);
+    page_size = db.execAndGet("PRAGMA page_size").getInt64();
+  }
+  const std::int64_t pages = static_cast<std::int64_t>(size) / page_size;
+  ASSERT_GE(pages, 8);
+  std::string garbage(static_cast<std::size_t>(page_size), '\0');
+  std::uint32_t x = 2463534242u;
+  for (auto& c : garbage) {  // xorshift: the same garbage every time
+    x ^= x << 13;
+    x ^= x >> 17;
+    x ^= x << 5;
+    c = static_cast<char>(x & 0xff);
+  }
+  for (const double where : {0.25, 0.5, 0.75, 0.95}) {
+    const std::int64_t page = std::max<std::int64_t>(2, static_cast<std::int64_t>(where * pages));
+    SCOPED_TRACE(fmt::format("page {} of {}", page, pages));
+    copy_ledger(base(), path());
+    {
+      std::fstream f(path(), std::ios::in | std::ios::out | std::ios::binary);
+      f.seekp(page * page_size);
+      f.write(garbage.data(), static_cast<std::streamsize>(garbage.size()));
+    }
+    EXPECT_NE(integrity(path()), "ok");
+    const CommandResult r = at(ledger(), {"verify"});
+    EXPECT_TRUE(r.exit_code == 4 || r.exit_code == 7) << r.exit_code << "\n" << r.out << r.err;
+    EXPECT_FALSE(contains(r.out, "everything checks out")) << r.out;
+    EXPECT_TRUE(contains(r.err, "alphatrail: error: ")) << r.err;
+  }
+}
+
+TEST_F(VerifyLedgerTest, DamagedHeaderOrTruncatedFileFailsWithoutACrash) {
+  {
+    std::fstream f(path(), std::ios::in | std::ios::out | std::ios::binary);
+    f.write("garbage garbage garbage", 23);
+  }
+  const CommandResult header = at(ledger(), {"verify"});
+  EXPECT_EQ(header.exit_code, 4) << header.out << header.err;
+  EXPECT_TRUE(contains(header.err, "not an SQLite database")) << header.err;
+
+  copy_ledger(base(), path());
+  fs::resize_file(path(), fs::file_size(base()) / 2);
+  const CommandResult truncated = at(ledger(), {"verify"});
+  EXPECT_TRUE(truncated.exit_code == 4 || truncated.exit_code == 7)
+      << truncated.exit_code << "\n" << truncated.out << truncated.err;
+  EXPECT_FALSE(contains(truncated.out, "everything checks out")) << truncated.out;
+}
+
+// ---------------------------------------------------------------------------------------------
+// query
+
+class QueryLedgerTest : public VerifyLedgerTest {
+ protected:
+  json query_json(const std::string& sql) {
+    const CommandResult r = at(ledger(), {"query", sql, "--format", "json"});
+    EXPECT_EQ(r.exit_code, 0) << sql << ": " << r.err;
+    return r.exit_code == 0 ? json::parse(r.out) : json::array();
+  }
+
+  // Runs a statement that must be refused, and checks the file did not change at all.
+  void expect_refused(const std::string& sql) {
+    SCOPED_TRACE(sql);
+    checkpoint(path());  // through a separate connection: everything is in the main file
+    const std::string before = sha256_of_file(path());
+    const CommandResult r = at(ledger(), {"query", sql});
+    EXPECT_EQ(r.exit_code, 2) << r.out << r.err;
+    EXPECT_TRUE(contains(r.err, "read-only")) << r.err;
+    EXPECT_TRUE(contains(r.err, "nothing changed")) << r.err;
+    EXPECT_TRUE(r.out.empty()) << r.out;
+    EXPECT_EQ(sha256_of_file(path()), before);
+    const fs::path wal = ledger() + "-wal";
+    EXPECT_TRUE(!fs::exists(wal) || fs::file_size(wal) == 0) << "frames left in the WAL";
+    // And the content really is intact.
+    EXPECT_EQ(query_json("SELECT count(*) AS n FROM runs")[0]["n"], 6);
+    EXPECT_EQ(query_json("SELECT count(*) AS n FROM series")[0]["n"], 9);
+    EXPECT_EQ(sha256_of_file(path()), before) << "a read changed the file";
+  }
+};
+
+TEST_F(QueryLedgerTest, RunSummaryListsTheRunsAsRunsDoes) {
+  const json rows = query_json(
+      "SELECT run_id, strategy, study, stale, revises_run_id, alpha, beta, observations FROM "
+      "run_summary ORDER BY run_id");
+  ASSERT_EQ(rows.size(), 6u) << rows.dump();
+  const CommandResult runs = at(ledger(), {"runs", "--format", "json"});
+  ASSERT_EQ(runs.exit_code, 0);
+  const json listed = json::parse(runs.out);
+  for (std::size_t i = 0; i < rows.size(); ++i) {
+    SCOPED_TRACE(rows[i].dump());
+    EXPECT_EQ(rows[i]["run_id"], static_cast<int>(i) + 1);
+    EXPECT_EQ(rows[i]["strategy"], kStrategies[i]);
+    if (i < 3)
+      EXPECT_EQ(rows[i]["study"], "trend-lookbacks");
+    else
+      EXPECT_TRUE(rows[i]["study"].is_null());
+    EXPECT_EQ(rows[i]["stale"], 0);
+    EXPECT_TRUE(rows[i]["revises_run_id"].is_null());
+    EXPECT_EQ(rows[i]["alpha"].get<double>(), listed[i]["alpha"].get<double>());
+    EXPECT_EQ(rows[i]["beta"].get<double>(), listed[i]["beta"].get<double>());
+    EXPECT_EQ(rows[i]["observations"], 300);
+  }
+}
+
+TEST_F(QueryLedgerTest, LatestVersionsAndRunInputVersions) {
+  const json latest = query_json("SELECT name, kind, version FROM latest_versions ORDER BY name");
+  ASSERT_EQ(latest.size(), 9u) << latest.dump();
+  EXPECT_EQ(latest[0], json({{"name", "alder-vale-bills"}, {"kind", "rate"}, {"version", 1}}));
+  EXPECT_EQ(latest[1], json({{"name", "alder-vale-composite"}, {"kind", "benchmark"}, {"version", 1}}));
+  EXPECT_EQ(latest[2], json({{"name", "brindle-styles"}, {"kind", "factor"}, {"version", 1}}));
+  for (std::size_t i = 3; i < latest.size(); ++i) {
+    EXPECT_EQ(latest[i]["kind"], "strategy");
+    EXPECT_EQ(latest[i]["version"], 1);
+  }
+
+  const json inputs = query_json(
+      "SELECT role, position, series, version, latest_version, columns FROM run_input_versions "
+      "WHERE run_id = 1 ORDER BY role, position");
+  ASSERT_EQ(inputs.size(), 4u) << inputs.dump();
+  const json expected = json::parse(R"([
+    {"role": "benchmark", "position": 1, "series": "alder-vale-composite", "version": 1, "latest_version": 1, "columns": "alder-vale-composite"},
+    {"role": "factor", "position": 1, "series": "brindle-styles", "version": 1, "latest_version": 1, "columns": "size-spread,value-spread"},
+    {"role": "rate", "position": 1, "series": "alder-vale-bills", "version": 1, "latest_version": 1, "columns": "1M"},
+    {"role": "strategy", "position": 1, "series": "trend-12m", "version": 1, "latest_version": 1, "columns": "trend-12m"}])");
+  EXPECT_EQ(inputs, expected) << inputs.dump(1);
+}
+
+TEST_F(QueryLedgerTest, ObservationsInJsonCsvAndTable) {
+  // The first three index returns, computed here from the demo's CSV levels.
+  const auto levels = lines_of(read_file(*dir_ / "demo.db-data" / "alder-vale-composite.csv"));
+  ASSERT_GE(levels.size(), 5u);
+  std::vector<std::pair<std::string, double>> expected;
+  for (int i = 2; i <= 4; ++i) {
+    const auto now = levels[i].find(',');
+    const auto before = levels[i - 1].find(',');
+    expected.push_back({levels[i].substr(0, now),
+                        std::strtod(levels[i].substr(now + 1).c_str(), nullptr) /
+                                std::strtod(levels[i - 1].substr(before + 1).c_str(), nullptr) - 1});
+  }
+  const std::string sql =
+      "SELECT date, value FROM observations WHERE series = 'alder-vale-composite' AND version = 1 "
+      "ORDER BY date LIMIT 3";
+  const json rows = query_json(sql);
+  ASSERT_EQ(rows.size(), 3u) << rows.dump();
+  for (std::size_t i = 0; i < 3; ++i) {
+    EXPECT_EQ(rows[i]["date"], expected[i].first);
+    EXPECT_EQ(rows[i]["value"].get<double>(), expected[i].second);
+  }
+
+  const CommandResult csv = at(ledger(), {"query", sql, "--format", "csv"});
+  ASSERT_EQ(csv.exit_code, 0) << csv.err;
+  const auto csv_lines = lines_of(csv.out);
+  ASSERT_EQ(csv_lines.size(), 4u) << csv.out;
+  EXPECT_EQ(csv_lines[0], "date,value");
+  for (std::size_t i = 0; i < 3; ++i) {
+    const auto comma = csv_lines[i + 1].find(',');
+    EXPECT_EQ(csv_lines[i + 1].substr(0, comma), expected[i].first);
+    EXPECT_EQ(std::strtod(csv_lines[i + 1].substr(comma + 1).c_str(), nullptr), expected[i].second)
+        << csv_lines[i + 1];
+  }
+
+  const CommandResult table = at(ledger(), {"query", sql, "--format", "table"});
+  ASSERT_EQ(table.exit_code, 0) << table.err;
+  const auto table_lines = lines_of(table.out);
+  ASSERT_EQ(table_lines.size(), 5u) << table.out;
+  EXPECT_EQ(table_lines[0].rfind("date", 0), 0u) << table.out;
+  EXPECT_TRUE(contains(table_lines[0], "value")) << table.out;
+  EXPECT_EQ(table_lines[1].find_first_not_of("- "), std::string::npos) << table.out;
+  for (std::size_t i = 0; i < 3; ++i) {
+    std::istringstream in(table_lines[i + 2]);
+    std::string date;
+    double value = 0;
+    in >> date >> value;
+    EXPECT_EQ(date, expected[i].first);
+    EXPECT_NEAR(value, expected[i].second, 1e-12);
+  }
+  // The default format is the table.
+  EXPECT_EQ(at(ledger(), {"query", sql}).out, table.out);
+}
+
+TEST_F(QueryLedgerTest, NullsAndErrors) {
+  const json nulls = query_json("SELECT NULL AS x, 1 AS y");
+  EXPECT_EQ(nulls, json::parse(R"([{"x": null, "y": 1}])"));
+  const CommandResult csv = at(ledger(), {"query", "SELECT NULL AS x, 'a,b' AS y", "--format", "csv"});
+  EXPECT_EQ(csv.out, "x,y\n,\"a,b\"\n");
+  const CommandResult table = at(ledger(), {"query", "SELECT NULL AS x"});
+  EXPECT_TRUE(contains(table.out, "NULL")) << table.out;
+  const CommandResult bad = at(ledger(), {"query", "SELECT * FROM no_such_table"});
+  EXPECT_EQ(bad.exit_code, 2) << bad.err;
+  EXPECT_TRUE(contains(bad.err, "query failed")) << bad.err;
+  EXPECT_TRUE(contains(bad.err, "no_such_table")) << bad.err;
+}
+
+TEST_F(QueryLedgerTest, DeleteIsRefusedAndTheFileIsUnchanged) { expect_refused("DELETE FROM runs"); }
+
+TEST_F(QueryLedgerTest, CreateTableIsRefusedAndTheFileIsUnchanged) {
+  expect_refused("CREATE TABLE x(a)");
+}
+
+TEST_F(QueryLedgerTest, UpdateIsRefusedAndTheFileIsUnchanged) {
+  expect_refused("UPDATE series SET name = 'x'");
+}
+
+TEST_F(QueryLedgerTest, OtherWritesAreRefusedAndTheFileIsUnchanged) {
+  expect_refused("INSERT INTO series (name, kind, created_at) VALUES ('x', 'strategy', 'now')");
+  expect_refused("DROP VIEW run_summary");
+  expect_refused("PRAGMA user_version = 99");
+  expect_refused("  delete from run_coefficients -- lower case, leading space, a comment");
+}
+
+// Only the first statement of a text is run: a write after a read is never executed.
+TEST_F(QueryLedgerTest, SecondStatementIsNeverRun) {
+  checkpoint(path());
+  const std::string before = sha256_of_file(path());
+  const CommandResult r = at(ledger(), {"query", "SELECT 1 AS one; DROP TABLE runs", "--format", "json"});
+  EXPECT_NE(r.exit_code, 1) << r.err;
+  EXPECT_EQ(sha256_of_file(path()), before);
+  EXPECT_EQ(query_json("SELECT count(*) AS n FROM runs")[0]["n"], 6);
+}
+
+}  // namespace
