@@ -83,6 +83,20 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
 
   std::cout << fmt::format("\n$ alphatrail show {}\n\n", runs.front());
   print_run_text(std::cout, ledger::load_run(ledger, runs.front()));
+  // The vendor restates a month of the index: re-run what it touched and show what changed.
+  const DemoFile restated = write_restated_benchmark(folder);
+  IngestRequest revision;
+  revision.kind = restated.kind;
+  revision.file = restated.path.string();
+  revision.name = restated.name;
+  revision.levels = restated.levels;
+  revision.note = restated.note;
+  std::cout << fmt::format("$ alphatrail ingest benchmark {} --name {} --levels --note \"{}\"\n",
+                           revision.file, revision.name, revision.note);
+  ingest_file(path, revision, std::cout, std::cerr);
+  std::cout << fmt::format("\n$ alphatrail rerun --all-stale\n\n");
+  rerun_runs(ledger, runs, Format::table, std::cout, false);
+  std::cout << '\n';
   std::cout << fmt::format("Demo ledger: {} (try `alphatrail runs --ledger {}` or "
                            "`alphatrail series --ledger {}`)\n",
                            path.string(), path.string(), path.string());

@@ -119,4 +119,25 @@ std::vector<DemoFile> write_demo_files(const std::filesystem::path& folder, std:
   };
 }
 
+DemoFile write_restated_benchmark(const std::filesystem::path& folder) {
+  std::ifstream in(folder / "alder-vale-composite.csv");
+  const auto path = folder / "alder-vale-composite-restated.csv";
+  std::ofstream out(path);
+  std::string line;
+  std::getline(in, line);
+  out << line << '\n';
+  const core::Day restated_from = core::to_day({2008, 10, 1});
+  while (std::getline(in, line)) {
+    const auto comma = line.find(',');
+    const std::string date = line.substr(0, comma);
+    double level = std::stod(line.substr(comma + 1));
+    // Dividends of October 2008 were left out: that month's return was 0.8 points higher,
+    // so every level from then on is 0.8% higher.
+    if (core::parse_date(date).day >= restated_from) level *= 1.008;
+    out << fmt::format("{},{:.2f}\n", date, level);
+  }
+  return {path, "benchmark", kDemoBenchmark, false, true,
+          "restated: October 2008 dividends added (invented)"};
+}
+
 }  // namespace alphatrail::cli

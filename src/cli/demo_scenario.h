@@ -22,6 +22,10 @@ struct DemoFile {
 // Writes the scenario's CSV files into `folder` and returns them in ingest order.
 std::vector<DemoFile> write_demo_files(const std::filesystem::path& folder, std::uint64_t seed);
 
+// Writes the index restated for one month (October 2008 dividends, +0.8 points) and
+// returns the file: the revision the demo re-runs its evaluations after.
+DemoFile write_restated_benchmark(const std::filesystem::path& folder);
+
 // Names used by the demo's evaluations.
 inline constexpr const char* kDemoBenchmark = "alder-vale-composite";
 inline constexpr const char* kDemoRate = "alder-vale-bills";
