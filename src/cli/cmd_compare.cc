@@ -55,7 +55,9 @@ std::string revision_summary(ledger::Ledger& ledger, const std::string& series, 
 }
 
 std::vector<std::int64_t> sample_keys(ledger::Ledger& ledger, std::int64_t run_id) {
-  auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
+  auto request = request_from_run(ledger, run_id, true);
+  request.keep_series = true;
+  auto pending = evaluate_request(ledger, request);
   return pending.front().result.keys;
 }
 

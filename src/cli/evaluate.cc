@@ -274,9 +274,9 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
     inputs.reserve(plan.members.size());
     for (std::size_t i : plan.members)
       inputs.push_back(to_return_input(strategies[i].info.name,
-                                       ledger::ColumnData(strategies[i].columns.front()),
+                                       std::move(strategies[i].columns.front()),
                                        strategies[i].info));
-    auto outcomes = evaluator.evaluate_many(inputs);
+    auto outcomes = evaluator.evaluate_many(inputs, 0, rq.keep_series);
     for (std::size_t j = 0; j < plan.members.size(); ++j) {
       if (outcomes[j].result)
         results[plan.members[j]] = std::move(outcomes[j].result);

@@ -36,6 +36,7 @@ struct EvaluateRequest {
   // Re-runs and reproductions: versions to use instead of the latest, and the run revised.
   std::map<std::string, int> pinned_versions;
   std::optional<std::int64_t> revises_run_id;
+  bool keep_series = false;  // keep each result's per-period series (compare needs them)
 };
 
 // One evaluated strategy, ready to be recorded.

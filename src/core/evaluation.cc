@@ -318,6 +318,20 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
   return r;
 }
 
+namespace {
+
+// Frees the per-period series of a result that only charts and comparisons need.
+void drop_series(EvaluationResult& r) {
+  r.keys = {};
+  r.strategy_excess = {};
+  r.benchmark_excess = {};
+  r.risk_free = {};
+  r.fit.residuals = {};
+  r.fit.fitted = {};
+}
+
+}  // namespace
+
 EvaluationResult Evaluator::evaluate(const ReturnInput& strategy) const {
   Prepared p = prepare(strategy);
   if (!p.error.empty()) throw Error(static_cast<ExitCode>(p.error_code), p.error);
@@ -327,26 +341,38 @@ EvaluationResult Evaluator::evaluate(const ReturnInput& strategy) const {
 }
 
 std::vector<Evaluator::Outcome> Evaluator::evaluate_many(
-    const std::vector<ReturnInput>& strategies, int threads) const {
-  std::vector<Prepared> prepared(strategies.size());
-  for (std::size_t i = 0; i < strategies.size(); ++i) prepared[i] = prepare(strategies[i]);
+    const std::vector<ReturnInput>& strategies, int threads, bool keep_series) const {
+  std::vector<Outcome> outcomes(strategies.size());
+  // Blocks bound the memory: each prepared strategy holds its aligned copy of every input.
+  constexpr std::size_t kBlock = 64;
+  for (std::size_t begin = 0; begin < strategies.size(); begin += kBlock) {
+    const std::size_t end = std::min(strategies.size(), begin + kBlock);
+    evaluate_block(strategies, begin, end, threads, keep_series, outcomes);
+  }
+  return outcomes;
+}
+
+void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::size_t begin,
+                               std::size_t end, int threads, bool keep_series,
+                               std::vector<Outcome>& outcomes) const {
+  std::vector<Prepared> prepared(end - begin);
+  for (std::size_t i = begin; i < end; ++i) prepared[i - begin] = prepare(strategies[i]);
 
   // Strategies whose kept periods are the same share a design matrix.
   std::map<std::vector<std::int64_t>, std::vector<std::size_t>> groups;
-  std::vector<Outcome> outcomes(strategies.size());
-  for (std::size_t i = 0; i < prepared.size(); ++i) {
-    if (!prepared[i].error.empty()) {
-      outcomes[i].error = prepared[i].error;
-      outcomes[i].error_code = prepared[i].error_code;
+  for (std::size_t i = begin; i < end; ++i) {
+    if (!prepared[i - begin].error.empty()) {
+      outcomes[i].error = prepared[i - begin].error;
+      outcomes[i].error_code = prepared[i - begin].error_code;
       continue;
     }
-    groups[prepared[i].aligned.keys].push_back(i);
+    groups[prepared[i - begin].aligned.keys].push_back(i);
   }
   for (auto& [keys, members] : groups) {
-    const Design d = build_design(prepared[members.front()].aligned, factor_names_);
+    const Design d = build_design(prepared[members.front() - begin].aligned, factor_names_);
     Eigen::MatrixXd Y(d.X.rows(), static_cast<Eigen::Index>(members.size()));
     for (std::size_t j = 0; j < members.size(); ++j) {
-      const Aligned& a = prepared[members[j]].aligned;
+      const Aligned& a = prepared[members[j] - begin].aligned;
       const auto& s = a.column("strategy");
       const auto& rf = a.column("rate");
       for (Eigen::Index t = 0; t < Y.rows(); ++t) Y(t, static_cast<Eigen::Index>(j)) = s[t] - rf[t];
@@ -355,7 +381,7 @@ std::vector<Evaluator::Outcome> Evaluator::evaluate_many(
       std::vector<OlsResult> fits = fit_ols_many(d.X, Y, term_names_, true, settings_.covariance,
                                                  settings_.confidence, threads);
       for (std::size_t j = 0; j < members.size(); ++j)
-        outcomes[members[j]].result = finish(std::move(prepared[members[j]]), std::move(fits[j]));
+        outcomes[members[j]].result = finish(std::move(prepared[members[j] - begin]), std::move(fits[j]));
     } catch (const Error&) {
       // One column can fail where others do not (e.g. an exact fit): fit them one by one.
       for (std::size_t j = 0; j < members.size(); ++j) {
@@ -363,7 +389,7 @@ std::vector<Evaluator::Outcome> Evaluator::evaluate_many(
           Eigen::VectorXd y = Y.col(static_cast<Eigen::Index>(j));
           OlsResult fit =
               fit_ols(d.X, y, term_names_, true, settings_.covariance, settings_.confidence);
-          outcomes[members[j]].result = finish(std::move(prepared[members[j]]), std::move(fit));
+          outcomes[members[j]].result = finish(std::move(prepared[members[j] - begin]), std::move(fit));
         } catch (const Error& e) {
           outcomes[members[j]].error = e.what();
           outcomes[members[j]].error_code = static_cast<int>(e.code());
@@ -371,7 +397,9 @@ std::vector<Evaluator::Outcome> Evaluator::evaluate_many(
       }
     }
   }
-  return outcomes;
+  if (!keep_series)
+    for (std::size_t i = begin; i < end; ++i)
+      if (outcomes[i].result) drop_series(*outcomes[i].result);
 }
 
 const std::vector<std::string>& standard_cautions() {

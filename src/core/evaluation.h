@@ -134,8 +134,10 @@ class Evaluator {
     std::string error;
     int error_code = 0;
   };
+  // keep_series = false frees each result's per-period series (keys, excess returns,
+  // residuals) to bound memory when evaluating thousands of strategies.
   std::vector<Outcome> evaluate_many(const std::vector<ReturnInput>& strategies,
-                                     int threads = 0) const;
+                                     int threads = 0, bool keep_series = true) const;
 
   Frequency frequency() const { return frequency_; }
 
@@ -143,6 +145,9 @@ class Evaluator {
   struct Prepared;  // one strategy aligned on the shared sample
   Prepared prepare(const ReturnInput& strategy) const;
   EvaluationResult finish(Prepared&& prepared, OlsResult&& fit) const;
+  void evaluate_block(const std::vector<ReturnInput>& strategies, std::size_t begin,
+                      std::size_t end, int threads, bool keep_series,
+                      std::vector<Outcome>& outcomes) const;
 
   EvaluationSettings settings_;
   Frequency frequency_;
