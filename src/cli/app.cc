@@ -1,10 +1,10 @@
 #include "cli/app.h"
 
-#include <CLI/CLI.hpp>
 #include <SQLiteCpp/Exception.h>
 #include <fmt/format.h>
 #include <sqlite3.h>
 
+#include <CLI/CLI.hpp>
 #include <iostream>
 
 #include "cli/commands.h"
@@ -29,9 +29,10 @@ int report(ExitCode code, const std::string& message) {
 }  // namespace
 
 int run_app(int argc, char** argv) {
-  CLI::App app{"alphatrail: test whether trading strategies earn alpha, and keep a ledger of "
-               "every test.",
-               "alphatrail"};
+  CLI::App app{
+      "alphatrail: test whether trading strategies earn alpha, and keep a ledger of "
+      "every test.",
+      "alphatrail"};
   app.footer(kExitCodes);
   app.require_subcommand(1);
   app.fallthrough();  // global options may follow the command name

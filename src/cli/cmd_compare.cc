@@ -1,6 +1,6 @@
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 
+#include <CLI/CLI.hpp>
 #include <algorithm>
 #include <iostream>
 
@@ -51,7 +51,8 @@ std::string revision_summary(ledger::Ledger& ledger, const std::string& series, 
         removed += d.removed.size();
         changed += d.changed.size();
       }
-  return fmt::format("v{} -> v{}: {} changed, {} added, {} removed", va, vb, changed, added, removed);
+  return fmt::format("v{} -> v{}: {} changed, {} added, {} removed", va, vb, changed, added,
+                     removed);
 }
 
 std::vector<std::int64_t> sample_keys(ledger::Ledger& ledger, std::int64_t run_id) {
@@ -69,16 +70,22 @@ void run_compare(const CompareOptions& o, const GlobalOptions& global) {
 
   ordered_json inputs = ordered_json::array();
   for (const auto& ia : a["inputs"]) {
-    ordered_json entry = {{"role", ia["role"]}, {"a", ia["series"].get<std::string>() + " v" + std::to_string(ia["version"].get<int>())}};
-    const auto match = std::find_if(b["inputs"].begin(), b["inputs"].end(), [&](const ordered_json& ib) {
-      return ib["role"] == ia["role"] && (ia["role"] != "factor" || ib["series"] == ia["series"]);
-    });
+    ordered_json entry = {
+        {"role", ia["role"]},
+        {"a", ia["series"].get<std::string>() + " v" + std::to_string(ia["version"].get<int>())}};
+    const auto match =
+        std::find_if(b["inputs"].begin(), b["inputs"].end(), [&](const ordered_json& ib) {
+          return ib["role"] == ia["role"] &&
+                 (ia["role"] != "factor" || ib["series"] == ia["series"]);
+        });
     if (match == b["inputs"].end()) {
       entry["b"] = nullptr;
     } else {
-      entry["b"] = (*match)["series"].get<std::string>() + " v" + std::to_string((*match)["version"].get<int>());
+      entry["b"] = (*match)["series"].get<std::string>() + " v" +
+                   std::to_string((*match)["version"].get<int>());
       if ((*match)["series"] == ia["series"] && (*match)["version"] != ia["version"])
-        entry["revision"] = revision_summary(ledger, ia["series"], ia["version"], (*match)["version"]);
+        entry["revision"] =
+            revision_summary(ledger, ia["series"], ia["version"], (*match)["version"]);
     }
     entry["same"] = match != b["inputs"].end() && (*match)["content_hash"] == ia["content_hash"];
     inputs.push_back(entry);
@@ -92,8 +99,10 @@ void run_compare(const CompareOptions& o, const GlobalOptions& global) {
   const auto keys_b = sample_keys(ledger, o.b);
   std::vector<std::int64_t> gained;
   std::vector<std::int64_t> lost;
-  std::set_difference(keys_b.begin(), keys_b.end(), keys_a.begin(), keys_a.end(), std::back_inserter(gained));
-  std::set_difference(keys_a.begin(), keys_a.end(), keys_b.begin(), keys_b.end(), std::back_inserter(lost));
+  std::set_difference(keys_b.begin(), keys_b.end(), keys_a.begin(), keys_a.end(),
+                      std::back_inserter(gained));
+  std::set_difference(keys_a.begin(), keys_a.end(), keys_b.begin(), keys_b.end(),
+                      std::back_inserter(lost));
   const auto freq = core::parse_frequency(b["sample"]["frequency"].get<std::string>());
   const auto labels = [&](const std::vector<std::int64_t>& keys) {
     std::vector<std::string> out;
@@ -101,10 +110,17 @@ void run_compare(const CompareOptions& o, const GlobalOptions& global) {
     return out;
   };
   const bool same_frequency = a["sample"]["frequency"] == b["sample"]["frequency"];
-  ordered_json sample = {{"a", {{"first", a["sample"]["first"]}, {"last", a["sample"]["last"]}, {"observations", a["sample"]["observations"]}}},
-                         {"b", {{"first", b["sample"]["first"]}, {"last", b["sample"]["last"]}, {"observations", b["sample"]["observations"]}}},
-                         {"periods_gained", same_frequency ? ordered_json(labels(gained)) : ordered_json()},
-                         {"periods_lost", same_frequency ? ordered_json(labels(lost)) : ordered_json()}};
+  ordered_json sample = {
+      {"a",
+       {{"first", a["sample"]["first"]},
+        {"last", a["sample"]["last"]},
+        {"observations", a["sample"]["observations"]}}},
+      {"b",
+       {{"first", b["sample"]["first"]},
+        {"last", b["sample"]["last"]},
+        {"observations", b["sample"]["observations"]}}},
+      {"periods_gained", same_frequency ? ordered_json(labels(gained)) : ordered_json()},
+      {"periods_lost", same_frequency ? ordered_json(labels(lost)) : ordered_json()}};
 
   ordered_json figures = ordered_json::array();
   for (const auto& ca : a["coefficients"]) {
@@ -112,7 +128,10 @@ void run_compare(const CompareOptions& o, const GlobalOptions& global) {
                                  [&](const ordered_json& c) { return c["term"] == ca["term"]; });
     for (const char* key : {"estimate", "std_error", "t_stat", "p_value"}) {
       const ordered_json vb = cb == b["coefficients"].end() ? ordered_json() : (*cb)[key];
-      figures.push_back({{"figure", ca["term"].get<std::string>() + " " + key}, {"a", ca[key]}, {"b", vb}, {"change", change(ca[key], vb)}});
+      figures.push_back({{"figure", ca["term"].get<std::string>() + " " + key},
+                         {"a", ca[key]},
+                         {"b", vb},
+                         {"change", change(ca[key], vb)}});
     }
   }
   for (const auto& [key, va] : a["statistics"].items()) {
@@ -121,35 +140,51 @@ void run_compare(const CompareOptions& o, const GlobalOptions& global) {
   }
 
   if (o.format == Format::json) {
-    print_json(std::cout, {{"a", o.a}, {"b", o.b}, {"strategies", {a["strategy"], b["strategy"]}},
-                           {"inputs", inputs}, {"parameters", parameters}, {"sample", sample}, {"figures", figures}});
+    print_json(std::cout, {{"a", o.a},
+                           {"b", o.b},
+                           {"strategies", {a["strategy"], b["strategy"]}},
+                           {"inputs", inputs},
+                           {"parameters", parameters},
+                           {"sample", sample},
+                           {"figures", figures}});
     return;
   }
   Table t;
   t.header = {"", fmt::format("run {}", o.a), fmt::format("run {}", o.b), "change"};
   t.right_aligned = {false, true, true, true};
-  t.rows.push_back({"strategy", a["strategy"], b["strategy"], a["strategy"] == b["strategy"] ? "" : "different"});
+  t.rows.push_back({"strategy", a["strategy"], b["strategy"],
+                    a["strategy"] == b["strategy"] ? "" : "different"});
   for (const auto& in : inputs)
     t.rows.push_back({"input " + in["role"].get<std::string>(), text(in["a"]), text(in["b"]),
-                      in.contains("revision") ? in["revision"].get<std::string>() : (in["same"].get<bool>() ? "" : "different")});
-  for (const auto& p : parameters) t.rows.push_back({"parameter " + p["parameter"].get<std::string>(), text(p["a"]), text(p["b"]), "different"});
-  t.rows.push_back({"sample", fmt::format("{} to {}, T {}", text(sample["a"]["first"]), text(sample["a"]["last"]), text(sample["a"]["observations"])),
-                    fmt::format("{} to {}, T {}", text(sample["b"]["first"]), text(sample["b"]["last"]), text(sample["b"]["observations"])),
-                    same_frequency ? fmt::format("{} gained, {} lost", gained.size(), lost.size()) : "other frequency"});
-  for (const auto& f : figures) t.rows.push_back({f["figure"], text(f["a"]), text(f["b"]), f["change"]});
+                      in.contains("revision") ? in["revision"].get<std::string>()
+                                              : (in["same"].get<bool>() ? "" : "different")});
+  for (const auto& p : parameters)
+    t.rows.push_back({"parameter " + p["parameter"].get<std::string>(), text(p["a"]), text(p["b"]),
+                      "different"});
+  t.rows.push_back({"sample",
+                    fmt::format("{} to {}, T {}", text(sample["a"]["first"]),
+                                text(sample["a"]["last"]), text(sample["a"]["observations"])),
+                    fmt::format("{} to {}, T {}", text(sample["b"]["first"]),
+                                text(sample["b"]["last"]), text(sample["b"]["observations"])),
+                    same_frequency ? fmt::format("{} gained, {} lost", gained.size(), lost.size())
+                                   : "other frequency"});
+  for (const auto& f : figures)
+    t.rows.push_back({f["figure"], text(f["a"]), text(f["b"]), f["change"]});
   if (o.format == Format::csv) {
     print_csv(std::cout, t);
     return;
   }
   print_table(std::cout, t);
-  std::cout << "\nEstimates are decimals per period; ratios annualized as each run's parameters say.\n";
+  std::cout
+      << "\nEstimates are decimals per period; ratios annualized as each run's parameters say.\n";
 }
 
 }  // namespace
 
 void setup_compare(CLI::App& app, const GlobalOptions& global) {
   auto o = std::make_shared<CompareOptions>();
-  auto* cmd = app.add_subcommand("compare", "Show two runs side by side: inputs, parameters, sample, figures");
+  auto* cmd = app.add_subcommand("compare",
+                                 "Show two runs side by side: inputs, parameters, sample, figures");
   cmd->add_option("run_a", o->a, "First run")->required();
   cmd->add_option("run_b", o->b, "Second run")->required();
   add_format_option(*cmd, o->format);

@@ -1,6 +1,6 @@
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 
+#include <CLI/CLI.hpp>
 #include <iostream>
 
 #include "cli/commands.h"
@@ -22,8 +22,7 @@ struct DemoOptions {
 };
 
 void remove_ledger(const std::filesystem::path& path) {
-  for (const char* suffix : {"", "-wal", "-shm"})
-    std::filesystem::remove(path.string() + suffix);
+  for (const char* suffix : {"", "-wal", "-shm"}) std::filesystem::remove(path.string() + suffix);
 }
 
 void run_demo(const DemoOptions& options, const GlobalOptions& global) {
@@ -36,9 +35,9 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
                               path.string()));
     remove_ledger(path);
   }
-  const std::filesystem::path folder =
-      options.data_folder.empty() ? std::filesystem::path(path.string() + "-data")
-                                  : std::filesystem::path(options.data_folder);
+  const std::filesystem::path folder = options.data_folder.empty()
+                                           ? std::filesystem::path(path.string() + "-data")
+                                           : std::filesystem::path(options.data_folder);
 
   std::cout << fmt::format(
       "Demo: Brindle Hollow Capital (a fictional firm) tests its strategies against the Alder "
@@ -54,7 +53,8 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
     request.note = file.note;
     std::cout << fmt::format("$ alphatrail ingest {} {}{}{}{}\n", request.kind, request.file,
                              request.name.empty() ? "" : " --name " + request.name,
-                             request.percent ? " --percent" : "", request.levels ? " --levels" : "");
+                             request.percent ? " --percent" : "",
+                             request.levels ? " --levels" : "");
     ingest_file(path, request, std::cout, std::cerr);
   }
 
@@ -67,16 +67,18 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   request.study = kDemoStudy;
   request.note = "demo: trend look-back variants";
   auto ledger = ledger::Ledger::open(path, ledger::OpenMode::existing, std::cerr);
-  std::cout << fmt::format("\n$ alphatrail evaluate 'trend-*' --benchmark {} --rate {} --factor {} "
-                           "--study {}\n",
-                           kDemoBenchmark, kDemoRate, kDemoFactors, kDemoStudy);
+  std::cout << fmt::format(
+      "\n$ alphatrail evaluate 'trend-*' --benchmark {} --rate {} --factor {} "
+      "--study {}\n",
+      kDemoBenchmark, kDemoRate, kDemoFactors, kDemoStudy);
   auto runs = evaluate_and_record(ledger, request, false);
   request.strategies = {"carry-g10", "defensive-tilt", "crash-hedge"};
   request.study.clear();
   request.note = "demo: other books";
-  std::cout << fmt::format("$ alphatrail evaluate carry-g10 defensive-tilt crash-hedge "
-                           "--benchmark {} --rate {} --factor {}\n\n",
-                           kDemoBenchmark, kDemoRate, kDemoFactors);
+  std::cout << fmt::format(
+      "$ alphatrail evaluate carry-g10 defensive-tilt crash-hedge "
+      "--benchmark {} --rate {} --factor {}\n\n",
+      kDemoBenchmark, kDemoRate, kDemoFactors);
   const auto more = evaluate_and_record(ledger, request, false);
   runs.insert(runs.end(), more.begin(), more.end());
   print_runs(std::cout, ledger, runs, Format::table);
@@ -97,9 +99,10 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   std::cout << fmt::format("\n$ alphatrail rerun --all-stale\n\n");
   rerun_runs(ledger, runs, Format::table, std::cout, false);
   std::cout << '\n';
-  std::cout << fmt::format("Demo ledger: {} (try `alphatrail runs --ledger {}` or "
-                           "`alphatrail series --ledger {}`)\n",
-                           path.string(), path.string(), path.string());
+  std::cout << fmt::format(
+      "Demo ledger: {} (try `alphatrail runs --ledger {}` or "
+      "`alphatrail series --ledger {}`)\n",
+      path.string(), path.string(), path.string());
 }
 
 }  // namespace

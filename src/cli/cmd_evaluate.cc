@@ -1,8 +1,8 @@
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 #include <fnmatch.h>
 #include <unistd.h>
 
+#include <CLI/CLI.hpp>
 #include <iostream>
 #include <map>
 

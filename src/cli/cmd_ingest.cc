@@ -1,6 +1,6 @@
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 
+#include <CLI/CLI.hpp>
 #include <fstream>
 #include <iostream>
 #include <sstream>
@@ -16,7 +16,6 @@ namespace alphatrail::cli {
 
 namespace {
 
-
 std::string read_input_file(const std::string& path) {
   std::error_code ec;
   if (!std::filesystem::exists(path, ec))
@@ -26,7 +25,8 @@ std::string read_input_file(const std::string& path) {
   std::ifstream in(path, std::ios::binary);
   if (!in) throw InputError(path, 0, 0, "cannot be read", "check its permissions");
   std::string bytes;
-  if (std::filesystem::is_regular_file(path, ec)) bytes.reserve(std::filesystem::file_size(path, ec));
+  if (std::filesystem::is_regular_file(path, ec))
+    bytes.reserve(std::filesystem::file_size(path, ec));
   // Read in blocks: pipes and devices have no size, but their bytes are the file.
   char block[1 << 16];
   while (in.read(block, sizeof block) || in.gcount() > 0)
@@ -52,8 +52,8 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
     throw Error(ExitCode::usage, "--percent and --levels exclude each other: levels have no unit");
   if (!is_rate && o.quote != "yield")
     throw Error(ExitCode::usage, "--quote applies to rate files only");
-  parse.unit = is_rate ? (o.decimal ? core::ValueUnit::decimal : core::ValueUnit::percent)
-               : o.levels ? core::ValueUnit::levels
+  parse.unit = is_rate     ? (o.decimal ? core::ValueUnit::decimal : core::ValueUnit::percent)
+               : o.levels  ? core::ValueUnit::levels
                : o.percent ? core::ValueUnit::percent
                            : core::ValueUnit::decimal;
   parse.quote = *core::parse_rate_quote(o.quote);
@@ -62,7 +62,8 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
   } else if (kind == core::SeriesKind::strategy || kind == core::SeriesKind::benchmark) {
     parse.rename = o.name;
   }
-  if (!o.tenor.empty() && !is_rate) throw Error(ExitCode::usage, "--tenor applies to rate files only");
+  if (!o.tenor.empty() && !is_rate)
+    throw Error(ExitCode::usage, "--tenor applies to rate files only");
   return parse;
 }
 
@@ -93,7 +94,8 @@ void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& 
 
   std::vector<ledger::NewVersion> versions;
   if (is_set) {
-    versions.push_back({o.name, meta, core::value_unit_name(parse.unit), std::move(parsed.columns)});
+    versions.push_back(
+        {o.name, meta, core::value_unit_name(parse.unit), std::move(parsed.columns)});
   } else {
     versions.reserve(parsed.columns.size());
     for (auto& column : parsed.columns) {
@@ -118,15 +120,14 @@ void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& 
     if (!list_each) continue;
     if (r.unchanged)
       out << fmt::format("{} {}: unchanged (version {}, {})\n", r.kind, r.name, r.version,
-                               r.content_hash.substr(0, 12));
+                         r.content_hash.substr(0, 12));
     else
       out << fmt::format("{} {}: version {}{} ({})\n", r.kind, r.name, r.version,
-                               r.new_series ? ", new series" : "", r.content_hash.substr(0, 12));
+                         r.new_series ? ", new series" : "", r.content_hash.substr(0, 12));
   }
-  out << fmt::format("{}: {} new version{}, {} unchanged\n", o.file, added,
-                           added == 1 ? "" : "s", unchanged);
+  out << fmt::format("{}: {} new version{}, {} unchanged\n", o.file, added, added == 1 ? "" : "s",
+                     unchanged);
 }
-
 
 void setup_ingest(CLI::App& app, const GlobalOptions& global) {
   auto o = std::make_shared<IngestRequest>();
@@ -143,8 +144,7 @@ void setup_ingest(CLI::App& app, const GlobalOptions& global) {
                   "curve (required for those)");
   cmd->add_option("--tenor", o->tenor, "Tenor of a single-column rate file, e.g. 1M or 13W");
   cmd->add_option("--date-column", o->date_column, "Date column (default: the first column)");
-  cmd->add_option("--columns", o->columns, "Value columns to read (default: all)")
-      ->delimiter(',');
+  cmd->add_option("--columns", o->columns, "Value columns to read (default: all)")->delimiter(',');
   cmd->add_flag("--percent", o->percent, "Returns are in percent (default: decimals)");
   cmd->add_flag("--levels", o->levels, "Values are prices, NAV or index levels, not returns");
   cmd->add_flag("--decimal", o->decimal, "Rate yields are decimals (default: percent)");

@@ -1,8 +1,8 @@
-#include <CLI/CLI.hpp>
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 #include <sqlite3.h>
 
+#include <CLI/CLI.hpp>
 #include <iostream>
 
 #include "cli/commands.h"
@@ -64,9 +64,7 @@ void run_query(const QueryOptions& o, const GlobalOptions& global) {
             object[table.header[c]] = json_number(col.getDouble());
             table.right_aligned[c] = true;
             break;
-          default:
-            row.push_back(col.getString());
-            object[table.header[c]] = col.getString();
+          default: row.push_back(col.getString()); object[table.header[c]] = col.getString();
         }
       }
       table.rows.push_back(std::move(row));

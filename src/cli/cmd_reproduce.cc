@@ -1,6 +1,6 @@
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 
+#include <CLI/CLI.hpp>
 #include <iostream>
 
 #include "cli/commands.h"
@@ -17,7 +17,9 @@ void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
                                      ledger::OpenMode::read_only, std::cerr);
   const auto row = ledger::read_run_row(ledger, run_id);
-  if (!row) throw Error(ExitCode::not_found, fmt::format("no run {}; `alphatrail runs` lists them", run_id));
+  if (!row)
+    throw Error(ExitCode::not_found,
+                fmt::format("no run {}; `alphatrail runs` lists them", run_id));
   auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
   const auto& p = pending.front();
   const std::string recomputed_hash =
@@ -31,11 +33,12 @@ void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
 
   std::cout << fmt::format("run {} ({}), recorded by engine {}; this is engine {}\n", run_id,
                            row->strategy, row->engine_version, kEngineVersion);
-  std::cout << fmt::format("inputs hash: stored {}, recomputed {} ({})\n", row->inputs_hash.substr(0, 12),
-                           recomputed_hash.substr(0, 12),
+  std::cout << fmt::format("inputs hash: stored {}, recomputed {} ({})\n",
+                           row->inputs_hash.substr(0, 12), recomputed_hash.substr(0, 12),
                            recomputed_hash == row->inputs_hash ? "identical" : "different");
   for (const auto& d : differences)
-    std::cout << fmt::format("  {}: stored {}, recomputed {}\n", d.path, d.before.dump(), d.after.dump());
+    std::cout << fmt::format("  {}: stored {}, recomputed {}\n", d.path, d.before.dump(),
+                             d.after.dump());
   if (differences.empty() && recomputed_hash == row->inputs_hash) {
     std::cout << "reproduced: every coefficient and statistic is identical, bit for bit\n";
     return;

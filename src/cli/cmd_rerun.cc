@@ -1,8 +1,8 @@
-#include <CLI/CLI.hpp>
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 #include <unistd.h>
 
+#include <CLI/CLI.hpp>
 #include <cmath>
 #include <iostream>
 
@@ -39,8 +39,8 @@ std::string revisions_of(ledger::Ledger& ledger, std::int64_t run_id) {
                       "run_id = ? AND latest_version > version");
   q.bind(1, run_id);
   while (q.executeStep())
-    parts.push_back(fmt::format("{} v{} -> v{}", q.getColumn(0).getString(), q.getColumn(1).getInt(),
-                                q.getColumn(2).getInt()));
+    parts.push_back(fmt::format("{} v{} -> v{}", q.getColumn(0).getString(),
+                                q.getColumn(1).getInt(), q.getColumn(2).getInt()));
   return parts.empty() ? "no newer input versions" : fmt::format("{}", fmt::join(parts, ", "));
 }
 
@@ -49,10 +49,13 @@ std::string verdict(double p_old, double p_new, double a_old, double a_new, doub
   if (p_old < level && !(p_new < level)) flips.push_back("significance lost");
   if (!(p_old < level) && p_new < level) flips.push_back("became significant");
   if ((a_old > 0) != (a_new > 0)) flips.push_back("alpha changed sign");
-  return flips.empty() ? "conclusion unchanged" : fmt::format("FLIPPED: {}", fmt::join(flips, ", "));
+  return flips.empty() ? "conclusion unchanged"
+                       : fmt::format("FLIPPED: {}", fmt::join(flips, ", "));
 }
 
-std::string fixed(double v, int digits) { return std::isnan(v) ? "n/a" : fmt::format("{:.{}f}", v, digits); }
+std::string fixed(double v, int digits) {
+  return std::isnan(v) ? "n/a" : fmt::format("{:.{}f}", v, digits);
+}
 
 }  // namespace
 
@@ -68,8 +71,8 @@ void rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids, Fo
   const auto new_ids = record_runs(ledger, pending, progress);
 
   Table table;
-  table.header = {"run", "new run", "strategy", "alpha a year", "alpha t", "alpha p", "beta",
-                  "R2", "conclusion"};
+  table.header = {"run",     "new run", "strategy", "alpha a year", "alpha t",
+                  "alpha p", "beta",    "R2",       "conclusion"};
   auto array = nlohmann::ordered_json::array();
   for (std::size_t i = 0; i < ids.size(); ++i) {
     const auto before = *ledger::read_run_row(ledger, ids[i]);
@@ -78,27 +81,28 @@ void rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids, Fo
     const std::string conclusion =
         verdict(before.alpha_p, after.alpha_p, before.alpha, after.alpha, level);
     const auto pair = [](const std::string& a, const std::string& b) { return a + " -> " + b; };
-    table.rows.push_back(
-        {std::to_string(ids[i]), std::to_string(new_ids[i]), after.strategy,
-         pair(fmt::format("{:+.2f}%", 100 * before.alpha_annualized),
-              fmt::format("{:+.2f}%", 100 * after.alpha_annualized)),
-         pair(fixed(before.alpha_t, 2), fixed(after.alpha_t, 2)),
-         pair(fixed(before.alpha_p, 4), fixed(after.alpha_p, 4)),
-         pair(fixed(before.beta, 3), fixed(after.beta, 3)),
-         pair(fixed(before.r_squared, 3), fixed(after.r_squared, 3)), conclusion});
+    table.rows.push_back({std::to_string(ids[i]), std::to_string(new_ids[i]), after.strategy,
+                          pair(fmt::format("{:+.2f}%", 100 * before.alpha_annualized),
+                               fmt::format("{:+.2f}%", 100 * after.alpha_annualized)),
+                          pair(fixed(before.alpha_t, 2), fixed(after.alpha_t, 2)),
+                          pair(fixed(before.alpha_p, 4), fixed(after.alpha_p, 4)),
+                          pair(fixed(before.beta, 3), fixed(after.beta, 3)),
+                          pair(fixed(before.r_squared, 3), fixed(after.r_squared, 3)), conclusion});
     array.push_back({{"run_id", ids[i]},
                      {"new_run_id", new_ids[i]},
                      {"strategy", after.strategy},
-                     {"before", {{"alpha_annualized", json_number(before.alpha_annualized)},
-                                 {"alpha_t", json_number(before.alpha_t)},
-                                 {"alpha_p", json_number(before.alpha_p)},
-                                 {"beta", json_number(before.beta)},
-                                 {"r_squared", json_number(before.r_squared)}}},
-                     {"after", {{"alpha_annualized", json_number(after.alpha_annualized)},
-                                {"alpha_t", json_number(after.alpha_t)},
-                                {"alpha_p", json_number(after.alpha_p)},
-                                {"beta", json_number(after.beta)},
-                                {"r_squared", json_number(after.r_squared)}}},
+                     {"before",
+                      {{"alpha_annualized", json_number(before.alpha_annualized)},
+                       {"alpha_t", json_number(before.alpha_t)},
+                       {"alpha_p", json_number(before.alpha_p)},
+                       {"beta", json_number(before.beta)},
+                       {"r_squared", json_number(before.r_squared)}}},
+                     {"after",
+                      {{"alpha_annualized", json_number(after.alpha_annualized)},
+                       {"alpha_t", json_number(after.alpha_t)},
+                       {"alpha_p", json_number(after.alpha_p)},
+                       {"beta", json_number(after.beta)},
+                       {"r_squared", json_number(after.r_squared)}}},
                      {"conclusion", conclusion}});
   }
   switch (format) {
@@ -107,7 +111,7 @@ void rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids, Fo
     case Format::table:
       print_table(out, table);
       out << "\nalpha a year as each run annualizes it; significance at each run's own "
-                   "confidence level.\n";
+             "confidence level.\n";
   }
 }
 
@@ -126,8 +130,11 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
   if (o.dry_run) {
     for (auto id : ids) {
       const auto row = ledger::read_run_row(ledger, id);
-      if (!row) throw Error(ExitCode::not_found, fmt::format("no run {}; `alphatrail runs` lists them", id));
-      std::cout << fmt::format("would re-run run {} ({}): {}\n", id, row->strategy, revisions_of(ledger, id));
+      if (!row)
+        throw Error(ExitCode::not_found,
+                    fmt::format("no run {}; `alphatrail runs` lists them", id));
+      std::cout << fmt::format("would re-run run {} ({}): {}\n", id, row->strategy,
+                               revisions_of(ledger, id));
     }
     return;
   }

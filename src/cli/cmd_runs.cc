@@ -1,6 +1,6 @@
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 
+#include <CLI/CLI.hpp>
 #include <cmath>
 #include <iostream>
 
@@ -31,32 +31,35 @@ void run_runs(const RunsOptions& o, const GlobalOptions& global) {
   if (o.format == Format::json) {
     auto array = nlohmann::ordered_json::array();
     for (const auto& r : runs)
-      array.push_back({{"run_id", r.run_id},
-                       {"created_at", r.created_at},
-                       {"strategy", r.strategy},
-                       {"benchmark", r.benchmark},
-                       {"study", r.study.empty() ? nlohmann::ordered_json() : nlohmann::ordered_json(r.study)},
-                       {"inputs_hash", r.inputs_hash},
-                       {"frequency", r.frequency},
-                       {"observations", r.observations},
-                       {"alpha", json_number(r.alpha)},
-                       {"alpha_annualized", json_number(r.alpha_annualized)},
-                       {"alpha_t", json_number(r.alpha_t)},
-                       {"alpha_p", json_number(r.alpha_p)},
-                       {"beta", json_number(r.beta)},
-                       {"r_squared", json_number(r.r_squared)},
-                       {"errors", r.errors},
-                       {"lags", r.lags},
-                       {"stale", r.stale},
-                       {"revises_run_id", r.revises_run_id ? nlohmann::ordered_json(*r.revises_run_id)
-                                                           : nlohmann::ordered_json()}});
+      array.push_back(
+          {{"run_id", r.run_id},
+           {"created_at", r.created_at},
+           {"strategy", r.strategy},
+           {"benchmark", r.benchmark},
+           {"study", r.study.empty() ? nlohmann::ordered_json() : nlohmann::ordered_json(r.study)},
+           {"inputs_hash", r.inputs_hash},
+           {"frequency", r.frequency},
+           {"observations", r.observations},
+           {"alpha", json_number(r.alpha)},
+           {"alpha_annualized", json_number(r.alpha_annualized)},
+           {"alpha_t", json_number(r.alpha_t)},
+           {"alpha_p", json_number(r.alpha_p)},
+           {"beta", json_number(r.beta)},
+           {"r_squared", json_number(r.r_squared)},
+           {"errors", r.errors},
+           {"lags", r.lags},
+           {"stale", r.stale},
+           {"revises_run_id", r.revises_run_id ? nlohmann::ordered_json(*r.revises_run_id)
+                                               : nlohmann::ordered_json()}});
     print_json(std::cout, array);
     return;
   }
   Table table;
-  table.header = {"run", "recorded (UTC)", "strategy", "study", "periods", "alpha a year",
-                  "alpha t", "p", "beta", "R2", "errors", "stale", "inputs hash"};
-  table.right_aligned = {true, false, false, false, true, true, true, true, true, true, false, false};
+  table.header = {"run",          "recorded (UTC)", "strategy",   "study", "periods",
+                  "alpha a year", "alpha t",        "p",          "beta",  "R2",
+                  "errors",       "stale",          "inputs hash"};
+  table.right_aligned = {true, false, false, false, true,  true,
+                         true, true,  true,  true,  false, false};
   for (const auto& r : runs)
     table.rows.push_back(
         {std::to_string(r.run_id), r.created_at.substr(0, 19), r.strategy, r.study,

@@ -1,6 +1,6 @@
-#include <CLI/CLI.hpp>
 #include <fmt/format.h>
 
+#include <CLI/CLI.hpp>
 #include <algorithm>
 #include <cmath>
 #include <iostream>
@@ -16,7 +16,7 @@ namespace alphatrail::cli {
 namespace {
 
 struct SeriesOptions {
-  std::string name;  // empty: list every series
+  std::string name;       // empty: list every series
   std::vector<int> diff;  // --diff V1 V2
   Format format = Format::table;
 };
@@ -28,20 +28,28 @@ void print_diff(ledger::Ledger& ledger, const SeriesOptions& o) {
   Table table;
   table.header = {"column", "date", "change", "before", "after", "difference"};
   table.right_aligned = {false, false, false, true, true, true};
-  const auto value = [](double v) { return std::isnan(v) ? std::string("missing") : fmt::format("{}", v); };
+  const auto value = [](double v) {
+    return std::isnan(v) ? std::string("missing") : fmt::format("{}", v);
+  };
   std::vector<std::string> counts;
   for (const auto& column : newer.columns) {
-    const auto match = std::find_if(older.columns.begin(), older.columns.end(),
-                                    [&](const ledger::ColumnData& c) { return c.name == column.name; });
+    const auto match =
+        std::find_if(older.columns.begin(), older.columns.end(),
+                     [&](const ledger::ColumnData& c) { return c.name == column.name; });
     const ledger::ColumnData empty{column.name, {}, {}};
-    const core::ColumnDiff d = core::diff_column(match == older.columns.end() ? empty : *match, column);
-    counts.push_back(fmt::format("{}: {} changed, {} added, {} removed", column.name, d.changed.size(),
-                                 d.added.size(), d.removed.size()));
+    const core::ColumnDiff d =
+        core::diff_column(match == older.columns.end() ? empty : *match, column);
+    counts.push_back(fmt::format("{}: {} changed, {} added, {} removed", column.name,
+                                 d.changed.size(), d.added.size(), d.removed.size()));
     auto changed = nlohmann::ordered_json::array();
     for (const auto& c : d.changed) {
-      table.rows.push_back({column.name, core::format_date(c.date), "changed", value(c.before), value(c.after),
-                            std::isnan(c.before) || std::isnan(c.after) ? "" : fmt::format("{:+}", c.after - c.before)});
-      changed.push_back({{"date", core::format_date(c.date)}, {"before", json_number(c.before)}, {"after", json_number(c.after)}});
+      table.rows.push_back(
+          {column.name, core::format_date(c.date), "changed", value(c.before), value(c.after),
+           std::isnan(c.before) || std::isnan(c.after) ? ""
+                                                       : fmt::format("{:+}", c.after - c.before)});
+      changed.push_back({{"date", core::format_date(c.date)},
+                         {"before", json_number(c.before)},
+                         {"after", json_number(c.after)}});
     }
     std::vector<std::string> added;
     std::vector<std::string> removed;
@@ -53,10 +61,14 @@ void print_diff(ledger::Ledger& ledger, const SeriesOptions& o) {
       removed.push_back(core::format_date(day));
       table.rows.push_back({column.name, removed.back(), "removed", "", "", ""});
     }
-    json.push_back({{"column", column.name}, {"changed", changed}, {"added", added}, {"removed", removed}});
+    json.push_back(
+        {{"column", column.name}, {"changed", changed}, {"added", added}, {"removed", removed}});
   }
   if (o.format == Format::json) {
-    print_json(std::cout, {{"name", o.name}, {"from_version", o.diff[0]}, {"to_version", o.diff[1]}, {"columns", json}});
+    print_json(std::cout, {{"name", o.name},
+                           {"from_version", o.diff[0]},
+                           {"to_version", o.diff[1]},
+                           {"columns", json}});
     return;
   }
   if (o.format == Format::csv) {
@@ -64,7 +76,8 @@ void print_diff(ledger::Ledger& ledger, const SeriesOptions& o) {
     return;
   }
   std::cout << fmt::format("{}: version {} -> {} ({} -> {})\n", o.name, o.diff[0], o.diff[1],
-                           older.info.content_hash.substr(0, 12), newer.info.content_hash.substr(0, 12));
+                           older.info.content_hash.substr(0, 12),
+                           newer.info.content_hash.substr(0, 12));
   for (const auto& c : counts) std::cout << "  " << c << '\n';
   std::cout << '\n';
   print_table(std::cout, table);
@@ -97,8 +110,7 @@ nlohmann::ordered_json version_json(const ledger::VersionInfo& v) {
           {"note", v.note}};
 }
 
-void print_versions(const std::vector<ledger::VersionInfo>& versions, Format format,
-                    bool history) {
+void print_versions(const std::vector<ledger::VersionInfo>& versions, Format format, bool history) {
   if (format == Format::json) {
     auto array = nlohmann::ordered_json::array();
     for (const auto& v : versions) array.push_back(version_json(v));
@@ -107,12 +119,12 @@ void print_versions(const std::vector<ledger::VersionInfo>& versions, Format for
   }
   Table table;
   if (history) {
-    table.header = {"version", "ingested (UTC)", "by", "observations", "first", "last",
-                    "content hash", "source file", "note"};
+    table.header = {"version", "ingested (UTC)", "by",          "observations", "first",
+                    "last",    "content hash",   "source file", "note"};
     table.right_aligned = {true, false, false, true};
   } else {
-    table.header = {"name", "kind", "frequency", "first", "last", "observations",
-                    "columns", "version", "content hash"};
+    table.header = {"name",         "kind",    "frequency", "first",       "last",
+                    "observations", "columns", "version",   "content hash"};
     table.right_aligned = {false, false, false, false, false, true, true, true};
   }
   for (const auto& v : versions) {
@@ -146,7 +158,8 @@ void run_series(const SeriesOptions& options, const GlobalOptions& global) {
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
                                      ledger::OpenMode::read_only, std::cerr);
   if (!options.diff.empty()) {
-    if (options.name.empty()) throw Error(ExitCode::usage, "--diff needs a series name: series NAME --diff V1 V2");
+    if (options.name.empty())
+      throw Error(ExitCode::usage, "--diff needs a series name: series NAME --diff V1 V2");
     print_diff(ledger, options);
   } else if (options.name.empty())
     print_versions(ledger::list_latest_versions(ledger), options.format, false);
@@ -161,7 +174,8 @@ void setup_series(CLI::App& app, const GlobalOptions& global) {
   auto* cmd = app.add_subcommand(
       "series", "List every series, factor set and rate curve, or one series' version history");
   cmd->add_option("name", options->name, "Series to show the version history of");
-  cmd->add_option("--diff", options->diff, "Show the periods added, removed and changed between two versions")
+  cmd->add_option("--diff", options->diff,
+                  "Show the periods added, removed and changed between two versions")
       ->expected(2);
   add_format_option(*cmd, options->format);
   cmd->callback([options, &global] { run_series(*options, global); });

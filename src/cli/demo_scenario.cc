@@ -81,8 +81,9 @@ std::vector<DemoFile> write_demo_files(const std::filesystem::path& folder, std:
   // The month before the sample opens carries the first index level and bill yield.
   index << fmt::format("{},{:.2f}\n", core::format_date(last_business_day(kFirstYear - 1, 12)),
                        level);
-  bills << fmt::format("{},{:.3f},{:.3f}\n", core::format_date(last_business_day(kFirstYear - 1, 12)),
-                       yield, yield + 0.15);
+  bills << fmt::format("{},{:.3f},{:.3f}\n",
+                       core::format_date(last_business_day(kFirstYear - 1, 12)), yield,
+                       yield + 0.15);
   for (int m = 0; m < months; ++m) {
     const int year = kFirstYear + m / 12;
     const int month = m % 12 + 1;
@@ -136,8 +137,8 @@ DemoFile write_restated_benchmark(const std::filesystem::path& folder) {
     if (core::parse_date(date).day >= restated_from) level *= 1.008;
     out << fmt::format("{},{:.2f}\n", date, level);
   }
-  return {path, "benchmark", kDemoBenchmark, false, true,
-          "restated: October 2008 dividends added (invented)"};
+  return {path,  "benchmark", kDemoBenchmark,
+          false, true,        "restated: October 2008 dividends added (invented)"};
 }
 
 }  // namespace alphatrail::cli

@@ -12,8 +12,8 @@ namespace alphatrail::cli {
 
 struct DemoFile {
   std::filesystem::path path;
-  std::string kind;   // ingest kind
-  std::string name;   // set/curve/benchmark name ("" for a strategy file)
+  std::string kind;  // ingest kind
+  std::string name;  // set/curve/benchmark name ("" for a strategy file)
   bool percent = false;
   bool levels = false;
   std::string note;

@@ -21,9 +21,13 @@ namespace {
 
 using nlohmann::ordered_json;
 
-Error usage(const std::string& message) { return Error(ExitCode::usage, message); }
+Error usage(const std::string& message) {
+  return Error(ExitCode::usage, message);
+}
 
-bool is_pattern(const std::string& s) { return s.find_first_of("*?[") != std::string::npos; }
+bool is_pattern(const std::string& s) {
+  return s.find_first_of("*?[") != std::string::npos;
+}
 
 std::vector<std::string> names_of_kind(ledger::Ledger& ledger, const std::string& kind) {
   SQLite::Statement q(ledger.db(), "SELECT name FROM series WHERE kind = ? ORDER BY name");
@@ -46,10 +50,11 @@ std::vector<std::string> resolve_strategies(ledger::Ledger& ledger,
         if (seen.insert(name).second) chosen.push_back(name);
       }
     if (!matched)
-      throw Error(ExitCode::not_found,
-                  is_pattern(want)
-                      ? fmt::format("no strategy matches '{}'; `alphatrail series` lists them", want)
-                      : fmt::format("no strategy named '{}'; `alphatrail series` lists them", want));
+      throw Error(
+          ExitCode::not_found,
+          is_pattern(want)
+              ? fmt::format("no strategy matches '{}'; `alphatrail series` lists them", want)
+              : fmt::format("no strategy named '{}'; `alphatrail series` lists them", want));
   }
   return chosen;
 }
@@ -91,7 +96,8 @@ std::vector<std::string> split_commas(const std::string& s) {
   std::size_t start = 0;
   while (start <= s.size()) {
     const auto comma = s.find(',', start);
-    std::string part = s.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
+    std::string part =
+        s.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
     if (!part.empty()) out.push_back(part);
     if (comma == std::string::npos) break;
     start = comma + 1;
@@ -144,15 +150,17 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
       settings.covariance.lags = std::stoi(rq.lags, &used);
       if (used != rq.lags.size() || settings.covariance.lags < 0) throw std::invalid_argument("");
     } catch (const std::exception&) {
-      throw usage(fmt::format("--lags {}: write a whole number of lags (0 or more) or auto", rq.lags));
+      throw usage(
+          fmt::format("--lags {}: write a whole number of lags (0 or more) or auto", rq.lags));
     }
     if (settings.covariance.kind != core::ErrorKind::newey_west)
       throw usage("--lags applies to --errors newey-west only");
   }
   settings.covariance.small_sample = rq.small_sample == "on";
   if (settings.covariance.small_sample && settings.covariance.kind != core::ErrorKind::newey_west)
-    throw usage("--small-sample applies to Newey-West errors (HC1 is HC0 with the factor; "
-                "classic, HC0 and HC3 never take it)");
+    throw usage(
+        "--small-sample applies to Newey-West errors (HC1 is HC0 with the factor; "
+        "classic, HC0 and HC3 never take it)");
   settings.confidence = rq.confidence;
   settings.rate_basis = *core::parse_rate_basis(rq.rate_basis);
   settings.rate_timing = *core::parse_rate_timing(rq.rate_timing);
@@ -166,9 +174,8 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
   auto benchmark = load_kind(ledger, rq, rq.benchmark, {"benchmark", "strategy"}, "benchmark");
   const auto [rate_name, rate_tenor] = split_colon(rq.rate);
   auto rate = load_kind(ledger, rq, rate_name, {"rate"}, "rate");
-  if (!rate_tenor.empty() &&
-      std::find(rate.info.columns.begin(), rate.info.columns.end(), rate_tenor) ==
-          rate.info.columns.end())
+  if (!rate_tenor.empty() && std::find(rate.info.columns.begin(), rate.info.columns.end(),
+                                       rate_tenor) == rate.info.columns.end())
     throw usage(fmt::format("rate curve '{}' has no tenor {}; it has {}", rate_name, rate_tenor,
                             fmt::join(rate.info.columns, ", ")));
 
@@ -192,7 +199,8 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
   // Strategies and the frequency each is evaluated at.
   std::vector<ledger::LoadedVersion> strategies;
   strategies.reserve(strategy_names.size());
-  for (const auto& name : strategy_names) strategies.push_back(ledger::load_version(ledger, name, pinned(rq, name)));
+  for (const auto& name : strategy_names)
+    strategies.push_back(ledger::load_version(ledger, name, pinned(rq, name)));
 
   const auto detected = [](const ledger::VersionInfo& info, const std::string& what) {
     if (!info.frequency)
@@ -203,7 +211,8 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
     return *core::parse_frequency(*info.frequency);
   };
   std::vector<core::Frequency> shared_frequencies{detected(benchmark.info, "benchmark")};
-  for (const auto& f : factors) shared_frequencies.push_back(detected(f.version.info, "factor set"));
+  for (const auto& f : factors)
+    shared_frequencies.push_back(detected(f.version.info, "factor set"));
 
   std::map<core::Frequency, Plan> plans;
   for (std::size_t i = 0; i < strategies.size(); ++i) {
@@ -229,10 +238,12 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
         {"model", factors.empty() ? "single-index" : "multi-factor"},
         {"frequency", core::frequency_name(f)},
         {"frequency_rule", rq.frequency.empty() ? "lowest among the inputs" : "given"},
-        {"from", settings.from ? nlohmann::json(core::format_date(*settings.from)) : nlohmann::json()},
+        {"from",
+         settings.from ? nlohmann::json(core::format_date(*settings.from)) : nlohmann::json()},
         {"to", settings.to ? nlohmann::json(core::format_date(*settings.to)) : nlohmann::json()},
         {"errors", core::error_kind_name(settings.covariance.kind)},
-        {"lags", rq.lags == "auto" ? nlohmann::json("auto") : nlohmann::json(settings.covariance.lags)},
+        {"lags",
+         rq.lags == "auto" ? nlohmann::json("auto") : nlohmann::json(settings.covariance.lags)},
         {"lag_rule", "floor(4 (T/100)^(2/9))"},
         {"small_sample", settings.covariance.small_sample},
         {"confidence", settings.confidence},
@@ -252,30 +263,35 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
   std::vector<std::string> failures;
   for (auto& [f, plan] : plans) {
     core::SharedInputs shared;
-    shared.benchmark = to_return_input(benchmark.info.name, ledger::ColumnData(benchmark.columns.front()),
-                                       benchmark.info);
+    shared.benchmark = to_return_input(
+        benchmark.info.name, ledger::ColumnData(benchmark.columns.front()), benchmark.info);
     const auto tenor_it = std::find(rate.info.columns.begin(), rate.info.columns.end(), plan.tenor);
-    auto tenor_column = rate.columns[static_cast<std::size_t>(tenor_it - rate.info.columns.begin())];
+    auto tenor_column =
+        rate.columns[static_cast<std::size_t>(tenor_it - rate.info.columns.begin())];
     shared.rate.name = rate.info.name;
     shared.rate.tenor = plan.tenor;
     shared.rate.yields = {std::move(tenor_column.dates), std::move(tenor_column.values)};
-    shared.rate.unit = rate.info.unit == "percent yield" ? core::RateUnit::percent : core::RateUnit::decimal;
-    shared.rate.quote = rate.info.quote == std::optional<std::string>("discount") ? core::RateQuote::discount
-                                                                                  : core::RateQuote::yield;
+    shared.rate.unit =
+        rate.info.unit == "percent yield" ? core::RateUnit::percent : core::RateUnit::decimal;
+    shared.rate.quote = rate.info.quote == std::optional<std::string>("discount")
+                            ? core::RateQuote::discount
+                            : core::RateQuote::yield;
     for (const auto& fc : factors)
       for (const auto& col : fc.columns) {
-        const auto it = std::find(fc.version.info.columns.begin(), fc.version.info.columns.end(), col);
+        const auto it =
+            std::find(fc.version.info.columns.begin(), fc.version.info.columns.end(), col);
         shared.factors.push_back(to_return_input(
-            col, ledger::ColumnData(fc.version.columns[static_cast<std::size_t>(it - fc.version.info.columns.begin())]),
+            col,
+            ledger::ColumnData(
+                fc.version.columns[static_cast<std::size_t>(it - fc.version.info.columns.begin())]),
             fc.version.info));
       }
     const core::Evaluator evaluator(shared, f, settings);
     std::vector<core::ReturnInput> inputs;
     inputs.reserve(plan.members.size());
     for (std::size_t i : plan.members)
-      inputs.push_back(to_return_input(strategies[i].info.name,
-                                       std::move(strategies[i].columns.front()),
-                                       strategies[i].info));
+      inputs.push_back(to_return_input(
+          strategies[i].info.name, std::move(strategies[i].columns.front()), strategies[i].info));
     auto outcomes = evaluator.evaluate_many(inputs, 0, rq.keep_series);
     for (std::size_t j = 0; j < plan.members.size(); ++j) {
       if (outcomes[j].result)
@@ -297,7 +313,7 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
                                 fmt::join(fc.columns, ","));
   const auto input_of = [](const std::string& role, int position, const ledger::VersionInfo& info,
                            std::vector<std::string> columns) {
-    return ledger::RunInput{role,         position,     info.version_id, info.name,
+    return ledger::RunInput{role,         position,          info.version_id,   info.name,
                             info.version, info.content_hash, std::move(columns)};
   };
   std::vector<PendingRun> pending;
@@ -317,7 +333,8 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
       run.revises_run_id = rq.revises_run_id;
       run.parameters = plan.parameters;
       run.inputs.push_back(input_of("strategy", 1, strategies[i].info, {strategies[i].info.name}));
-      run.inputs.push_back(input_of("benchmark", 1, benchmark.info, {benchmark.info.columns.front()}));
+      run.inputs.push_back(
+          input_of("benchmark", 1, benchmark.info, {benchmark.info.columns.front()}));
       run.inputs.push_back(input_of("rate", 1, rate.info, {plan.tenor}));
       int position = 1;
       for (const auto& fc : factors)
@@ -353,7 +370,9 @@ std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const Eval
 
 namespace {
 
-double num(const ordered_json& j) { return j.is_number() ? j.get<double>() : NAN; }
+double num(const ordered_json& j) {
+  return j.is_number() ? j.get<double>() : NAN;
+}
 
 std::string fixed(const ordered_json& j, int digits) {
   const double v = num(j);
@@ -388,8 +407,10 @@ std::string errors_text(const ordered_json& stats) {
                        stats["small_sample_factor"].get<bool>() ? "small-sample factor T/(T-k)"
                                                                 : "no small-sample factor");
   if (kind == "classic") return "classic (homoskedastic)";
-  return fmt::format("White {}", kind == "hc1" ? "HC1 (HC0 x T/(T-k))" : kind == "hc0" ? "HC0"
-                                 : kind == "hc2" ? "HC2" : "HC3");
+  return fmt::format("White {}", kind == "hc1"   ? "HC1 (HC0 x T/(T-k))"
+                                 : kind == "hc0" ? "HC0"
+                                 : kind == "hc2" ? "HC2"
+                                                 : "HC3");
 }
 
 }  // namespace
@@ -405,8 +426,7 @@ void print_run_text(std::ostream& out, const ordered_json& run) {
   out << fmt::format("  recorded {} (UTC), engine {}, inputs hash {}\n",
                      run["created_at"].get<std::string>(), run["engine_version"].get<std::string>(),
                      run["inputs_hash"].get<std::string>());
-  if (run["study"].is_string())
-    out << fmt::format("  study {}\n", run["study"].get<std::string>());
+  if (run["study"].is_string()) out << fmt::format("  study {}\n", run["study"].get<std::string>());
   if (run["revises_run_id"].is_number())
     out << fmt::format("  revises run {}\n", run["revises_run_id"].get<std::int64_t>());
   out << fmt::format("  risk-free {}, {} basis, yield known at the period's {}\n",
@@ -417,9 +437,10 @@ void print_run_text(std::ostream& out, const ordered_json& run) {
   out << fmt::format("  sample {} to {}: {} {} periods ({} dropped)\n",
                      sample["first"].get<std::string>(), sample["last"].get<std::string>(),
                      sample["observations"].get<int>(), frequency, sample["dropped"].get<int>());
-  out << fmt::format("  standard errors {}; {:g}% intervals, Student t with {} degrees of freedom\n\n",
-                     errors_text(stats), 100 * stats["confidence"].get<double>(),
-                     stats["degrees_of_freedom"].get<int>());
+  out << fmt::format(
+      "  standard errors {}; {:g}% intervals, Student t with {} degrees of freedom\n\n",
+      errors_text(stats), 100 * stats["confidence"].get<double>(),
+      stats["degrees_of_freedom"].get<int>());
 
   Table table;
   table.header = {"term", "estimate", "std error", "t", "p", "interval low", "interval high"};
@@ -452,10 +473,12 @@ void print_run_text(std::ostream& out, const ordered_json& run) {
   out << fmt::format("  mean excess return     strategy {}, benchmark {} {}\n",
                      pct(stats["mean_excess_strategy"], 3), pct(stats["mean_excess_benchmark"], 3),
                      unit);
-  out << fmt::format("  correlation            {}; up-market beta {} ({} periods), down-market beta {} ({} periods)\n\n",
-                     fixed(stats["correlation"], 3), fixed(stats["up_market_beta"], 2),
-                     stats["up_periods"].get<int>(), fixed(stats["down_market_beta"], 2),
-                     stats["down_periods"].get<int>());
+  out << fmt::format(
+      "  correlation            {}; up-market beta {} ({} periods), down-market beta {} ({} "
+      "periods)\n\n",
+      fixed(stats["correlation"], 3), fixed(stats["up_market_beta"], 2),
+      stats["up_periods"].get<int>(), fixed(stats["down_market_beta"], 2),
+      stats["down_periods"].get<int>());
   for (const auto& w : run["warnings"]) out << "  warning: " << w.get<std::string>() << '\n';
   if (!run["warnings"].empty()) out << '\n';
   out << "  Reading\n";
@@ -476,29 +499,29 @@ void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std
     return;
   }
   Table table;
-  table.header = {"run", "strategy", "periods", "alpha (per period)", "alpha a year", "t", "p",
-                  "beta", "R2", "errors"};
+  table.header = {"run",  "strategy", "periods", "alpha (per period)", "alpha a year", "t", "p",
+                  "beta", "R2",       "errors"};
   table.right_aligned = {true, false, true, true, true, true, true, true, true, false};
   for (auto id : runs) {
     const auto run = ledger::load_run(ledger, id);
     const auto& alpha = run["coefficients"][0];
     const auto& stats = run["statistics"];
-    table.rows.push_back({std::to_string(id), run["strategy"].get<std::string>(),
-                          std::to_string(run["sample"]["observations"].get<int>()),
-                          fixed(alpha["estimate"], 6), pct(stats["alpha_annualized"]),
-                          fixed(alpha["t_stat"], 2), p_text(alpha["p_value"]),
-                          fixed(run["coefficients"][1]["estimate"], 3), fixed(stats["r_squared"], 3),
-                          stats["errors"].get<std::string>() +
-                              (stats["errors"] == "newey-west"
-                                   ? fmt::format(" ({} lags)", stats["lags"].get<int>())
-                                   : "")});
+    table.rows.push_back(
+        {std::to_string(id), run["strategy"].get<std::string>(),
+         std::to_string(run["sample"]["observations"].get<int>()), fixed(alpha["estimate"], 6),
+         pct(stats["alpha_annualized"]), fixed(alpha["t_stat"], 2), p_text(alpha["p_value"]),
+         fixed(run["coefficients"][1]["estimate"], 3), fixed(stats["r_squared"], 3),
+         stats["errors"].get<std::string>() +
+             (stats["errors"] == "newey-west" ? fmt::format(" ({} lags)", stats["lags"].get<int>())
+                                              : "")});
   }
   if (format == Format::csv) {
     print_csv(out, table);
     return;
   }
   print_table(out, table);
-  out << fmt::format("\n{} runs recorded; `alphatrail show RUN` prints one in full.\n", runs.size());
+  out << fmt::format("\n{} runs recorded; `alphatrail show RUN` prints one in full.\n",
+                     runs.size());
   for (const auto& c : core::standard_cautions()) out << c << '\n';
 }
 
@@ -519,8 +542,9 @@ EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bo
   const std::string curve = row->rate.substr(0, row->rate.rfind(':'));
   rq.rate = p.at("tenor_rule") == "given" ? curve + ":" + tenor : curve;
   for (const auto& f : p.at("factors"))
-    rq.factors.push_back(fmt::format("{}:{}", f.at("set").get<std::string>(),
-                                     fmt::join(f.at("columns").get<std::vector<std::string>>(), ",")));
+    rq.factors.push_back(
+        fmt::format("{}:{}", f.at("set").get<std::string>(),
+                    fmt::join(f.at("columns").get<std::vector<std::string>>(), ",")));
   if (p.at("frequency_rule") == "given") rq.frequency = p.at("frequency");
   if (p.at("from").is_string()) rq.from = p.at("from");
   if (p.at("to").is_string()) rq.to = p.at("to");

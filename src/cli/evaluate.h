@@ -19,9 +19,9 @@ namespace alphatrail::cli {
 struct EvaluateRequest {
   std::vector<std::string> strategies;  // names or glob patterns
   std::string benchmark;
-  std::string rate;                     // NAME or NAME:TENOR
-  std::vector<std::string> factors;     // SET or SET:col,col
-  std::string frequency;                // empty: lowest among the inputs
+  std::string rate;                  // NAME or NAME:TENOR
+  std::vector<std::string> factors;  // SET or SET:col,col
+  std::string frequency;             // empty: lowest among the inputs
   std::string from;
   std::string to;
   std::string errors = "newey-west";

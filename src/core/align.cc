@@ -1,10 +1,10 @@
 #include "core/align.h"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <cmath>
 #include <limits>
-
-#include <fmt/format.h>
 
 #include "core/error.h"
 
@@ -24,24 +24,26 @@ void validate(const NamedSeries& input, Frequency f) {
     bad_input(fmt::format("series \"{}\" is {} but the evaluation is {}; resample it first",
                           input.name, frequency_name(s.frequency), frequency_name(f)));
   if (s.keys.size() != s.values.size())
-    bad_input(fmt::format("series \"{}\" has {} periods but {} values; give one value per "
-                          "period",
-                          input.name, s.keys.size(), s.values.size()));
+    bad_input(
+        fmt::format("series \"{}\" has {} periods but {} values; give one value per "
+                    "period",
+                    input.name, s.keys.size(), s.values.size()));
   for (std::size_t i = 1; i < s.keys.size(); ++i)
     if (s.keys[i] <= s.keys[i - 1])
-      bad_input(fmt::format("series \"{}\": period {} {} {}; sort the periods and keep one value "
-                            "per period",
-                            input.name, period_label(f, s.keys[i]),
-                            s.keys[i] == s.keys[i - 1] ? "appears twice after" : "comes after",
-                            period_label(f, s.keys[i - 1])));
+      bad_input(
+          fmt::format("series \"{}\": period {} {} {}; sort the periods and keep one value "
+                      "per period",
+                      input.name, period_label(f, s.keys[i]),
+                      s.keys[i] == s.keys[i - 1] ? "appears twice after" : "comes after",
+                      period_label(f, s.keys[i - 1])));
 }
 
 void check_names(const std::vector<std::string>& names) {
   for (std::size_t i = 0; i < names.size(); ++i)
     for (std::size_t j = 0; j < i; ++j)
       if (names[i] == names[j])
-        bad_input(fmt::format("two inputs are named \"{}\"; give each input its own name",
-                              names[i]));
+        bad_input(
+            fmt::format("two inputs are named \"{}\"; give each input its own name", names[i]));
 }
 
 InputCoverage coverage_of(const NamedSeries& input) {
@@ -65,8 +67,7 @@ std::vector<std::int64_t> merge_keys(const std::vector<std::int64_t>& a,
 }
 
 // Spreads values on `keys` over `onto` (a superset of keys, both ascending), NaN where absent.
-std::vector<double> spread(const std::vector<std::int64_t>& keys,
-                           const std::vector<double>& values,
+std::vector<double> spread(const std::vector<std::int64_t>& keys, const std::vector<double>& values,
                            const std::vector<std::int64_t>& onto) {
   std::vector<double> out(onto.size(), kNaN);
   std::size_t j = 0;
@@ -96,10 +97,10 @@ Aligned classify(Frequency f, const std::vector<std::int64_t>& keys,
   out.columns.assign(columns.size(), {});
   for (auto& c : out.columns) c.reserve(keys.size());
 
-  const std::int64_t lo = options.from ? period_key(f, *options.from)
-                                       : std::numeric_limits<std::int64_t>::min();
-  const std::int64_t hi = options.to ? period_key(f, *options.to)
-                                     : std::numeric_limits<std::int64_t>::max();
+  const std::int64_t lo =
+      options.from ? period_key(f, *options.from) : std::numeric_limits<std::int64_t>::min();
+  const std::int64_t hi =
+      options.to ? period_key(f, *options.to) : std::numeric_limits<std::int64_t>::max();
   std::int64_t common_first = std::numeric_limits<std::int64_t>::min();
   std::int64_t common_last = std::numeric_limits<std::int64_t>::max();
   for (const InputCoverage& c : coverage) {
@@ -208,7 +209,8 @@ CommonSample::CommonSample(const std::vector<NamedSeries>& shared, const AlignOp
     keys_ = merge_keys(keys_, in.series.keys);
   }
   check_names(names_);
-  for (const NamedSeries& in : shared) values_.push_back(spread(in.series.keys, in.series.values, keys_));
+  for (const NamedSeries& in : shared)
+    values_.push_back(spread(in.series.keys, in.series.values, keys_));
 }
 
 Aligned CommonSample::align(const NamedSeries& first) const {

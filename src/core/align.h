@@ -46,10 +46,10 @@ struct DroppedPeriod {
 };
 
 struct SampleGap {
-  std::int64_t after = 0;   // last kept key before the gap
-  std::int64_t before = 0;  // first kept key after the gap
-  std::int64_t missing = 0; // periods (weekdays for daily) between them
-  std::string text;         // "2 months missing between 2020-03 and 2020-06"
+  std::int64_t after = 0;    // last kept key before the gap
+  std::int64_t before = 0;   // first kept key after the gap
+  std::int64_t missing = 0;  // periods (weekdays for daily) between them
+  std::string text;          // "2 months missing between 2020-03 and 2020-06"
 };
 
 struct InputCoverage {
@@ -59,17 +59,17 @@ struct InputCoverage {
 };
 
 struct AlignReport {
-  std::vector<DroppedPeriod> dropped;                  // ascending by key
+  std::vector<DroppedPeriod> dropped;  // ascending by key
   std::map<std::string, std::size_t> dropped_by_reason;
-  std::vector<SampleGap> gaps;                         // inside the kept sample
-  std::vector<InputCoverage> coverage;                 // one per input, in input order
+  std::vector<SampleGap> gaps;          // inside the kept sample
+  std::vector<InputCoverage> coverage;  // one per input, in input order
 };
 
 struct Aligned {
   Frequency frequency = Frequency::monthly;
-  std::vector<std::int64_t> keys;           // kept periods, ascending
-  std::vector<std::string> names;           // one per column, in input order
-  std::vector<std::vector<double>> columns; // columns[j][i]: input j at keys[i], all finite
+  std::vector<std::int64_t> keys;            // kept periods, ascending
+  std::vector<std::string> names;            // one per column, in input order
+  std::vector<std::vector<double>> columns;  // columns[j][i]: input j at keys[i], all finite
   AlignReport report;
 
   // Returns the column of an input by name; throws Error(ExitCode::failure) when unknown.
@@ -96,8 +96,8 @@ class CommonSample {
   std::vector<std::string> names_;
   AlignOptions options_;
   Frequency frequency_ = Frequency::monthly;
-  std::vector<std::int64_t> keys_;                 // union of the shared keys
-  std::vector<std::vector<double>> values_;        // values_[j][i] at keys_[i], NaN if absent
+  std::vector<std::int64_t> keys_;           // union of the shared keys
+  std::vector<std::vector<double>> values_;  // values_[j][i] at keys_[i], NaN if absent
   std::vector<InputCoverage> coverage_;
 };
 

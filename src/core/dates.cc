@@ -11,7 +11,8 @@ Day to_day(const CivilDate& date) {
   const int era = (y >= 0 ? y : y - 399) / 400;
   const unsigned yoe = static_cast<unsigned>(y - era * 400);
   const unsigned m = static_cast<unsigned>(date.month);
-  const unsigned doy = (153 * (m > 2 ? m - 3 : m + 9) + 2) / 5 + static_cast<unsigned>(date.day) - 1;
+  const unsigned doy =
+      (153 * (m > 2 ? m - 3 : m + 9) + 2) / 5 + static_cast<unsigned>(date.day) - 1;
   const unsigned doe = yoe * 365 + yoe / 4 - yoe / 100 + doy;
   return era * 146097 + static_cast<int>(doe) - 719468;
 }

@@ -12,13 +12,13 @@ namespace alphatrail {
 // Exit codes, documented in `alphatrail --help` and the README.
 enum class ExitCode : int {
   ok = 0,
-  failure = 1,          // unexpected internal error
-  usage = 2,            // bad command line
-  bad_input = 3,        // an input file is missing, unreadable or invalid
-  ledger = 4,           // the ledger cannot be opened, is newer than the binary, or is busy
-  not_found = 5,        // a named series, run or study does not exist
-  estimation = 6,       // the data cannot be estimated (too short, collinear, ill-conditioned)
-  verify_failed = 7,    // verification found a mismatch
+  failure = 1,        // unexpected internal error
+  usage = 2,          // bad command line
+  bad_input = 3,      // an input file is missing, unreadable or invalid
+  ledger = 4,         // the ledger cannot be opened, is newer than the binary, or is busy
+  not_found = 5,      // a named series, run or study does not exist
+  estimation = 6,     // the data cannot be estimated (too short, collinear, ill-conditioned)
+  verify_failed = 7,  // verification found a mismatch
 };
 
 class Error : public std::runtime_error {

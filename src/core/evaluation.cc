@@ -98,8 +98,8 @@ double correlation(const std::vector<double>& x, const std::vector<double>& y) {
 }
 
 // Slope of y on x with an intercept over the periods selected by `keep`; NaN below 3.
-double conditional_slope(const std::vector<double>& y, const std::vector<double>& x,
-                         bool up, int& count) {
+double conditional_slope(const std::vector<double>& y, const std::vector<double>& x, bool up,
+                         int& count) {
   std::vector<double> xs;
   std::vector<double> ys;
   for (std::size_t i = 0; i < x.size(); ++i)
@@ -122,10 +122,10 @@ double conditional_slope(const std::vector<double>& y, const std::vector<double>
 
 std::string describe_rate(const RateInput& rate, const EvaluationSettings& s, Frequency f) {
   const int P = periods_per_year(f);
-  std::string text = fmt::format("rate '{}' tenor {}: annualized {} {}", rate.name, rate.tenor,
-                                 rate.unit == RateUnit::percent ? "percent" : "decimal",
-                                 rate.quote == RateQuote::discount ? "bank-discount quotes"
-                                                                   : "yields");
+  std::string text =
+      fmt::format("rate '{}' tenor {}: annualized {} {}", rate.name, rate.tenor,
+                  rate.unit == RateUnit::percent ? "percent" : "decimal",
+                  rate.quote == RateQuote::discount ? "bank-discount quotes" : "yields");
   if (rate.unit == RateUnit::percent) text += ", divided by 100";
   if (rate.quote == RateQuote::discount)
     text += s.rate_basis == RateBasis::act360
@@ -156,7 +156,9 @@ Frequency lowest_frequency(const std::vector<Frequency>& frequencies) {
   return lowest;
 }
 
-int short_sample_threshold(Frequency f) { return 3 * periods_per_year(f); }
+int short_sample_threshold(Frequency f) {
+  return 3 * periods_per_year(f);
+}
 
 struct Evaluator::Prepared {
   std::string name;
@@ -180,18 +182,22 @@ Evaluator::Evaluator(const SharedInputs& shared, Frequency frequency,
   convention.bill_days = parse_tenor(shared.rate.tenor).bill_days;
   convention.basis = settings.rate_basis;
   convention.timing = settings.rate_timing;
-  PeriodRates rates = per_period_rates(shared.rate.yields, convention, frequency, bench.series.keys);
+  PeriodRates rates =
+      per_period_rates(shared.rate.yields, convention, frequency, bench.series.keys);
   prep.push_back(describe_rate(shared.rate, settings, frequency));
   if (!rates.unobserved.empty())
-    warn.push_back(fmt::format("rate '{}': no yield known yet for {} of the benchmark's periods "
-                               "(first {}); they are dropped",
-                               shared.rate.name, count_label(frequency, static_cast<std::int64_t>(rates.unobserved.size())),
-                               period_label(frequency, rates.unobserved.front())));
+    warn.push_back(
+        fmt::format("rate '{}': no yield known yet for {} of the benchmark's periods "
+                    "(first {}); they are dropped",
+                    shared.rate.name,
+                    count_label(frequency, static_cast<std::int64_t>(rates.unobserved.size())),
+                    period_label(frequency, rates.unobserved.front())));
   if (!rates.stale.empty())
-    warn.push_back(fmt::format("rate '{}': the last yield is too old for {} (first {}); they "
-                               "are dropped",
-                               shared.rate.name, count_label(frequency, static_cast<std::int64_t>(rates.stale.size())),
-                               period_label(frequency, rates.stale.front())));
+    warn.push_back(fmt::format(
+        "rate '{}': the last yield is too old for {} (first {}); they "
+        "are dropped",
+        shared.rate.name, count_label(frequency, static_cast<std::int64_t>(rates.stale.size())),
+        period_label(frequency, rates.stale.front())));
 
   std::vector<NamedSeries> inputs{{"benchmark", std::move(bench.series)},
                                   {"rate", std::move(rates.series)}};
@@ -265,10 +271,10 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
   for (const auto& gap : a.report.gaps) sample.gaps.push_back(gap.text);
   sample.preparation = shared_preparation_;
   sample.preparation.insert(sample.preparation.end(), p.preparation.begin(), p.preparation.end());
-  sample.preparation.push_back(fmt::format(
-      "aligned by {} on the periods where every input has a value: {} kept, {} dropped",
-      f == Frequency::daily ? "exact date" : fmt::format("calendar {}", period_noun(f)),
-      a.keys.size(), a.report.dropped.size()));
+  sample.preparation.push_back(
+      fmt::format("aligned by {} on the periods where every input has a value: {} kept, {} dropped",
+                  f == Frequency::daily ? "exact date" : fmt::format("calendar {}", period_noun(f)),
+                  a.keys.size(), a.report.dropped.size()));
   sample.warnings = shared_warnings_;
   sample.warnings.insert(sample.warnings.end(), p.warnings.begin(), p.warnings.end());
   if (sample.observations < short_sample_threshold(f))
@@ -298,8 +304,8 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
   const double alpha = fit.coefficients[0].estimate;
   const double beta = fit.coefficients[1].estimate;
   const double root_p = std::sqrt(static_cast<double>(P));
-  d.alpha_annualized = settings_.annualize == Annualize::compound ? std::pow(1.0 + alpha, P) - 1.0
-                                                                   : alpha * P;
+  d.alpha_annualized =
+      settings_.annualize == Annualize::compound ? std::pow(1.0 + alpha, P) - 1.0 : alpha * P;
   d.appraisal_ratio = alpha / fit.residual_std * root_p;
   d.mean_excess_strategy = mean(r.strategy_excess);
   d.mean_excess_benchmark = mean(r.benchmark_excess);
@@ -340,8 +346,8 @@ EvaluationResult Evaluator::evaluate(const ReturnInput& strategy) const {
   return finish(std::move(p), std::move(fit));
 }
 
-std::vector<Evaluator::Outcome> Evaluator::evaluate_many(
-    const std::vector<ReturnInput>& strategies, int threads, bool keep_series) const {
+std::vector<Evaluator::Outcome> Evaluator::evaluate_many(const std::vector<ReturnInput>& strategies,
+                                                         int threads, bool keep_series) const {
   std::vector<Outcome> outcomes(strategies.size());
   // Blocks bound the memory: each prepared strategy holds its aligned copy of every input.
   constexpr std::size_t kBlock = 64;
@@ -381,7 +387,8 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
       std::vector<OlsResult> fits = fit_ols_many(d.X, Y, term_names_, true, settings_.covariance,
                                                  settings_.confidence, threads);
       for (std::size_t j = 0; j < members.size(); ++j)
-        outcomes[members[j]].result = finish(std::move(prepared[members[j] - begin]), std::move(fits[j]));
+        outcomes[members[j]].result =
+            finish(std::move(prepared[members[j] - begin]), std::move(fits[j]));
     } catch (const Error&) {
       // One column can fail where others do not (e.g. an exact fit): fit them one by one.
       for (std::size_t j = 0; j < members.size(); ++j) {
@@ -389,7 +396,8 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
           Eigen::VectorXd y = Y.col(static_cast<Eigen::Index>(j));
           OlsResult fit =
               fit_ols(d.X, y, term_names_, true, settings_.covariance, settings_.confidence);
-          outcomes[members[j]].result = finish(std::move(prepared[members[j] - begin]), std::move(fit));
+          outcomes[members[j]].result =
+              finish(std::move(prepared[members[j] - begin]), std::move(fit));
         } catch (const Error& e) {
           outcomes[members[j]].error = e.what();
           outcomes[members[j]].error_code = static_cast<int>(e.code());
@@ -412,7 +420,9 @@ const std::vector<std::string>& standard_cautions() {
 
 namespace {
 
-std::string percent(double x, int digits = 2) { return fmt::format("{:+.{}f}%", 100.0 * x, digits); }
+std::string percent(double x, int digits = 2) {
+  return fmt::format("{:+.{}f}%", 100.0 * x, digits);
+}
 
 }  // namespace
 
@@ -433,16 +443,16 @@ std::vector<std::string> compose_reading(const EvaluationResult& r,
         "itself (a 1% market excess return goes with about {:.2f}% in the strategy).",
         beta, beta));
   else if (shown == 1)
-    out.push_back(fmt::format(
-        "Beta is {:.2f}: the strategy moves with the market about one for one.", beta));
+    out.push_back(
+        fmt::format("Beta is {:.2f}: the strategy moves with the market about one for one.", beta));
   else if (shown > 0)
     out.push_back(fmt::format(
         "Beta is {:.2f}: the strategy moves with the market, less strongly than the market "
         "itself (a 1% market excess return goes with about {:.2f}% in the strategy).",
         beta, beta));
   else if (shown == 0)
-    out.push_back(fmt::format(
-        "Beta is {:.2f}: the strategy hardly moves with the market at all.", std::abs(beta)));
+    out.push_back(fmt::format("Beta is {:.2f}: the strategy hardly moves with the market at all.",
+                              std::abs(beta)));
   else
     out.push_back(fmt::format(
         "Beta is {:.2f}: the strategy tends to move against the market (a 1% market excess "
@@ -464,8 +474,8 @@ std::vector<std::string> compose_reading(const EvaluationResult& r,
     out.push_back(fmt::format(
         "With {}, alpha's t statistic is {:.2f} (p = {:.4f}): significant at the {:g}% level; "
         "the {:g}% interval runs from {} to {} per {}.",
-        errors, a.t_stat, a.p_value, 100 * level, 100 * settings.confidence,
-        percent(a.ci_low, 3), percent(a.ci_high, 3), period_noun(f)));
+        errors, a.t_stat, a.p_value, 100 * level, 100 * settings.confidence, percent(a.ci_low, 3),
+        percent(a.ci_high, 3), period_noun(f)));
   else
     out.push_back(fmt::format(
         "With {}, alpha's t statistic is {:.2f} (p = {:.4f}): not significant at the {:g}% "
@@ -480,10 +490,11 @@ std::vector<std::string> compose_reading(const EvaluationResult& r,
     out.push_back(fmt::format("Factor loadings: {}.", fmt::join(loadings, ", ")));
   }
 
-  out.push_back(fmt::format("The {} explain{} {:.1f}% of the variance of the strategy's excess "
-                            "return (R-squared).",
-                            fit.coefficients.size() > 2 ? "market and the factors" : "market",
-                            fit.coefficients.size() > 2 ? "" : "s", 100 * fit.r_squared));
+  out.push_back(
+      fmt::format("The {} explain{} {:.1f}% of the variance of the strategy's excess "
+                  "return (R-squared).",
+                  fit.coefficients.size() > 2 ? "market and the factors" : "market",
+                  fit.coefficients.size() > 2 ? "" : "s", 100 * fit.r_squared));
 
   out.push_back(fmt::format("The sample has {} {} periods, {} to {}.", r.sample.observations,
                             frequency_name(f), r.sample.first, r.sample.last));

@@ -89,9 +89,9 @@ struct SampleDescription {
   int observations = 0;
   std::vector<DroppedPeriod> dropped;
   std::map<std::string, std::size_t> dropped_by_reason;
-  std::vector<std::string> gaps;           // gaps inside the kept sample
-  std::vector<std::string> preparation;    // each preparation step, in words
-  std::vector<std::string> warnings;       // short sample, stale rates, partial periods ...
+  std::vector<std::string> gaps;         // gaps inside the kept sample
+  std::vector<std::string> preparation;  // each preparation step, in words
+  std::vector<std::string> warnings;     // short sample, stale rates, partial periods ...
 };
 
 struct EvaluationResult {
@@ -136,8 +136,8 @@ class Evaluator {
   };
   // keep_series = false frees each result's per-period series (keys, excess returns,
   // residuals) to bound memory when evaluating thousands of strategies.
-  std::vector<Outcome> evaluate_many(const std::vector<ReturnInput>& strategies,
-                                     int threads = 0, bool keep_series = true) const;
+  std::vector<Outcome> evaluate_many(const std::vector<ReturnInput>& strategies, int threads = 0,
+                                     bool keep_series = true) const;
 
   Frequency frequency() const { return frequency_; }
 

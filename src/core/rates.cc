@@ -1,10 +1,10 @@
 #include "core/rates.h"
 
+#include <fmt/format.h>
+
 #include <cctype>
 #include <cmath>
 #include <limits>
-
-#include <fmt/format.h>
 
 #include "core/error.h"
 
@@ -21,9 +21,10 @@ double annual_yield(double value, Day date, const RateConvention& c) {
   if (!std::isfinite(value))
     bad_input(fmt::format("yield on {} is infinite; fix or blank the value", format_date(date)));
   if (c.unit == RateUnit::decimal && std::fabs(value) > 1.0)
-    bad_input(fmt::format("yield on {} is {}, above 100% as a decimal: the series is almost "
-                          "surely in percent; declare the unit percent",
-                          format_date(date), value));
+    bad_input(
+        fmt::format("yield on {} is {}, above 100% as a decimal: the series is almost "
+                    "surely in percent; declare the unit percent",
+                    format_date(date), value));
   if (c.unit == RateUnit::percent && std::fabs(value) > 100.0)
     bad_input(fmt::format("yield on {} is {}%, above 100%; check the data and the unit",
                           format_date(date), value));
@@ -80,9 +81,10 @@ std::optional<RateUnit> parse_rate_unit(std::string_view name) {
 
 Tenor parse_tenor(std::string_view text) {
   const auto malformed = [&] {
-    bad_input(fmt::format("tenor \"{}\" is not of the form <n>D, <n>W, <n>M or <n>Y with n >= 1; "
-                          "write e.g. 4W, 13W, 1M, 3M or 1Y",
-                          text));
+    bad_input(
+        fmt::format("tenor \"{}\" is not of the form <n>D, <n>W, <n>M or <n>Y with n >= 1; "
+                    "write e.g. 4W, 13W, 1M, 3M or 1Y",
+                    text));
   };
   if (text.size() < 2 || text.size() > 5) malformed();
   int n = 0;
@@ -95,13 +97,22 @@ Tenor parse_tenor(std::string_view text) {
   const char unit = static_cast<char>(std::toupper(static_cast<unsigned char>(text.back())));
   t.label = std::string(text.substr(0, text.size() - 1)) + unit;
   switch (unit) {
-    case 'D': t.length_days = n; t.bill_days = n; break;
-    case 'W': t.length_days = 7.0 * n; t.bill_days = 7 * n; break;
+    case 'D':
+      t.length_days = n;
+      t.bill_days = n;
+      break;
+    case 'W':
+      t.length_days = 7.0 * n;
+      t.bill_days = 7 * n;
+      break;
     case 'M':
       t.length_days = 365.25 / 12.0 * n;
       t.bill_days = static_cast<int>(std::lround(364.0 * n / 12.0));
       break;
-    case 'Y': t.length_days = 365.25 * n; t.bill_days = 364 * n; break;
+    case 'Y':
+      t.length_days = 365.25 * n;
+      t.bill_days = 364 * n;
+      break;
     default: malformed();
   }
   return t;
@@ -119,9 +130,10 @@ double nominal_period_days(Frequency f) {
 
 Tenor choose_tenor(const std::vector<std::string>& available, Frequency f) {
   if (available.empty())
-    bad_input(fmt::format("no tenor to choose from for {} periods; give the rate series' "
-                          "tenors (e.g. 4W, 13W)",
-                          frequency_name(f)));
+    bad_input(
+        fmt::format("no tenor to choose from for {} periods; give the rate series' "
+                    "tenors (e.g. 4W, 13W)",
+                    frequency_name(f)));
   const double target = nominal_period_days(f);
   std::optional<Tenor> best;
   double best_distance = 0;
@@ -139,18 +151,22 @@ Tenor choose_tenor(const std::vector<std::string>& available, Frequency f) {
   return *best;
 }
 
-double bill_price(double discount, int days) { return 100.0 * (1.0 - discount * days / 360.0); }
+double bill_price(double discount, int days) {
+  return 100.0 * (1.0 - discount * days / 360.0);
+}
 
 double bond_equivalent_yield(double discount, int days) {
   if (days < 1)
-    bad_input(fmt::format("bank-discount yields need the days to maturity of the bill (got {}); "
-                          "give the tenor of the rate series",
-                          days));
+    bad_input(
+        fmt::format("bank-discount yields need the days to maturity of the bill (got {}); "
+                    "give the tenor of the rate series",
+                    days));
   const double price = bill_price(discount, days);
   if (price <= 0.0)
-    bad_input(fmt::format("bank discount {} over {} days gives a price of {} per 100, not a "
-                          "valid bill; check the unit (percent vs decimal) and the quote",
-                          discount, days, price));
+    bad_input(
+        fmt::format("bank discount {} over {} days gives a price of {} per 100, not a "
+                    "valid bill; check the unit (percent vs decimal) and the quote",
+                    discount, days, price));
   const double r = days;
   if (days <= 182) return 365.0 * discount / (360.0 - discount * r);
   // 31 CFR 356 Appendix B (from memory): a i^2 + b i + c = 0 with a = r/(2y) - 0.25, b = r/y,
@@ -166,13 +182,15 @@ double bond_equivalent_yield(double discount, int days) {
 
 double money_market_yield(double discount, int days) {
   if (days < 1)
-    bad_input(fmt::format("bank-discount yields need the days to maturity of the bill (got {}); "
-                          "give the tenor of the rate series",
-                          days));
+    bad_input(
+        fmt::format("bank-discount yields need the days to maturity of the bill (got {}); "
+                    "give the tenor of the rate series",
+                    days));
   if (bill_price(discount, days) <= 0.0)
-    bad_input(fmt::format("bank discount {} over {} days gives a price of zero or below; check "
-                          "the unit (percent vs decimal) and the quote",
-                          discount, days));
+    bad_input(
+        fmt::format("bank discount {} over {} days gives a price of zero or below; check "
+                    "the unit (percent vs decimal) and the quote",
+                    discount, days));
   return 360.0 * discount / (360.0 - discount * days);
 }
 
@@ -205,16 +223,17 @@ PeriodRates per_period_rates(const DatedSeries& yields, const RateConvention& c,
     bad_input(fmt::format("yield series has {} dates but {} values; give one value per date",
                           yields.dates.size(), yields.values.size()));
   if (c.quote == RateQuote::discount && c.bill_days < 1)
-    bad_input("bank-discount yields need the days to maturity of the bill; give the tenor of "
-              "the rate series");
+    bad_input(
+        "bank-discount yields need the days to maturity of the bill; give the tenor of "
+        "the rate series");
   std::vector<double> annual(yields.values.size(), std::numeric_limits<double>::quiet_NaN());
   for (std::size_t i = 0; i < yields.dates.size(); ++i) {
     if (i > 0 && yields.dates[i] <= yields.dates[i - 1])
-      bad_input(fmt::format("yield series: date {} {} {}; sort the dates and remove duplicates",
-                            format_date(yields.dates[i]),
-                            yields.dates[i] == yields.dates[i - 1] ? "appears twice after"
-                                                                   : "comes after",
-                            format_date(yields.dates[i - 1])));
+      bad_input(fmt::format(
+          "yield series: date {} {} {}; sort the dates and remove duplicates",
+          format_date(yields.dates[i]),
+          yields.dates[i] == yields.dates[i - 1] ? "appears twice after" : "comes after",
+          format_date(yields.dates[i - 1])));
     if (!std::isnan(yields.values[i]))
       annual[i] = annual_yield(yields.values[i], yields.dates[i], c);
   }
@@ -226,8 +245,8 @@ PeriodRates per_period_rates(const DatedSeries& yields, const RateConvention& c,
   out.series.values.assign(period_keys.size(), std::numeric_limits<double>::quiet_NaN());
   out.used.assign(period_keys.size(), std::nullopt);
 
-  std::size_t next = 0;                            // first observation not yet passed
-  std::optional<std::size_t> last;                 // last finite observation passed
+  std::size_t next = 0;             // first observation not yet passed
+  std::optional<std::size_t> last;  // last finite observation passed
   for (std::size_t k = 0; k < period_keys.size(); ++k) {
     const std::int64_t key = period_keys[k];
     if (k > 0 && key <= period_keys[k - 1])

@@ -41,7 +41,10 @@
 namespace alphatrail::core {
 
 enum class RateBasis { compound, simple, act360 };  // (1+y)^(1/P)-1, y/P, y*days/360
-enum class RateTiming { start, end };  // yield known at the period's start | at its end (look-ahead)
+enum class RateTiming {
+  start,
+  end
+};  // yield known at the period's start | at its end (look-ahead)
 // RateQuote (yield | bank discount) and its name helpers come from core/series_file.h.
 enum class RateUnit { percent, decimal };
 
@@ -59,9 +62,9 @@ std::optional<RateTiming> parse_rate_timing(std::string_view name);
 std::optional<RateUnit> parse_rate_unit(std::string_view name);
 
 struct Tenor {
-  std::string label;        // as given, upper-cased: "13W"
-  double length_days = 0;   // for choosing: 13W -> 91, 1M -> 30.4375
-  int bill_days = 0;        // days to maturity r: 13W -> 91, 1M -> 30
+  std::string label;       // as given, upper-cased: "13W"
+  double length_days = 0;  // for choosing: 13W -> 91, 1M -> 30.4375
+  int bill_days = 0;       // days to maturity r: 13W -> 91, 1M -> 30
 };
 
 // Parses a tenor "<n>D|W|M|Y" (n >= 1, case-insensitive); throws bad_input when malformed.

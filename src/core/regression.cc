@@ -1,8 +1,7 @@
 #include "core/regression.h"
 
-#include <boost/math/distributions/fisher_f.hpp>
-
 #include <algorithm>
+#include <boost/math/distributions/fisher_f.hpp>
 #include <cmath>
 #include <cstdio>
 #include <exception>
@@ -31,7 +30,9 @@ constexpr int max_refinements = 6;
 constexpr double settled_correction = 1e-12;
 constexpr double trusted_correction = 1e-9;
 
-std::string quoted(const std::string& name) { return "'" + name + "'"; }
+std::string quoted(const std::string& name) {
+  return "'" + name + "'";
+}
 
 // Joins names as "'a'", "'a' and 'b'", "'a', 'b' and 'c'".
 std::string join_names(const std::vector<std::string>& names) {
@@ -61,13 +62,13 @@ struct Design {
   bool has_intercept = false;
   int n = 0;
   int k = 0;
-  Eigen::VectorXd scale;                        // column norms of X
+  Eigen::VectorXd scale;                           // column norms of X
   Eigen::ColPivHouseholderQR<Eigen::MatrixXd> qr;  // of X with unit-norm columns
-  Eigen::MatrixXd upper;                        // R, k x k
-  Eigen::MatrixXd q;                            // thin Q, T x k
-  Eigen::MatrixXd a;                            // D^-1 P R^-1: X'X^-1 = A A'
-  Eigen::MatrixXd xtx_inv;                      // (X'X)^-1 = A A'
-  Eigen::VectorXd leverage;                     // h_t = ||Q_t||^2
+  Eigen::MatrixXd upper;                           // R, k x k
+  Eigen::MatrixXd q;                               // thin Q, T x k
+  Eigen::MatrixXd a;                               // D^-1 P R^-1: X'X^-1 = A A'
+  Eigen::MatrixXd xtx_inv;                         // (X'X)^-1 = A A'
+  Eigen::VectorXd leverage;                        // h_t = ||Q_t||^2
   double condition_number = 0;
 };
 
@@ -75,8 +76,9 @@ void check_finite_design(const Eigen::MatrixXd& X, const std::vector<std::string
   for (Eigen::Index j = 0; j < X.cols(); ++j) {
     for (Eigen::Index t = 0; t < X.rows(); ++t) {
       if (!std::isfinite(X(t, j))) {
-        estimation_error("regressor " + quoted(names[j]) + " has a non-finite value at observation " +
-                         std::to_string(t + 1) + "; remove or fill that observation");
+        estimation_error("regressor " + quoted(names[j]) +
+                         " has a non-finite value at observation " + std::to_string(t + 1) +
+                         "; remove or fill that observation");
       }
     }
   }
@@ -97,15 +99,15 @@ void check_special_columns(const Eigen::MatrixXd& X, const std::vector<std::stri
   Eigen::Index intercept = -1;
   for (Eigen::Index j = 0; j < X.cols(); ++j) {
     if (X.col(j).cwiseAbs().maxCoeff() == 0) {
-      estimation_error("regressor " + quoted(names[j]) +
-                       " is zero in every observation; drop it");
+      estimation_error("regressor " + quoted(names[j]) + " is zero in every observation; drop it");
     }
     if (!is_constant(X, j)) continue;
     if (intercept < 0) {
       intercept = j;
     } else if (has_intercept) {
-      estimation_error("regressor " + quoted(names[j]) + " is constant, which duplicates the intercept " +
-                       quoted(names[intercept]) + "; drop it");
+      estimation_error("regressor " + quoted(names[j]) +
+                       " is constant, which duplicates the intercept " + quoted(names[intercept]) +
+                       "; drop it");
     }
   }
   if (has_intercept && intercept < 0) {
@@ -126,8 +128,8 @@ void check_special_columns(const Eigen::MatrixXd& X, const std::vector<std::stri
     involved[static_cast<std::size_t>(perm(j))] = true;
     if (rank == 0) continue;
     // Unit-norm columns: column j ~ (kept columns) z with R11 z = R12(:, j).
-    Eigen::VectorXd z = r.topLeftCorner(rank, rank).triangularView<Eigen::Upper>().solve(
-        r.col(j).head(rank));
+    Eigen::VectorXd z =
+        r.topLeftCorner(rank, rank).triangularView<Eigen::Upper>().solve(r.col(j).head(rank));
     const double biggest = std::max(1.0, z.cwiseAbs().maxCoeff());
     for (Eigen::Index i = 0; i < rank; ++i) {
       if (std::fabs(z(i)) > 1e-8 * biggest) involved[static_cast<std::size_t>(perm(i))] = true;
@@ -135,15 +137,17 @@ void check_special_columns(const Eigen::MatrixXd& X, const std::vector<std::stri
   }
   std::vector<std::string> names;
   for (Eigen::Index j = 0; j < k; ++j) {
-    if (involved[static_cast<std::size_t>(j)]) names.push_back(d.names[static_cast<std::size_t>(j)]);
+    if (involved[static_cast<std::size_t>(j)])
+      names.push_back(d.names[static_cast<std::size_t>(j)]);
   }
   const Eigen::Index drop = k - rank;
-  estimation_error("regressors " + join_names(names) + " are collinear (rank " + std::to_string(rank) +
-                   " of " + std::to_string(k) + "); drop " +
+  estimation_error("regressors " + join_names(names) + " are collinear (rank " +
+                   std::to_string(rank) + " of " + std::to_string(k) + "); drop " +
                    (drop == 1 ? std::string("one") : std::to_string(drop)) + " of them");
 }
 
-Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names, bool has_intercept) {
+Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names,
+                 bool has_intercept) {
   Design d;
   d.X = &X;
   d.names = names;
@@ -152,12 +156,14 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
   d.k = static_cast<int>(X.cols());
   if (static_cast<Eigen::Index>(names.size()) != X.cols()) {
     throw Error(ExitCode::failure, "fit_ols: " + std::to_string(names.size()) + " names for " +
-                                       std::to_string(X.cols()) + " columns; pass one name per column");
+                                       std::to_string(X.cols()) +
+                                       " columns; pass one name per column");
   }
   if (d.k < 1) throw Error(ExitCode::failure, "fit_ols: the design has no column; add a regressor");
   if (d.n < d.k + 2) {
     estimation_error("sample too short: " + std::to_string(d.n) + " observations for " +
-                     std::to_string(d.k) + " coefficients; need at least " + std::to_string(d.k + 2));
+                     std::to_string(d.k) + " coefficients; need at least " +
+                     std::to_string(d.k + 2));
   }
   check_finite_design(X, names);
   check_special_columns(X, names, has_intercept);
@@ -174,14 +180,16 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
   const auto& sv = svd.singularValues();
   d.condition_number = sv(0) / sv(sv.size() - 1);
   if (!(d.condition_number <= condition_limit)) {
-    estimation_error("design is too ill-conditioned (condition number " + format_general(d.condition_number) +
-                     " after scaling the columns) for double precision; rescale or drop regressors");
+    estimation_error(
+        "design is too ill-conditioned (condition number " + format_general(d.condition_number) +
+        " after scaling the columns) for double precision; rescale or drop regressors");
   }
 
   d.q = d.qr.householderQ() * Eigen::MatrixXd::Identity(d.n, d.k);  // thin Q
   d.leverage = d.q.rowwise().squaredNorm();
-  Eigen::MatrixXd r_inv = d.upper.triangularView<Eigen::Upper>().solve(Eigen::MatrixXd::Identity(d.k, d.k));
-  d.a = d.qr.colsPermutation() * r_inv;           // rows permuted: P R^-1
+  Eigen::MatrixXd r_inv =
+      d.upper.triangularView<Eigen::Upper>().solve(Eigen::MatrixXd::Identity(d.k, d.k));
+  d.a = d.qr.colsPermutation() * r_inv;             // rows permuted: P R^-1
   d.a = d.scale.cwiseInverse().asDiagonal() * d.a;  // D^-1 P R^-1
   d.xtx_inv = d.a * d.a.transpose();
   return d;
@@ -194,12 +202,13 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
 // Wampler5) and shows whether the answer can be trusted: when the corrections do not settle,
 // the design is refused as too ill-conditioned. A well-conditioned design takes one
 // refinement pass.
-void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& beta, Eigen::VectorXd& r) {
+void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& beta,
+                   Eigen::VectorXd& r) {
   const Eigen::MatrixXd& X = *d.X;
   const auto& perm = d.qr.colsPermutation();
   beta = Eigen::VectorXd::Zero(d.k);
   r = Eigen::VectorXd::Zero(d.n);
-  Eigen::VectorXd f = y;                       // pass 0: f = y - r - X beta = y
+  Eigen::VectorXd f = y;                            // pass 0: f = y - r - X beta = y
   Eigen::VectorXd gs = Eigen::VectorXd::Zero(d.k);  // pass 0: g = -X' r = 0
   std::vector<long double> g(static_cast<std::size_t>(d.k));
   double correction = std::numeric_limits<double>::infinity();
@@ -215,11 +224,13 @@ void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& b
         }
         f(t) = static_cast<double>(acc);
       }
-      for (int j = 0; j < d.k; ++j) gs(j) = static_cast<double>(g[static_cast<std::size_t>(j)]) / d.scale(j);
+      for (int j = 0; j < d.k; ++j)
+        gs(j) = static_cast<double>(g[static_cast<std::size_t>(j)]) / d.scale(j);
     }
     // With X = Q R P' D (thin Q): h = R^-T P' D^-1 g, c = Q'f, w = R^-1 (c - h),
     // dr = Q h + (I - Q Q') f = f - Q (c - h).
-    const Eigen::VectorXd h = d.upper.triangularView<Eigen::Upper>().transpose().solve(perm.transpose() * gs);
+    const Eigen::VectorXd h =
+        d.upper.triangularView<Eigen::Upper>().transpose().solve(perm.transpose() * gs);
     const Eigen::VectorXd c = d.q.transpose() * f - h;
     const Eigen::VectorXd w = d.upper.triangularView<Eigen::Upper>().solve(c);
     beta += (perm * w).cwiseQuotient(d.scale);
@@ -232,9 +243,11 @@ void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& b
     if (correction <= settled_correction || correction > 0.5 * previous) break;
   }
   if (!(correction <= trusted_correction)) {
-    estimation_error("design is too ill-conditioned (condition number " + format_general(d.condition_number) +
-                     " after scaling the columns) for double precision: the solution does not settle "
-                     "(last correction " + format_general(correction) + " of its size); rescale or drop regressors");
+    estimation_error(
+        "design is too ill-conditioned (condition number " + format_general(d.condition_number) +
+        " after scaling the columns) for double precision: the solution does not settle "
+        "(last correction " +
+        format_general(correction) + " of its size); rescale or drop regressors");
   }
 }
 
@@ -273,8 +286,8 @@ int resolve_lags(const CovarianceOptions& opts, int n) {
   if (opts.lags == -1) return auto_newey_west_lags(n);
   if (opts.lags < 0 || opts.lags >= n) {
     estimation_error("Newey-West lag " + std::to_string(opts.lags) + " is out of range for " +
-                     std::to_string(n) + " observations; use a lag from 0 to " + std::to_string(n - 1) +
-                     " or -1 for the automatic rule");
+                     std::to_string(n) + " observations; use a lag from 0 to " +
+                     std::to_string(n - 1) + " or -1 for the automatic rule");
   }
   return opts.lags;
 }
@@ -285,7 +298,8 @@ OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const Covariance
   const Eigen::MatrixXd& X = *d.X;
   if (y.size() != d.n) {
     throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
-                                       std::to_string(d.n) + " design rows; pass one response per row");
+                                       std::to_string(d.n) +
+                                       " design rows; pass one response per row");
   }
   for (int t = 0; t < d.n; ++t) {
     if (!std::isfinite(y(t))) {
@@ -337,9 +351,7 @@ OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const Covariance
 
   const double small_sample_factor = static_cast<double>(d.n) / static_cast<double>(d.n - d.k);
   switch (opts.kind) {
-    case ErrorKind::classic:
-      res.covariance = s2 * d.xtx_inv;
-      break;
+    case ErrorKind::classic: res.covariance = s2 * d.xtx_inv; break;
     case ErrorKind::hc0:
     case ErrorKind::hc1:
     case ErrorKind::hc2:
@@ -349,7 +361,8 @@ OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const Covariance
       const Eigen::MatrixXd meat = robust_meat(d, res.residuals, weights, res.lags);
       Eigen::MatrixXd v = d.a * meat * d.a.transpose();
       res.covariance = 0.5 * (v + v.transpose());
-      if (opts.kind == ErrorKind::hc1 || (opts.kind == ErrorKind::newey_west && opts.small_sample)) {
+      if (opts.kind == ErrorKind::hc1 ||
+          (opts.kind == ErrorKind::newey_west && opts.small_sample)) {
         res.covariance *= small_sample_factor;
         res.small_sample_applied = true;
       }
@@ -394,8 +407,8 @@ const char* error_kind_name(ErrorKind kind) {
 }
 
 std::optional<ErrorKind> parse_error_kind(std::string_view name) {
-  for (ErrorKind kind : {ErrorKind::classic, ErrorKind::hc0, ErrorKind::hc1, ErrorKind::hc2, ErrorKind::hc3,
-                         ErrorKind::newey_west}) {
+  for (ErrorKind kind : {ErrorKind::classic, ErrorKind::hc0, ErrorKind::hc1, ErrorKind::hc2,
+                         ErrorKind::hc3, ErrorKind::newey_west}) {
     if (name == error_kind_name(kind)) return kind;
   }
   return std::nullopt;
@@ -406,12 +419,14 @@ int auto_newey_west_lags(int T) {
   return static_cast<int>(std::floor(4.0 * std::pow(T / 100.0, 2.0 / 9.0)));
 }
 
-OlsResult fit_ols(const Eigen::MatrixXd& X, const Eigen::VectorXd& y, const std::vector<std::string>& names,
-                  bool has_intercept, const CovarianceOptions& opts, double confidence) {
+OlsResult fit_ols(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
+                  const std::vector<std::string>& names, bool has_intercept,
+                  const CovarianceOptions& opts, double confidence) {
   check_confidence(confidence);
   if (y.size() != X.rows()) {
     throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
-                                       std::to_string(X.rows()) + " design rows; pass one response per row");
+                                       std::to_string(X.rows()) +
+                                       " design rows; pass one response per row");
   }
   const Design d = factorize(X, names, has_intercept);
   return fit_column(d, y, opts, confidence, "the response");
@@ -422,8 +437,9 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
                                     const CovarianceOptions& opts, double confidence, int threads) {
   check_confidence(confidence);
   if (Y.rows() != X.rows()) {
-    throw Error(ExitCode::failure, "fit_ols_many: " + std::to_string(Y.rows()) + " response rows for " +
-                                       std::to_string(X.rows()) + " design rows; pass one row per period");
+    throw Error(ExitCode::failure, "fit_ols_many: " + std::to_string(Y.rows()) +
+                                       " response rows for " + std::to_string(X.rows()) +
+                                       " design rows; pass one row per period");
   }
   const Design d = factorize(X, names, has_intercept);
   const Eigen::Index m = Y.cols();
@@ -442,7 +458,8 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
     }
   };
 
-  int workers = threads > 0 ? threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  int workers =
+      threads > 0 ? threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   workers = static_cast<int>(std::min<Eigen::Index>(workers, std::max<Eigen::Index>(1, m / 16)));
   if (workers <= 1) {
     run_range(0, m);

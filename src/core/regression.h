@@ -18,7 +18,6 @@
 #pragma once
 
 #include <Eigen/Dense>
-
 #include <optional>
 #include <string>
 #include <string_view>
@@ -65,8 +64,8 @@ struct OlsResult {
   Eigen::VectorXd residuals;              // T residuals y - X beta
   Eigen::VectorXd fitted;                 // T fitted values X beta
   Eigen::MatrixXd covariance;             // k x k covariance of beta for the chosen kind
-  double r_squared = 0;      // centered with an intercept, uncentered (y'y) without;
-                             // NaN when the total sum of squares is 0
+  double r_squared = 0;                   // centered with an intercept, uncentered (y'y) without;
+                                          // NaN when the total sum of squares is 0
   double adj_r_squared = 0;  // 1 - (1 - R^2) (T - c) / (T - k), c = 1 with intercept else 0
   double residual_std = 0;   // s = sqrt(rss / (T - k))
   double rss = 0;            // residual sum of squares e'e

@@ -1,9 +1,9 @@
 #include "core/resample.h"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <cmath>
-
-#include <fmt/format.h>
 
 #include "core/error.h"
 
@@ -38,12 +38,13 @@ void validate(const DatedSeries& s, Frequency source) {
     const double r = s.values[i];
     if (std::isnan(r)) continue;
     if (!std::isfinite(r))
-      bad_input(fmt::format("return on {} is infinite; fix or blank the value",
-                            format_date(s.dates[i])));
+      bad_input(
+          fmt::format("return on {} is infinite; fix or blank the value", format_date(s.dates[i])));
     if (r <= -1.0)
-      bad_input(fmt::format("return on {} is {} (-100% or less), which is not a valid simple "
-                            "return; check the unit (percent vs decimal) and the data",
-                            format_date(s.dates[i]), r));
+      bad_input(
+          fmt::format("return on {} is {} (-100% or less), which is not a valid simple "
+                      "return; check the unit (percent vs decimal) and the data",
+                      format_date(s.dates[i]), r));
   }
 }
 
@@ -84,7 +85,9 @@ bool hole_between(Frequency source, Day prev, Day cur) {
 
 }  // namespace
 
-bool is_finer(Frequency a, Frequency b) { return fineness(a) < fineness(b); }
+bool is_finer(Frequency a, Frequency b) {
+  return fineness(a) < fineness(b);
+}
 
 int weekdays_between(Day first, Day last) {
   if (last < first) return 0;
@@ -104,10 +107,10 @@ Day period_start(Frequency f, std::int64_t key) {
 Resampled compound_returns(const DatedSeries& returns, Frequency target, Frequency source,
                            const ResampleOptions& options) {
   if (is_finer(target, source))
-    bad_input(fmt::format("cannot turn {} returns into {} returns: a higher frequency cannot be "
-                          "made from a lower one; evaluate at {} or a lower frequency",
-                          frequency_name(source), frequency_name(target),
-                          frequency_name(source)));
+    bad_input(
+        fmt::format("cannot turn {} returns into {} returns: a higher frequency cannot be "
+                    "made from a lower one; evaluate at {} or a lower frequency",
+                    frequency_name(source), frequency_name(target), frequency_name(source)));
   validate(returns, source);
 
   Resampled out;
@@ -131,14 +134,17 @@ Resampled compound_returns(const DatedSeries& returns, Frequency target, Frequen
       compounded = 0.0;
       missing = false;
     } else if (target == source) {
-      bad_input(fmt::format("{} series has two observations in period {} ({} and {}); keep one "
-                            "value per period or declare the series at a higher frequency",
-                            frequency_name(source), period_label(target, key),
-                            format_date(dates[i - 1]), format_date(dates[i])));
+      bad_input(
+          fmt::format("{} series has two observations in period {} ({} and {}); keep one "
+                      "value per period or declare the series at a higher frequency",
+                      frequency_name(source), period_label(target, key), format_date(dates[i - 1]),
+                      format_date(dates[i])));
     }
     const double r = returns.values[i];
-    if (std::isnan(r)) missing = true;
-    else compounded += r + compounded * r;
+    if (std::isnan(r))
+      missing = true;
+    else
+      compounded += r + compounded * r;
   }
   s.values.push_back(missing ? NAN : compounded);
 
@@ -190,12 +196,13 @@ std::vector<std::string> describe(const ResampleReport& report, Frequency target
                                 period_label(target, *report.partial_last),
                                 format_date(report.last_date)));
   for (std::int64_t k : report.missing)
-    lines.push_back(fmt::format("{}: missing (the period contains a missing value)",
-                                period_label(target, k)));
+    lines.push_back(
+        fmt::format("{}: missing (the period contains a missing value)", period_label(target, k)));
   for (std::int64_t k : report.gaps)
-    lines.push_back(fmt::format("{}: hole in the source dates; compounded from the "
-                                "observations present",
-                                period_label(target, k)));
+    lines.push_back(
+        fmt::format("{}: hole in the source dates; compounded from the "
+                    "observations present",
+                    period_label(target, k)));
   return lines;
 }
 

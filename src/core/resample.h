@@ -58,12 +58,12 @@ struct ResampleOptions {
 
 // What compounding found: every entry is a period key of the target frequency.
 struct ResampleReport {
-  std::vector<std::int64_t> missing;  // kept with NaN: a source value in the period is NaN
+  std::vector<std::int64_t> missing;          // kept with NaN: a source value in the period is NaN
   std::optional<std::int64_t> partial_first;  // the first period, found incomplete
   std::optional<std::int64_t> partial_last;   // the last period, found incomplete
-  bool partial_dropped = true;        // false when ResampleOptions::keep_partial was set
-  std::vector<std::int64_t> gaps;     // periods around a hole in the source dates (kept)
-  Day first_date = 0;                 // first and last source dates (0 when empty)
+  bool partial_dropped = true;                // false when ResampleOptions::keep_partial was set
+  std::vector<std::int64_t> gaps;             // periods around a hole in the source dates (kept)
+  Day first_date = 0;                         // first and last source dates (0 when empty)
   Day last_date = 0;
 };
 
@@ -91,7 +91,8 @@ bool is_finer(Frequency a, Frequency b);
 int weekdays_between(Day first, Day last);
 
 // Returns the first calendar day of a period.
-// Example: period_start(Frequency::monthly, period_key(Frequency::monthly, <2021-03-15>)) is 2021-03-01.
+// Example: period_start(Frequency::monthly, period_key(Frequency::monthly, <2021-03-15>)) is
+// 2021-03-01.
 Day period_start(Frequency f, std::int64_t key);
 
 }  // namespace alphatrail::core

@@ -13,7 +13,9 @@ double magnitude(const ValueChange& c) {
   return std::abs(c.after - c.before);
 }
 
-bool same(double a, double b) { return (std::isnan(a) && std::isnan(b)) || a == b; }
+bool same(double a, double b) {
+  return (std::isnan(a) && std::isnan(b)) || a == b;
+}
 
 }  // namespace
 
@@ -34,9 +36,9 @@ ColumnDiff diff_column(const SeriesColumn& older, const SeriesColumn& newer) {
       ++j;
     }
   }
-  std::stable_sort(d.changed.begin(), d.changed.end(), [](const ValueChange& a, const ValueChange& b) {
-    return magnitude(a) > magnitude(b);
-  });
+  std::stable_sort(
+      d.changed.begin(), d.changed.end(),
+      [](const ValueChange& a, const ValueChange& b) { return magnitude(a) > magnitude(b); });
   return d;
 }
 

@@ -13,7 +13,9 @@ Sha256::Sha256() : context_(EVP_MD_CTX_new()) {
     throw std::runtime_error("cannot initialise SHA-256");
 }
 
-Sha256::~Sha256() { EVP_MD_CTX_free(static_cast<EVP_MD_CTX*>(context_)); }
+Sha256::~Sha256() {
+  EVP_MD_CTX_free(static_cast<EVP_MD_CTX*>(context_));
+}
 
 void Sha256::update(std::string_view bytes) {
   EVP_DigestUpdate(static_cast<EVP_MD_CTX*>(context_), bytes.data(), bytes.size());

@@ -2,7 +2,6 @@
 
 #include <boost/math/distributions/normal.hpp>
 #include <boost/math/distributions/students_t.hpp>
-
 #include <cmath>
 #include <limits>
 #include <string>
@@ -47,7 +46,8 @@ double student_t_two_sided_p(double t, double df) {
   if (std::isinf(df)) {
     tail = boost::math::cdf(boost::math::complement(boost::math::normal_distribution<double>(), a));
   } else {
-    tail = boost::math::cdf(boost::math::complement(boost::math::students_t_distribution<double>(df), a));
+    tail = boost::math::cdf(
+        boost::math::complement(boost::math::students_t_distribution<double>(df), a));
   }
   return std::fmin(1.0, 2 * tail);
 }

@@ -16,7 +16,9 @@ namespace alphatrail::ledger {
 
 namespace {
 
-Error ledger_error(const std::string& message) { return Error(ExitCode::ledger, message); }
+Error ledger_error(const std::string& message) {
+  return Error(ExitCode::ledger, message);
+}
 
 bool looks_like_sqlite(const std::filesystem::path& path) {
   std::ifstream in(path, std::ios::binary);
@@ -77,7 +79,9 @@ int busy_timeout_ms() {
   return 10000;
 }
 
-int current_schema_version() { return static_cast<int>(embedded_migrations().size()); }
+int current_schema_version() {
+  return static_cast<int>(embedded_migrations().size());
+}
 
 int migrate(SQLite::Database& db) {
   db.exec("BEGIN IMMEDIATE");
@@ -104,9 +108,9 @@ Ledger::Ledger(std::filesystem::path path, std::unique_ptr<SQLite::Database> db)
 Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostream& notices) {
   std::error_code ec;
   // SQLite takes a zero-byte file for an empty database: it becomes a new ledger.
-  const bool exists = std::filesystem::exists(path, ec) &&
-                      !(std::filesystem::is_regular_file(path, ec) &&
-                        std::filesystem::file_size(path, ec) == 0);
+  const bool exists =
+      std::filesystem::exists(path, ec) &&
+      !(std::filesystem::is_regular_file(path, ec) && std::filesystem::file_size(path, ec) == 0);
   if (!exists && mode != OpenMode::create)
     throw ledger_error(fmt::format(
         "no ledger at {}; create one with `alphatrail init --ledger {}` or name another with "
@@ -118,8 +122,7 @@ Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostre
   try {
     auto db = connect(path, SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
     const int version = check_identity(*db, path);
-    if (mode != OpenMode::read_only &&
-        db->execAndGet("PRAGMA journal_mode").getString() != "wal")
+    if (mode != OpenMode::read_only && db->execAndGet("PRAGMA journal_mode").getString() != "wal")
       db->exec("PRAGMA journal_mode = WAL");  // readers and a writer work side by side
     if (version < current_schema_version()) {
       const int applied = migrate(*db);
@@ -127,8 +130,8 @@ Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostre
         notices << fmt::format("created ledger {} (schema version {})\n", path.string(),
                                current_schema_version());
       else if (applied > 0)
-        notices << fmt::format("upgraded ledger {} from schema version {} to {}\n",
-                               path.string(), version, current_schema_version());
+        notices << fmt::format("upgraded ledger {} from schema version {} to {}\n", path.string(),
+                               version, current_schema_version());
     }
     if (mode == OpenMode::read_only) {
       db.reset();
@@ -148,7 +151,9 @@ Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostre
   }
 }
 
-int Ledger::schema_version() { return pragma_int(*db_, "user_version"); }
+int Ledger::schema_version() {
+  return pragma_int(*db_, "user_version");
+}
 
 void Ledger::write_transaction(const std::function<void()>& work) {
   db_->exec("BEGIN IMMEDIATE");

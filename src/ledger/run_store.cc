@@ -40,7 +40,9 @@ void bind_double(SQLite::Statement& q, int index, double v) {
     q.bind(index, v);
 }
 
-double column_double(const SQLite::Column& c) { return c.isNull() ? NAN : c.getDouble(); }
+double column_double(const SQLite::Column& c) {
+  return c.isNull() ? NAN : c.getDouble();
+}
 
 std::optional<std::string> column_text(const SQLite::Column& c) {
   if (c.isNull()) return std::nullopt;
@@ -63,8 +65,8 @@ std::string inputs_hash(const std::string& engine_version, const std::string& pa
   h.update(parameters_json);
   h.update("\n");
   for (const auto& in : inputs)
-    h.update(fmt::format("input: {} {} {} {} {} {}\n", in.role, in.position, in.series,
-                         in.version, in.content_hash, fmt::join(in.columns, ",")));
+    h.update(fmt::format("input: {} {} {} {} {} {}\n", in.role, in.position, in.series, in.version,
+                         in.content_hash, fmt::join(in.columns, ",")));
   return h.hex();
 }
 
@@ -72,7 +74,8 @@ ordered_json result_json(const core::EvaluationResult& r, const std::vector<std:
   const auto& fit = r.fit;
   const auto& d = r.derived;
   ordered_json dropped = ordered_json::array();
-  for (const auto& p : r.sample.dropped) dropped.push_back({{"period", p.label}, {"reason", p.reason}});
+  for (const auto& p : r.sample.dropped)
+    dropped.push_back({{"period", p.label}, {"reason", p.reason}});
   ordered_json by_reason = ordered_json::object();
   for (const auto& [reason, count] : r.sample.dropped_by_reason) by_reason[reason] = count;
   ordered_json sample = {{"first", r.sample.first},
@@ -93,40 +96,36 @@ ordered_json result_json(const core::EvaluationResult& r, const std::vector<std:
                             {"p_value", number(c.p_value)},
                             {"ci_low", number(c.ci_low)},
                             {"ci_high", number(c.ci_high)}});
-  ordered_json statistics = {
-      {"r_squared", number(fit.r_squared)},
-      {"adj_r_squared", number(fit.adj_r_squared)},
-      {"residual_std", number(fit.residual_std)},
-      {"f_stat", number(fit.f_stat)},
-      {"f_p_value", number(fit.f_p_value)},
-      {"observations", fit.n},
-      {"coefficients", fit.k},
-      {"degrees_of_freedom", fit.df},
-      {"errors", core::error_kind_name(fit.errors)},
-      {"lags", fit.lags},
-      {"small_sample_factor", fit.small_sample_applied},
-      {"confidence", fit.confidence},
-      {"condition_number", number(fit.condition_number)},
-      {"alpha_annualized", number(d.alpha_annualized)},
-      {"appraisal_ratio", number(d.appraisal_ratio)},
-      {"sharpe_strategy", number(d.sharpe_strategy)},
-      {"sharpe_benchmark", number(d.sharpe_benchmark)},
-      {"treynor_ratio", number(d.treynor_ratio)},
-      {"tracking_error", number(d.tracking_error)},
-      {"information_ratio", number(d.information_ratio)},
-      {"correlation", number(d.correlation)},
-      {"mean_excess_strategy", number(d.mean_excess_strategy)},
-      {"mean_excess_benchmark", number(d.mean_excess_benchmark)},
-      {"up_market_beta", number(d.up_market_beta)},
-      {"down_market_beta", number(d.down_market_beta)},
-      {"up_periods", d.up_periods},
-      {"down_periods", d.down_periods}};
-  return {{"sample", sample},
-          {"coefficients", coefficients},
-          {"statistics", statistics},
-          {"reading", reading},
-          {"preparation", r.sample.preparation},
-          {"warnings", r.sample.warnings}};
+  ordered_json statistics = {{"r_squared", number(fit.r_squared)},
+                             {"adj_r_squared", number(fit.adj_r_squared)},
+                             {"residual_std", number(fit.residual_std)},
+                             {"f_stat", number(fit.f_stat)},
+                             {"f_p_value", number(fit.f_p_value)},
+                             {"observations", fit.n},
+                             {"coefficients", fit.k},
+                             {"degrees_of_freedom", fit.df},
+                             {"errors", core::error_kind_name(fit.errors)},
+                             {"lags", fit.lags},
+                             {"small_sample_factor", fit.small_sample_applied},
+                             {"confidence", fit.confidence},
+                             {"condition_number", number(fit.condition_number)},
+                             {"alpha_annualized", number(d.alpha_annualized)},
+                             {"appraisal_ratio", number(d.appraisal_ratio)},
+                             {"sharpe_strategy", number(d.sharpe_strategy)},
+                             {"sharpe_benchmark", number(d.sharpe_benchmark)},
+                             {"treynor_ratio", number(d.treynor_ratio)},
+                             {"tracking_error", number(d.tracking_error)},
+                             {"information_ratio", number(d.information_ratio)},
+                             {"correlation", number(d.correlation)},
+                             {"mean_excess_strategy", number(d.mean_excess_strategy)},
+                             {"mean_excess_benchmark", number(d.mean_excess_benchmark)},
+                             {"up_market_beta", number(d.up_market_beta)},
+                             {"down_market_beta", number(d.down_market_beta)},
+                             {"up_periods", d.up_periods},
+                             {"down_periods", d.down_periods}};
+  return {
+      {"sample", sample},   {"coefficients", coefficients},        {"statistics", statistics},
+      {"reading", reading}, {"preparation", r.sample.preparation}, {"warnings", r.sample.warnings}};
 }
 
 std::string canonical_run_record(const RunRow& r) {
@@ -197,7 +196,8 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
     row.previous_record_hash = last.executeStep() ? last.getColumn(0).getString() : kGenesisHash;
   }
   for (const auto& in : run.inputs)
-    row.inputs.push_back({in.role, in.position, in.version_id, fmt::format("{}", fmt::join(in.columns, ","))});
+    row.inputs.push_back(
+        {in.role, in.position, in.version_id, fmt::format("{}", fmt::join(in.columns, ","))});
   row.coefficients = r.fit.coefficients;
   row.record_hash = chain_hash(row.previous_record_hash, canonical_run_record(row));
 
@@ -211,7 +211,10 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
       "?, ?, ?, ?, ?, ?, ?)");
   int i = 1;
   const auto bind_optional = [&](const std::optional<std::string>& v) {
-    if (v) insert.bind(i, *v); else insert.bind(i);
+    if (v)
+      insert.bind(i, *v);
+    else
+      insert.bind(i);
     ++i;
   };
   insert.bind(i++, row.run_id);
@@ -223,7 +226,10 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   bind_optional(row.factors);
   bind_optional(row.study);
   bind_optional(row.note);
-  if (row.revises_run_id) insert.bind(i++, *row.revises_run_id); else insert.bind(i++);
+  if (row.revises_run_id)
+    insert.bind(i++, *row.revises_run_id);
+  else
+    insert.bind(i++);
   insert.bind(i++, row.parameters_json);
   insert.bind(i++, row.inputs_hash);
   insert.bind(i++, row.frequency);
@@ -241,8 +247,9 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   insert.bind(i++, row.record_hash);
   insert.exec();
 
-  SQLite::Statement add_input(
-      db, "INSERT INTO run_inputs (run_id, role, position, version_id, columns) VALUES (?, ?, ?, ?, ?)");
+  SQLite::Statement add_input(db,
+                              "INSERT INTO run_inputs (run_id, role, position, version_id, "
+                              "columns) VALUES (?, ?, ?, ?, ?)");
   for (const auto& in : row.inputs) {
     add_input.reset();
     add_input.bind(1, row.run_id);
@@ -321,9 +328,10 @@ std::optional<RunRow> read_run_row(Ledger& ledger, std::int64_t run_id) {
   while (inputs.executeStep())
     r.inputs.push_back({inputs.getColumn(0).getString(), inputs.getColumn(1).getInt(),
                         inputs.getColumn(2).getInt64(), inputs.getColumn(3).getString()});
-  SQLite::Statement coefficients(db,
-                                 "SELECT term, estimate, std_error, t_stat, p_value, ci_low, "
-                                 "ci_high FROM run_coefficients WHERE run_id = ? ORDER BY position");
+  SQLite::Statement coefficients(
+      db,
+      "SELECT term, estimate, std_error, t_stat, p_value, ci_low, "
+      "ci_high FROM run_coefficients WHERE run_id = ? ORDER BY position");
   coefficients.bind(1, run_id);
   while (coefficients.executeStep()) {
     core::Coefficient c;
@@ -387,9 +395,8 @@ int count_strategy_runs(Ledger& ledger, const std::string& strategy) {
 ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
   const auto row = read_run_row(ledger, run_id);
   if (!row)
-    throw Error(ExitCode::not_found,
-                fmt::format("no run {} in {}; `alphatrail runs` lists them", run_id,
-                            ledger.path().string()));
+    throw Error(ExitCode::not_found, fmt::format("no run {} in {}; `alphatrail runs` lists them",
+                                                 run_id, ledger.path().string()));
   ordered_json inputs = ordered_json::array();
   SQLite::Statement q(ledger.db(),
                       "SELECT i.role, i.position, s.name, v.version, v.content_hash, i.columns, "
@@ -410,20 +417,20 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
                       {"note", q.getColumn(7).getString()},
                       {"latest_version", q.getColumn(8).getInt()}});
   const auto result = ordered_json::parse(row->result_json);
-  ordered_json run = {{"run_id", row->run_id},
-                      {"created_at", row->created_at},
-                      {"engine_version", row->engine_version},
-                      {"inputs_hash", row->inputs_hash},
-                      {"strategy", row->strategy},
-                      {"benchmark", row->benchmark},
-                      {"rate", row->rate},
-                      {"factors", row->factors ? ordered_json(*row->factors) : ordered_json()},
-                      {"study", row->study ? ordered_json(*row->study) : ordered_json()},
-                      {"note", row->note ? ordered_json(*row->note) : ordered_json()},
-                      {"revises_run_id", row->revises_run_id ? ordered_json(*row->revises_run_id)
-                                                             : ordered_json()},
-                      {"parameters", ordered_json::parse(row->parameters_json)},
-                      {"inputs", inputs}};
+  ordered_json run = {
+      {"run_id", row->run_id},
+      {"created_at", row->created_at},
+      {"engine_version", row->engine_version},
+      {"inputs_hash", row->inputs_hash},
+      {"strategy", row->strategy},
+      {"benchmark", row->benchmark},
+      {"rate", row->rate},
+      {"factors", row->factors ? ordered_json(*row->factors) : ordered_json()},
+      {"study", row->study ? ordered_json(*row->study) : ordered_json()},
+      {"note", row->note ? ordered_json(*row->note) : ordered_json()},
+      {"revises_run_id", row->revises_run_id ? ordered_json(*row->revises_run_id) : ordered_json()},
+      {"parameters", ordered_json::parse(row->parameters_json)},
+      {"inputs", inputs}};
   for (const auto& [key, value] : result.items()) run[key] = value;
   run["record_hash"] = row->record_hash;
   return run;

@@ -5,9 +5,8 @@
 // record, so that editing, removing or reordering runs breaks the chain (`verify`).
 #pragma once
 
-#include <nlohmann/json.hpp>
-
 #include <cstdint>
+#include <nlohmann/json.hpp>
 #include <optional>
 #include <string>
 #include <vector>

@@ -6,11 +6,11 @@
 #include <unistd.h>
 
 #include <algorithm>
+#include <atomic>
 #include <chrono>
 #include <cmath>
-#include <cstdlib>
-#include <atomic>
 #include <condition_variable>
+#include <cstdlib>
 #include <exception>
 #include <mutex>
 #include <thread>
@@ -33,8 +33,8 @@ Prepared prepare(const NewVersion& v) {
   p.columns.reserve(v.columns.size());
   for (const auto& c : v.columns) {
     p.columns.push_back({c.name, encode_values_json(c)});
-    p.missing += std::count_if(c.values.begin(), c.values.end(),
-                               [](double x) { return std::isnan(x); });
+    p.missing +=
+        std::count_if(c.values.begin(), c.values.end(), [](double x) { return std::isnan(x); });
     p.all_dates.insert(p.all_dates.end(), c.dates.begin(), c.dates.end());
   }
   if (v.columns.size() > 1) {
@@ -51,8 +51,8 @@ class PreparedPipeline {
  public:
   explicit PreparedPipeline(const std::vector<NewVersion>& versions)
       : versions_(versions), slots_(versions.size()), ready_(versions.size(), false) {
-    const std::size_t workers = std::min<std::size_t>(
-        std::max(1u, std::thread::hardware_concurrency()), versions.size());
+    const std::size_t workers =
+        std::min<std::size_t>(std::max(1u, std::thread::hardware_concurrency()), versions.size());
     for (std::size_t w = 0; w < workers; ++w) threads_.emplace_back([this] { work(); });
   }
   ~PreparedPipeline() {
@@ -172,8 +172,7 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
   SQLite::Statement latest(db,
                            "SELECT version, content_hash FROM series_versions WHERE series_id = ? "
                            "ORDER BY version DESC LIMIT 1");
-  SQLite::Statement add_series(db,
-                               "INSERT INTO series (name, kind, created_at) VALUES (?, ?, ?)");
+  SQLite::Statement add_series(db, "INSERT INTO series (name, kind, created_at) VALUES (?, ?, ?)");
   SQLite::Statement add_version(
       db,
       "INSERT INTO series_versions (series_id, version, content_hash, unit, input_unit, quote, "
@@ -229,8 +228,14 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
     add_version.bind(3, p.hash);
     add_version.bind(4, v.meta.unit);
     add_version.bind(5, v.input_unit);
-    if (v.meta.quote) add_version.bind(6, *v.meta.quote); else add_version.bind(6);
-    if (frequency) add_version.bind(7, core::frequency_name(*frequency)); else add_version.bind(7);
+    if (v.meta.quote)
+      add_version.bind(6, *v.meta.quote);
+    else
+      add_version.bind(6);
+    if (frequency)
+      add_version.bind(7, core::frequency_name(*frequency));
+    else
+      add_version.bind(7);
     add_version.bind(8, core::format_date(p.all_dates.front()));
     add_version.bind(9, core::format_date(p.all_dates.back()));
     add_version.bind(10, static_cast<std::int64_t>(p.all_dates.size()));
@@ -239,7 +244,10 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
     add_version.bind(13, source.sha256);
     add_version.bind(14, now);
     add_version.bind(15, user);
-    if (source.note.empty()) add_version.bind(16); else add_version.bind(16, source.note);
+    if (source.note.empty())
+      add_version.bind(16);
+    else
+      add_version.bind(16, source.note);
     add_version.exec();
     const std::int64_t version_id = db.getLastInsertRowid();
 
@@ -301,10 +309,11 @@ LoadedVersion load_version(Ledger& ledger, const std::string& name, std::optiona
   if (!q.executeStep()) {
     if (version) version_history(ledger, name);  // names an unknown series first
     throw Error(ExitCode::not_found,
-                version ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
-                                      "lists its versions",
-                                      name, *version, name)
-                        : fmt::format("no series named '{}'; `alphatrail series` lists them", name));
+                version
+                    ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
+                                  "lists its versions",
+                                  name, *version, name)
+                    : fmt::format("no series named '{}'; `alphatrail series` lists them", name));
   }
   LoadedVersion loaded{read_version_info(q), {}};
   SQLite::Statement cols(ledger.db(),

@@ -21,8 +21,8 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
                             "version_id = ? ORDER BY position");
   while (versions.executeStep()) {
     ++report.versions_checked;
-    const std::string object = fmt::format("series {} version {}", versions.getColumn(1).getString(),
-                                           versions.getColumn(3).getInt());
+    const std::string object = fmt::format(
+        "series {} version {}", versions.getColumn(1).getString(), versions.getColumn(3).getInt());
     ContentMeta meta{versions.getColumn(2).getString(), versions.getColumn(4).getString(),
                      std::nullopt};
     if (!versions.getColumn(5).isNull()) meta.quote = versions.getColumn(5).getString();
@@ -34,7 +34,8 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
       try {
         decode_values_json(encoded.back().name, encoded.back().values_json);
       } catch (const Error& e) {
-        report.problems.push_back({object, fmt::format("column '{}' is malformed", encoded.back().name)});
+        report.problems.push_back(
+            {object, fmt::format("column '{}' is malformed", encoded.back().name)});
       }
     }
     if (encoded.empty()) report.problems.push_back({object, "has no stored observations"});
@@ -57,20 +58,21 @@ void verify_runs(Ledger& ledger, VerifyReport& report) {
     const std::string object = fmt::format("run {}", id);
     if (id != expected_id)
       report.problems.push_back(
-          {object, fmt::format("runs are not numbered without gaps: expected run {} here",
-                               expected_id)});
+          {object,
+           fmt::format("runs are not numbered without gaps: expected run {} here", expected_id)});
     expected_id = id + 1;
     const auto row = read_run_row(ledger, id);
-    const std::string inputs = inputs_hash(row->engine_version, row->parameters_json,
-                                           read_run_inputs(ledger, id));
+    const std::string inputs =
+        inputs_hash(row->engine_version, row->parameters_json, read_run_inputs(ledger, id));
     if (inputs != row->inputs_hash)
       report.problems.push_back(
           {object, fmt::format("inputs hash {} does not match its inputs and parameters ({})",
                                row->inputs_hash.substr(0, 12), inputs.substr(0, 12))});
     if (row->previous_record_hash != previous)
       report.problems.push_back(
-          {object, "the hash chain is broken before this run: a run was removed, reordered or "
-                   "edited"});
+          {object,
+           "the hash chain is broken before this run: a run was removed, reordered or "
+           "edited"});
     const std::string record = chain_hash(row->previous_record_hash, canonical_run_record(*row));
     if (record != row->record_hash)
       report.problems.push_back(
