@@ -43,14 +43,11 @@ std::string revision_summary(ledger::Ledger& ledger, const std::string& series, 
   std::size_t added = 0;
   std::size_t removed = 0;
   std::size_t changed = 0;
-  for (const auto& cb : b.columns)
-    for (const auto& ca : a.columns)
-      if (ca.name == cb.name) {
-        const auto d = core::diff_column(ca, cb);
-        added += d.added.size();
-        removed += d.removed.size();
-        changed += d.changed.size();
-      }
+  for (const auto& d : core::diff_columns(a.columns, b.columns)) {
+    added += d.added.size();
+    removed += d.removed.size();
+    changed += d.changed.size();
+  }
   return fmt::format("v{} -> v{}: {} changed, {} added, {} removed", va, vb, changed, added,
                      removed);
 }
@@ -89,6 +86,20 @@ void run_compare(const CompareOptions& o, const GlobalOptions& global) {
     }
     entry["same"] = match != b["inputs"].end() && (*match)["content_hash"] == ia["content_hash"];
     inputs.push_back(entry);
+  }
+  // Inputs only run b has (a factor set the other run did not use).
+  for (const auto& ib : b["inputs"]) {
+    const bool in_a =
+        std::any_of(a["inputs"].begin(), a["inputs"].end(), [&](const ordered_json& ia) {
+          return ia["role"] == ib["role"] &&
+                 (ib["role"] != "factor" || ia["series"] == ib["series"]);
+        });
+    if (!in_a)
+      inputs.push_back(
+          {{"role", ib["role"]},
+           {"a", nullptr},
+           {"b", ib["series"].get<std::string>() + " v" + std::to_string(ib["version"].get<int>())},
+           {"same", false}});
   }
 
   ordered_json parameters = ordered_json::array();
@@ -133,6 +144,17 @@ void run_compare(const CompareOptions& o, const GlobalOptions& global) {
                          {"b", vb},
                          {"change", change(ca[key], vb)}});
     }
+  }
+  // Terms only run b has.
+  for (const auto& cb : b["coefficients"]) {
+    const bool in_a = std::any_of(a["coefficients"].begin(), a["coefficients"].end(),
+                                  [&](const ordered_json& c) { return c["term"] == cb["term"]; });
+    if (in_a) continue;
+    for (const char* key : {"estimate", "std_error", "t_stat", "p_value"})
+      figures.push_back({{"figure", cb["term"].get<std::string>() + " " + key},
+                         {"a", nullptr},
+                         {"b", cb[key]},
+                         {"change", change(ordered_json(), cb[key])}});
   }
   for (const auto& [key, va] : a["statistics"].items()) {
     const ordered_json vb = b["statistics"].contains(key) ? b["statistics"][key] : ordered_json();

@@ -32,19 +32,13 @@ void print_diff(ledger::Ledger& ledger, const SeriesOptions& o) {
     return std::isnan(v) ? std::string("missing") : fmt::format("{}", v);
   };
   std::vector<std::string> counts;
-  for (const auto& column : newer.columns) {
-    const auto match =
-        std::find_if(older.columns.begin(), older.columns.end(),
-                     [&](const ledger::ColumnData& c) { return c.name == column.name; });
-    const ledger::ColumnData empty{column.name, {}, {}};
-    const core::ColumnDiff d =
-        core::diff_column(match == older.columns.end() ? empty : *match, column);
-    counts.push_back(fmt::format("{}: {} changed, {} added, {} removed", column.name,
-                                 d.changed.size(), d.added.size(), d.removed.size()));
+  for (const core::ColumnDiff& d : core::diff_columns(older.columns, newer.columns)) {
+    counts.push_back(fmt::format("{}: {} changed, {} added, {} removed", d.column, d.changed.size(),
+                                 d.added.size(), d.removed.size()));
     auto changed = nlohmann::ordered_json::array();
     for (const auto& c : d.changed) {
       table.rows.push_back(
-          {column.name, core::format_date(c.date), "changed", value(c.before), value(c.after),
+          {d.column, core::format_date(c.date), "changed", value(c.before), value(c.after),
            std::isnan(c.before) || std::isnan(c.after) ? ""
                                                        : fmt::format("{:+}", c.after - c.before)});
       changed.push_back({{"date", core::format_date(c.date)},
@@ -55,14 +49,14 @@ void print_diff(ledger::Ledger& ledger, const SeriesOptions& o) {
     std::vector<std::string> removed;
     for (auto day : d.added) {
       added.push_back(core::format_date(day));
-      table.rows.push_back({column.name, added.back(), "added", "", "", ""});
+      table.rows.push_back({d.column, added.back(), "added", "", "", ""});
     }
     for (auto day : d.removed) {
       removed.push_back(core::format_date(day));
-      table.rows.push_back({column.name, removed.back(), "removed", "", "", ""});
+      table.rows.push_back({d.column, removed.back(), "removed", "", "", ""});
     }
     json.push_back(
-        {{"column", column.name}, {"changed", changed}, {"added", added}, {"removed", removed}});
+        {{"column", d.column}, {"changed", changed}, {"added", added}, {"removed", removed}});
   }
   if (o.format == Format::json) {
     print_json(std::cout, {{"name", o.name},

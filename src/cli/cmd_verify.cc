@@ -11,15 +11,28 @@ namespace alphatrail::cli {
 
 namespace {
 
+// Shows stored text as it is, with control and non-ASCII bytes escaped, so that tampered
+// content cannot break or forge the report's lines.
+std::string printable(const std::string& text) {
+  std::string out;
+  for (unsigned char c : text) {
+    if (c >= 0x20 && c < 0x7f)
+      out += static_cast<char>(c);
+    else
+      out += fmt::format("\\x{:02x}", c);
+  }
+  return out;
+}
+
 void run_verify(const GlobalOptions& global) {
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
                                      ledger::OpenMode::read_only, std::cerr);
   const auto report = ledger::verify_ledger(ledger);
   for (const auto& p : report.problems)
-    std::cout << fmt::format("MISMATCH {}: {}\n", p.object, p.problem);
+    std::cout << fmt::format("MISMATCH {}: {}\n", printable(p.object), printable(p.problem));
   std::cout << fmt::format(
       "checked {} series versions and {} runs; SQLite integrity check run; chain head {}\n",
-      report.versions_checked, report.runs_checked, report.chain_head);
+      report.versions_checked, report.runs_checked, printable(report.chain_head));
   if (!report.ok())
     throw Error(ExitCode::verify_failed,
                 fmt::format("{} mismatch{} found in {}: the ledger was altered outside "

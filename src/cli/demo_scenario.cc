@@ -127,18 +127,20 @@ DemoFile write_restated_benchmark(const std::filesystem::path& folder) {
   std::string line;
   std::getline(in, line);
   out << line << '\n';
-  const core::Day restated_from = core::to_day({2008, 10, 1});
+  const core::CivilDate restated{2008, 10, 1};
   while (std::getline(in, line)) {
     const auto comma = line.find(',');
     const std::string date = line.substr(0, comma);
     double level = std::stod(line.substr(comma + 1));
-    // Dividends of October 2008 were left out: that month's return was 0.8 points higher,
-    // so every level from then on is 0.8% higher.
-    if (core::parse_date(date).day >= restated_from) level *= 1.008;
-    out << fmt::format("{},{:.2f}\n", date, level);
+    // The October 2008 close was misprinted 0.8% low; only that level changes, so the
+    // restatement moves two returns, October's and November's.
+    const core::CivilDate c = core::to_civil(core::parse_date(date).day);
+    const bool restate = c.year == restated.year && c.month == restated.month;
+    if (restate) level *= 1.008;
+    out << (restate ? fmt::format("{},{:.2f}\n", date, level) : line + "\n");
   }
   return {path,  "benchmark", kDemoBenchmark,
-          false, true,        "restated: October 2008 dividends added (invented)"};
+          false, true,        "restated: October 2008 close corrected (invented)"};
 }
 
 }  // namespace alphatrail::cli

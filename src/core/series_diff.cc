@@ -42,4 +42,24 @@ ColumnDiff diff_column(const SeriesColumn& older, const SeriesColumn& newer) {
   return d;
 }
 
+std::vector<ColumnDiff> diff_columns(const std::vector<SeriesColumn>& older,
+                                     const std::vector<SeriesColumn>& newer) {
+  const auto find = [](const std::vector<SeriesColumn>& columns, const std::string& name) {
+    return std::find_if(columns.begin(), columns.end(),
+                        [&](const SeriesColumn& c) { return c.name == name; });
+  };
+  std::vector<ColumnDiff> out;
+  for (const auto& column : newer) {
+    const auto match = find(older, column.name);
+    out.push_back(
+        diff_column(match == older.end() ? SeriesColumn{column.name, {}, {}} : *match, column));
+  }
+  for (const auto& column : older)
+    if (find(newer, column.name) == newer.end()) {
+      ColumnDiff d = diff_column(column, SeriesColumn{column.name, {}, {}});
+      out.push_back(std::move(d));
+    }
+  return out;
+}
+
 }  // namespace alphatrail::core

@@ -27,4 +27,9 @@ struct ColumnDiff {
 // change and sorts first. Example: diff_column(v1, v2).changed.front() is the largest change.
 ColumnDiff diff_column(const SeriesColumn& older, const SeriesColumn& newer);
 
+// Compares every column of two versions by name: columns of the newer version first (a new
+// column is all added), then columns only the older version has (all removed).
+std::vector<ColumnDiff> diff_columns(const std::vector<SeriesColumn>& older,
+                                     const std::vector<SeriesColumn>& newer);
+
 }  // namespace alphatrail::core

@@ -3,6 +3,10 @@
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 
+#include <algorithm>
+#include <cmath>
+
+#include "core/dates.h"
 #include "core/error.h"
 #include "ledger/content.h"
 #include "ledger/run_store.h"
@@ -14,8 +18,9 @@ namespace {
 void verify_versions(Ledger& ledger, VerifyReport& report) {
   SQLite::Statement versions(ledger.db(),
                              "SELECT v.version_id, s.name, s.kind, v.version, v.unit, v.quote, "
-                             "v.content_hash FROM series_versions v JOIN series s ON s.series_id "
-                             "= v.series_id ORDER BY v.version_id");
+                             "v.content_hash, coalesce(v.frequency, ''), v.first_date, "
+                             "v.last_date, v.observations, v.missing FROM series_versions v JOIN "
+                             "series s ON s.series_id = v.series_id ORDER BY v.version_id");
   SQLite::Statement columns(ledger.db(),
                             "SELECT column_name, values_json FROM version_columns WHERE "
                             "version_id = ? ORDER BY position");
@@ -27,18 +32,41 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
                      std::nullopt};
     if (!versions.getColumn(5).isNull()) meta.quote = versions.getColumn(5).getString();
     std::vector<EncodedColumn> encoded;
+    std::vector<core::Day> dates;
+    std::int64_t missing = 0;
     columns.reset();
     columns.bind(1, versions.getColumn(0).getInt64());
     while (columns.executeStep()) {
       encoded.push_back({columns.getColumn(0).getString(), columns.getColumn(1).getString()});
       try {
-        decode_values_json(encoded.back().name, encoded.back().values_json);
+        const auto column = decode_values_json(encoded.back().name, encoded.back().values_json);
+        dates.insert(dates.end(), column.dates.begin(), column.dates.end());
+        missing += std::count_if(column.values.begin(), column.values.end(),
+                                 [](double v) { return std::isnan(v); });
       } catch (const Error& e) {
         report.problems.push_back(
             {object, fmt::format("column '{}' is malformed", encoded.back().name)});
       }
     }
     if (encoded.empty()) report.problems.push_back({object, "has no stored observations"});
+    // The version's description must be what its observations say.
+    std::sort(dates.begin(), dates.end());
+    dates.erase(std::unique(dates.begin(), dates.end()), dates.end());
+    if (!dates.empty()) {
+      const auto frequency = core::detect_frequency(dates);
+      const std::string described =
+          fmt::format("{} {} {} {} {}", versions.getColumn(7).getString(),
+                      versions.getColumn(8).getString(), versions.getColumn(9).getString(),
+                      versions.getColumn(10).getInt64(), versions.getColumn(11).getInt64());
+      const std::string observed = fmt::format(
+          "{} {} {} {} {}", frequency ? core::frequency_name(*frequency) : "",
+          core::format_date(dates.front()), core::format_date(dates.back()), dates.size(), missing);
+      if (described != observed)
+        report.problems.push_back(
+            {object, fmt::format("its description (frequency, first, last, observations, "
+                                 "missing: {}) does not match its observations ({})",
+                                 described, observed)});
+    }
     const std::string stored = versions.getColumn(6).getString();
     const std::string computed = content_hash(meta, encoded);
     if (stored != computed)
@@ -89,8 +117,16 @@ VerifyReport verify_ledger(Ledger& ledger) {
   report.chain_head = kGenesisHash;
   SQLite::Statement integrity(ledger.db(), "PRAGMA integrity_check");
   while (integrity.executeStep()) {
-    const std::string line = integrity.getColumn(0).getString();
-    if (line != "ok") report.problems.push_back({"ledger file", "integrity check: " + line});
+    const std::string text = integrity.getColumn(0).getString();
+    if (text == "ok") continue;
+    std::size_t start = 0;  // one finding per line: SQLite puts several in one row
+    while (start < text.size()) {
+      const auto end = text.find('\n', start);
+      const std::string line = text.substr(start, end == std::string::npos ? end : end - start);
+      if (!line.empty()) report.problems.push_back({"ledger file", "integrity check: " + line});
+      if (end == std::string::npos) break;
+      start = end + 1;
+    }
   }
   verify_versions(ledger, report);
   verify_runs(ledger, report);

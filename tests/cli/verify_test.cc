@@ -14,6 +14,7 @@
 #include <fmt/format.h>
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cstdint>
 #include <cstdlib>
 #include <filesystem>
@@ -57,6 +58,7 @@ CommandResult at(const std::string& ledger, const std::vector<std::string>& args
 }
 
 void copy_ledger(const fs::path& from, const fs::path& to) {
+  for (const char* suffix : {"-wal", "-shm"}) fs::remove(to.string() + suffix);
   fs::copy_file(from, to, fs::copy_options::overwrite_existing);
   const fs::path wal = from.string() + "-wal";
   if (fs::exists(wal)) fs::copy_file(wal, to.string() + "-wal", fs::copy_options::overwrite_existing);
@@ -135,23 +137,56 @@ std::string text_of(SQLite::Database& db, const std::string& sql) {
   return db.execAndGet(sql).getString();
 }
 
-// The demo ledger, built once; every test works on its own copy.
+// The six-run ledger these tests start from, built from the demo's data files exactly as the
+// demo's main job records it: benchmark alder-vale-composite (levels), rate alder-vale-bills,
+// factor set brindle-styles, six strategies; runs 1-3 'trend-*' (study trend-lookbacks), runs
+// 4-6 carry-g10, defensive-tilt and crash-hedge. (The demo itself goes on to restate the index
+// and re-run; these tests make their own revisions.) Returns an error text, empty on success.
+std::string build_six_run_ledger(const fs::path& demo, const fs::path& ledger) {
+  const fs::path data = demo.string() + "-data";
+  const auto file = [&](const char* name) { return (data / name).string(); };
+  const std::vector<std::vector<std::string>> steps{
+      {"--ledger", demo.string(), "demo"},
+      {"--ledger", ledger.string(), "ingest", "benchmark", file("alder-vale-composite.csv"),
+       "--levels", "--name", "alder-vale-composite"},
+      {"--ledger", ledger.string(), "ingest", "rate", file("alder-vale-bills.csv"), "--name",
+       "alder-vale-bills"},
+      {"--ledger", ledger.string(), "ingest", "factor", file("brindle-styles.csv"), "--name",
+       "brindle-styles"},
+      {"--ledger", ledger.string(), "ingest", "strategy", file("brindle-hollow-strategies.csv"),
+       "--percent"},
+      {"--ledger", ledger.string(), "evaluate", "trend-*", "--benchmark", "alder-vale-composite",
+       "--rate", "alder-vale-bills", "--factor", "brindle-styles", "--study", "trend-lookbacks",
+       "--note", "demo: trend look-back variants"},
+      {"--ledger", ledger.string(), "evaluate", "carry-g10", "defensive-tilt", "crash-hedge",
+       "--benchmark", "alder-vale-composite", "--rate", "alder-vale-bills", "--factor",
+       "brindle-styles", "--note", "demo: other books"}};
+  for (const auto& args : steps) {
+    const CommandResult r = run_alphatrail(args);
+    if (r.exit_code != 0) return fmt::format("{} {} failed: {}", args[2], args.size() > 3 ? args[3] : "", r.err);
+  }
+  SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
+  db.exec("PRAGMA wal_checkpoint(TRUNCATE)");
+  return "";
+}
+
+// The six-run ledger, built once; every test works on its own copy.
 class VerifyLedgerTest : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
     dir_ = new ScratchDir();
-    const CommandResult r = at(base().string(), {"demo"});
-    ASSERT_EQ(r.exit_code, 0) << r.err;
-    checkpoint(base());
+    problem_ = build_six_run_ledger(demo(), base());
   }
   static void TearDownTestSuite() {
     delete dir_;
     dir_ = nullptr;
   }
-  static fs::path base() { return *dir_ / "demo.db"; }
+  static fs::path demo() { return *dir_ / "demo.db"; }
+  static fs::path base() { return *dir_ / "six.db"; }
 
   void SetUp() override {
     ASSERT_NE(dir_, nullptr);
+    ASSERT_EQ(problem_, "");
     copy_ledger(base(), path());
   }
   void TearDown() override {
@@ -176,22 +211,33 @@ class VerifyLedgerTest : public ::testing::Test {
   }
 
   static ScratchDir* dir_;
+  static std::string problem_;
   ScratchDir scratch_;
 };
 
 ScratchDir* VerifyLedgerTest::dir_ = nullptr;
+std::string VerifyLedgerTest::problem_;
 
+// The demo as it comes (its re-runs included) and the six-run ledger both check out; the
+// report counts what is there and prints the last run's record hash as the chain head.
 TEST_F(VerifyLedgerTest, FreshDemoLedgerChecksOut) {
-  EXPECT_EQ(integrity(path()), "ok");
-  const CommandResult r = at(ledger(), {"verify"});
-  EXPECT_EQ(r.exit_code, 0) << r.out << r.err;
-  EXPECT_TRUE(mismatches(r).empty()) << r.out;
-  EXPECT_TRUE(contains(r.out, "checked 9 series versions and 6 runs")) << r.out;
-  EXPECT_TRUE(contains(r.out, "everything checks out")) << r.out;
-  // The chain head printed is the last run's record hash.
-  SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
-  const std::string head = text_of(db, "SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
-  EXPECT_TRUE(contains(r.out, "chain head " + head)) << r.out;
+  for (const fs::path& ledger_file : {demo(), path()}) {
+    SCOPED_TRACE(ledger_file.string());
+    EXPECT_EQ(integrity(ledger_file), "ok");
+    const CommandResult r = at(ledger_file.string(), {"verify"});
+    EXPECT_EQ(r.exit_code, 0) << r.out << r.err;
+    EXPECT_TRUE(mismatches(r).empty()) << r.out;
+    EXPECT_TRUE(contains(r.out, "everything checks out")) << r.out;
+    SQLite::Database db(ledger_file.string(), SQLite::OPEN_READONLY);
+    const std::int64_t versions = db.execAndGet("SELECT count(*) FROM series_versions").getInt64();
+    const std::int64_t runs = db.execAndGet("SELECT count(*) FROM runs").getInt64();
+    EXPECT_GE(runs, 6);
+    EXPECT_TRUE(contains(r.out, fmt::format("checked {} series versions and {} runs", versions, runs)))
+        << r.out;
+    const std::string head = text_of(db, "SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
+    EXPECT_TRUE(contains(r.out, "chain head " + head)) << r.out;
+  }
+  EXPECT_EQ(at(ledger(), {"verify"}).out.find("checked 9 series versions and 6 runs"), 0u);
 }
 
 TEST_F(VerifyLedgerTest, EditedObservationIsAContentHashMismatch) {
@@ -327,40 +373,140 @@ TEST_F(VerifyLedgerTest, EditedContentHashIsAMismatchOfTheVersionAndOfTheRunsUsi
     EXPECT_TRUE(names(lines, fmt::format("run {}", id), "inputs hash")) << joined(lines);
 }
 
-// Garbage written over whole pages in the middle of the file: verify must fail (4 or 7) and
-// not crash, whichever page it hits.
-TEST_F(VerifyLedgerTest, GarbageBytesInTheFileFailWithoutACrash) {
-  const auto size = fs::file_size(base());
-  std::int64_t page_size = 0;
-  {
-    SQLite::Database db(base().string(), SQLite::OPEN_READONLY);
-    page_size = db.execAndGet("PRAGMA page_size").getInt64();
+// Pointing a run at another version of its input breaks its record and its inputs hash.
+TEST_F(VerifyLedgerTest, EditedRunInputIsDetected) {
+  tamper(path(), {"run_inputs_no_update"},
+         {"UPDATE run_inputs SET version_id = (SELECT version_id FROM series_versions JOIN series "
+          "USING (series_id) WHERE name = 'trend-3m') WHERE run_id = 1 AND role = 'strategy'"});
+  const auto lines = expect_mismatch("run 1", "record does not match");
+  EXPECT_TRUE(names(lines, "run 1", "inputs hash")) << joined(lines);
+}
+
+// A version's description is derived from its observations (frequency, first and last date,
+// count, missing values) and evaluations depend on it: the frequency decides how the
+// benchmark is aligned. Editing it makes every run of the benchmark irreproducible, so verify
+// must notice.
+TEST_F(VerifyLedgerTest, EditedVersionDescriptionIsDetected) {
+  for (const std::string edit : {"frequency = 'quarterly'", "observations = observations - 1",
+                                 "first_date = '1990-01-31'", "missing = missing + 3"}) {
+    SCOPED_TRACE(edit);
+    copy_ledger(base(), path());
+    tamper(path(), {"series_versions_no_update"},
+           {"UPDATE series_versions SET " + edit + " WHERE version_id = (SELECT version_id FROM "
+            "series_versions JOIN series USING (series_id) WHERE name = 'alder-vale-composite')"});
+    if (edit.rfind("frequency", 0) == 0) {  // the premise: the edit changes what a run computes
+      const CommandResult reproduce = at(ledger(), {"reproduce", "1"});
+      EXPECT_NE(reproduce.exit_code, 0) << reproduce.out;
+    }
+    const CommandResult r = at(ledger(), {"verify"});
+    EXPECT_EQ(r.exit_code, 7) << "verify passes a ledger whose version description was edited:\n"
+                              << r.out;
+    EXPECT_TRUE(names(mismatches(r), "series alder-vale-composite version 1", "")) << r.out;
   }
-  const std::int64_t pages = static_cast<std::int64_t>(size) / page_size;
-  ASSERT_GE(pages, 8);
-  std::string garbage(static_cast<std::size_t>(page_size), '\0');
+}
+
+// Garbage over one whole page, each page of the file in turn (the middle ones among them):
+// verify must fail with 4 (SQLite refuses the file) or 7 (a mismatch) and never crash or
+// pass.
+std::string xorshift_garbage(std::size_t size) {
+  std::string garbage(size, '\0');
   std::uint32_t x = 2463534242u;
-  for (auto& c : garbage) {  // xorshift: the same garbage every time
+  for (auto& c : garbage) {  // the same garbage every time
     x ^= x << 13;
     x ^= x >> 17;
     x ^= x << 5;
     c = static_cast<char>(x & 0xff);
   }
-  for (const double where : {0.25, 0.5, 0.75, 0.95}) {
-    const std::int64_t page = std::max<std::int64_t>(2, static_cast<std::int64_t>(where * pages));
-    SCOPED_TRACE(fmt::format("page {} of {}", page, pages));
+  return garbage;
+}
+
+void write_garbage_page(const fs::path& file, std::int64_t page, std::int64_t page_size) {
+  const std::string garbage = xorshift_garbage(static_cast<std::size_t>(page_size));
+  std::fstream f(file, std::ios::in | std::ios::out | std::ios::binary);
+  f.seekp((page - 1) * page_size);
+  f.write(garbage.data(), static_cast<std::streamsize>(garbage.size()));
+}
+
+std::int64_t page_size_of(const fs::path& ledger) {
+  SQLite::Database db(ledger.string(), SQLite::OPEN_READONLY);
+  return db.execAndGet("PRAGMA page_size").getInt64();
+}
+
+TEST_F(VerifyLedgerTest, GarbageBytesInTheFileFailWithoutACrash) {
+  const std::int64_t page_size = page_size_of(base());
+  const std::int64_t pages = static_cast<std::int64_t>(fs::file_size(base())) / page_size;
+  ASSERT_GE(pages, 8);
+  int refused = 0;
+  int mismatched = 0;
+  for (std::int64_t page = 1; page <= pages; ++page) {
+    SCOPED_TRACE(fmt::format("garbage over page {} of {}", page, pages));
     copy_ledger(base(), path());
-    {
-      std::fstream f(path(), std::ios::in | std::ios::out | std::ios::binary);
-      f.seekp(page * page_size);
-      f.write(garbage.data(), static_cast<std::streamsize>(garbage.size()));
-    }
+    write_garbage_page(path(), page, page_size);
     EXPECT_NE(integrity(path()), "ok");
     const CommandResult r = at(ledger(), {"verify"});
     EXPECT_TRUE(r.exit_code == 4 || r.exit_code == 7) << r.exit_code << "\n" << r.out << r.err;
     EXPECT_FALSE(contains(r.out, "everything checks out")) << r.out;
-    EXPECT_TRUE(contains(r.err, "alphatrail: error: ")) << r.err;
+    EXPECT_EQ(r.err.rfind("alphatrail: error: ", 0), 0u) << r.err;
+    (r.exit_code == 4 ? refused : mismatched) += 1;
   }
+  // Both ways of failing occur: pages SQLite needs to read, pages only the hashes notice.
+  EXPECT_GT(refused, 0);
+  EXPECT_GT(mismatched, 0);
+}
+
+// Every line of a failing report is one finding ("MISMATCH object: problem") or the summary,
+// so that scripts can read it line by line.
+// Shows control and non-ASCII bytes as \xNN.
+std::string escaped(const std::string& text) {
+  std::string out;
+  for (const char c : text) {
+    const auto u = static_cast<unsigned char>(c);
+    out += u == '\n' ? std::string("\n") : u >= 0x20 && u < 0x7f ? std::string(1, c) : fmt::format("\\x{:02x}", u);
+  }
+  return out;
+}
+
+void expect_one_line_per_finding(const CommandResult& r) {
+  for (const auto& line : lines_of(r.out)) {
+    const bool printable = std::all_of(line.begin(), line.end(), [](char c) {
+      return static_cast<unsigned char>(c) >= 0x20 && static_cast<unsigned char>(c) < 0x7f;
+    });
+    EXPECT_TRUE(printable && (line.rfind("MISMATCH ", 0) == 0 || line.rfind("checked ", 0) == 0))
+        << "not a report line: '" << escaped(line) << "' in\n" << escaped(r.out);
+  }
+}
+
+// SQLite's integrity check answers with a header line and the finding below it; the report
+// must still hold one finding per line. Garbage over one of the last pages (run rows): the
+// file stays readable, so verify reports rather than stops.
+TEST_F(VerifyLedgerTest, DamagedFileReportHasOneLinePerFinding) {
+  const std::int64_t page_size = page_size_of(base());
+  const std::int64_t pages = static_cast<std::int64_t>(fs::file_size(base())) / page_size;
+  int reports = 0;
+  for (std::int64_t page = pages; page > pages / 2 && reports < 3; --page) {
+    copy_ledger(base(), path());
+    write_garbage_page(path(), page, page_size);
+    const CommandResult r = at(ledger(), {"verify"});
+    if (r.exit_code != 7) continue;
+    ++reports;
+    SCOPED_TRACE(fmt::format("garbage over page {} of {}", page, pages));
+    EXPECT_TRUE(names(mismatches(r), "ledger file", "integrity check")) << r.out;
+    expect_one_line_per_finding(r);
+  }
+  EXPECT_GT(reports, 0) << "no damaged page gave a mismatch report";
+}
+
+// A stored text printed in the report cannot break a line or forge a finding.
+TEST_F(VerifyLedgerTest, StoredTextCannotForgeReportLines) {
+  // 64 characters, as the CHECK constraint wants, with a line break and a forged finding.
+  std::string forged = "0123\nMISMATCH run 1: forged\x01";
+  forged += std::string(64 - forged.size(), 'f');
+  tamper(path(), {"runs_no_update"},
+         {"UPDATE runs SET inputs_hash = '" + forged + "' WHERE run_id = 2"});
+  const CommandResult r = at(ledger(), {"verify"});
+  ASSERT_EQ(r.exit_code, 7) << r.out << r.err;
+  EXPECT_TRUE(names(mismatches(r), "run 2", "inputs hash")) << r.out;
+  expect_one_line_per_finding(r);
 }
 
 TEST_F(VerifyLedgerTest, DamagedHeaderOrTruncatedFileFailsWithoutACrash) {
@@ -423,10 +569,11 @@ TEST_F(QueryLedgerTest, RunSummaryListsTheRunsAsRunsDoes) {
     SCOPED_TRACE(rows[i].dump());
     EXPECT_EQ(rows[i]["run_id"], static_cast<int>(i) + 1);
     EXPECT_EQ(rows[i]["strategy"], kStrategies[i]);
-    if (i < 3)
+    if (i < 3) {
       EXPECT_EQ(rows[i]["study"], "trend-lookbacks");
-    else
+    } else {
       EXPECT_TRUE(rows[i]["study"].is_null());
+    }
     EXPECT_EQ(rows[i]["stale"], 0);
     EXPECT_TRUE(rows[i]["revises_run_id"].is_null());
     EXPECT_EQ(rows[i]["alpha"].get<double>(), listed[i]["alpha"].get<double>());
