@@ -498,22 +498,33 @@ void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std
     for (auto id : runs) print_run_text(out, ledger::load_run(ledger, id));
     return;
   }
+  // Many runs: one line each, read in one query (runs of one command have consecutive ids).
   Table table;
   table.header = {"run",  "strategy", "periods", "alpha (per period)", "alpha a year", "t", "p",
                   "beta", "R2",       "errors"};
   table.right_aligned = {true, false, true, true, true, true, true, true, true, false};
-  for (auto id : runs) {
-    const auto run = ledger::load_run(ledger, id);
-    const auto& alpha = run["coefficients"][0];
-    const auto& stats = run["statistics"];
+  ledger::RunFilter filter;
+  if (!runs.empty()) {
+    filter.first_run = *std::min_element(runs.begin(), runs.end());
+    filter.last_run = *std::max_element(runs.begin(), runs.end());
+  }
+  const std::set<std::int64_t> wanted(runs.begin(), runs.end());
+  const auto number = [](double v, int digits) {
+    return std::isnan(v) ? std::string("n/a") : fmt::format("{:.{}f}", v, digits);
+  };
+  const auto summaries =
+      runs.empty() ? std::vector<ledger::RunSummary>{} : ledger::list_runs(ledger, filter);
+  for (const auto& r : summaries) {
+    if (wanted.count(r.run_id) == 0) continue;
     table.rows.push_back(
-        {std::to_string(id), run["strategy"].get<std::string>(),
-         std::to_string(run["sample"]["observations"].get<int>()), fixed(alpha["estimate"], 6),
-         pct(stats["alpha_annualized"]), fixed(alpha["t_stat"], 2), p_text(alpha["p_value"]),
-         fixed(run["coefficients"][1]["estimate"], 3), fixed(stats["r_squared"], 3),
-         stats["errors"].get<std::string>() +
-             (stats["errors"] == "newey-west" ? fmt::format(" ({} lags)", stats["lags"].get<int>())
-                                              : "")});
+        {std::to_string(r.run_id), r.strategy, std::to_string(r.observations), number(r.alpha, 6),
+         std::isnan(r.alpha_annualized) ? "n/a" : fmt::format("{:+.2f}%", 100 * r.alpha_annualized),
+         number(r.alpha_t, 2),
+         std::isnan(r.alpha_p) ? "n/a"
+         : r.alpha_p < 0.0001  ? "<0.0001"
+                               : fmt::format("{:.4f}", r.alpha_p),
+         number(r.beta, 3), number(r.r_squared, 3),
+         r.errors + (r.errors == "newey-west" ? fmt::format(" ({} lags)", r.lags) : "")});
   }
   if (format == Format::csv) {
     print_csv(out, table);

@@ -445,9 +445,12 @@ std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter) {
       "run_inputs i JOIN series_versions v ON v.version_id = i.version_id WHERE i.run_id = "
       "r.run_id AND EXISTS (SELECT 1 FROM series_versions w WHERE w.series_id = v.series_id AND "
       "w.version > v.version)) FROM runs r WHERE (?1 = '' OR r.strategy = ?1) AND (?2 = '' OR "
-      "r.study = ?2) ORDER BY r.run_id");
+      "r.study = ?2) AND (?3 = 0 OR r.run_id >= ?3) AND (?4 = 0 OR r.run_id <= ?4) ORDER BY "
+      "r.run_id");
   q.bind(1, filter.strategy);
   q.bind(2, filter.study);
+  q.bind(3, filter.first_run);
+  q.bind(4, filter.last_run);
   std::vector<RunSummary> out;
   while (q.executeStep()) {
     RunSummary s;

@@ -69,8 +69,10 @@ int count_strategy_runs(Ledger& ledger, const std::string& strategy);
 nlohmann::ordered_json load_run(Ledger& ledger, std::int64_t run_id);
 
 struct RunFilter {
-  std::string strategy;
-  std::string study;
+  std::string strategy;        // empty: any
+  std::string study;           // empty: any
+  std::int64_t first_run = 0;  // run ids from .. to (inclusive); 0: unbounded
+  std::int64_t last_run = 0;
 };
 
 // One line of `alphatrail runs`.
