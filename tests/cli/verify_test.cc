@@ -31,6 +31,7 @@
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::build_six_run_ledger;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
@@ -137,38 +138,6 @@ std::string text_of(SQLite::Database& db, const std::string& sql) {
   return db.execAndGet(sql).getString();
 }
 
-// The six-run ledger these tests start from, built from the demo's data files exactly as the
-// demo's main job records it: benchmark alder-vale-composite (levels), rate alder-vale-bills,
-// factor set brindle-styles, six strategies; runs 1-3 'trend-*' (study trend-lookbacks), runs
-// 4-6 carry-g10, defensive-tilt and crash-hedge. (The demo itself goes on to restate the index
-// and re-run; these tests make their own revisions.) Returns an error text, empty on success.
-std::string build_six_run_ledger(const fs::path& demo, const fs::path& ledger) {
-  const fs::path data = demo.string() + "-data";
-  const auto file = [&](const char* name) { return (data / name).string(); };
-  const std::vector<std::vector<std::string>> steps{
-      {"--ledger", demo.string(), "demo"},
-      {"--ledger", ledger.string(), "ingest", "benchmark", file("alder-vale-composite.csv"),
-       "--levels", "--name", "alder-vale-composite"},
-      {"--ledger", ledger.string(), "ingest", "rate", file("alder-vale-bills.csv"), "--name",
-       "alder-vale-bills"},
-      {"--ledger", ledger.string(), "ingest", "factor", file("brindle-styles.csv"), "--name",
-       "brindle-styles"},
-      {"--ledger", ledger.string(), "ingest", "strategy", file("brindle-hollow-strategies.csv"),
-       "--percent"},
-      {"--ledger", ledger.string(), "evaluate", "trend-*", "--benchmark", "alder-vale-composite",
-       "--rate", "alder-vale-bills", "--factor", "brindle-styles", "--study", "trend-lookbacks",
-       "--note", "demo: trend look-back variants"},
-      {"--ledger", ledger.string(), "evaluate", "carry-g10", "defensive-tilt", "crash-hedge",
-       "--benchmark", "alder-vale-composite", "--rate", "alder-vale-bills", "--factor",
-       "brindle-styles", "--note", "demo: other books"}};
-  for (const auto& args : steps) {
-    const CommandResult r = run_alphatrail(args);
-    if (r.exit_code != 0) return fmt::format("{} {} failed: {}", args[2], args.size() > 3 ? args[3] : "", r.err);
-  }
-  SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
-  db.exec("PRAGMA wal_checkpoint(TRUNCATE)");
-  return "";
-}
 
 // The six-run ledger, built once; every test works on its own copy.
 class VerifyLedgerTest : public ::testing::Test {

@@ -43,6 +43,12 @@ CommandResult run_alphatrail(const std::vector<std::string>& args,
 CommandResult run_program(const std::vector<std::string>& argv,
                           const std::vector<std::string>& env = {});
 
+// Builds the six-run ledger the track-record tests start from, from the demo's data files
+// (the demo at `demo` also restates and re-runs; `ledger` stops after the first six runs).
+// Returns an error text, empty on success.
+std::string build_six_run_ledger(const std::filesystem::path& demo,
+                                 const std::filesystem::path& ledger);
+
 // Reads a whole file.
 std::string read_file(const std::filesystem::path& path);
 
