@@ -24,6 +24,7 @@
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::contains;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
@@ -36,10 +37,6 @@ constexpr const char* kSeedCsv =
     "2021-01-31,0.01\n"
     "2021-02-28,-0.005\n"
     "2021-03-31,0.012\n";
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
 
 // Returns the schema and every row of every table, in rowid order, as text: two dumps are
 // equal exactly when the ledger's content is.

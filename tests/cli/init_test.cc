@@ -18,15 +18,12 @@ namespace {
 
 namespace fs = std::filesystem;
 using alphatrail::ledger::current_schema_version;
+using alphatrail::testing::contains;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::source_path;
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
 
 int pragma(const fs::path& path, const std::string& name) {
   SQLite::Database db(path.string(), SQLite::OPEN_READONLY);

@@ -36,6 +36,7 @@ extern char** environ;
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::contains;
 using alphatrail::testing::build_six_run_ledger;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::read_file;
@@ -46,10 +47,6 @@ using Clock = std::chrono::steady_clock;
 constexpr const char* kBenchmark = "alder-vale-composite";
 constexpr const char* kRate = "alder-vale-bills";
 constexpr const char* kFactors = "brindle-styles";
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
 
 CommandResult at(const std::string& ledger, const std::vector<std::string>& args,
                  const std::vector<std::string>& env = {}) {

@@ -18,25 +18,16 @@
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::contains;
+using alphatrail::testing::lines_of;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::source_path;
 using nlohmann::json;
 
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
-
 std::string fixture(const std::string& name) {
   return source_path("fixtures/evaluate/" + name).string();
-}
-
-std::vector<std::string> lines_of(const std::string& text) {
-  std::vector<std::string> lines;
-  std::istringstream in(text);
-  for (std::string line; std::getline(in, line);) lines.push_back(line);
-  return lines;
 }
 
 std::vector<std::string> split_csv_line(const std::string& line) {

@@ -16,20 +16,11 @@
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::contains;
+using alphatrail::testing::lines_of;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
-
-std::vector<std::string> lines_of(const std::string& text) {
-  std::vector<std::string> lines;
-  std::istringstream in(text);
-  for (std::string line; std::getline(in, line);) lines.push_back(line);
-  return lines;
-}
 
 bool is_hex64(const std::string& s) { return std::regex_match(s, std::regex("[0-9a-f]{64}")); }
 

@@ -25,6 +25,8 @@
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::contains;
+using alphatrail::testing::lines_of;
 using alphatrail::testing::build_six_run_ledger;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::read_file;
@@ -35,17 +37,6 @@ using nlohmann::json;
 constexpr const char* kBenchmark = "alder-vale-composite";
 constexpr const char* kRate = "alder-vale-bills";
 constexpr const char* kFactors = "brindle-styles";
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
-
-std::vector<std::string> lines_of(const std::string& text) {
-  std::vector<std::string> lines;
-  std::istringstream in(text);
-  for (std::string line; std::getline(in, line);) lines.push_back(line);
-  return lines;
-}
 
 CommandResult at(const std::string& ledger, const std::vector<std::string>& args) {
   std::vector<std::string> all{"--ledger", ledger};

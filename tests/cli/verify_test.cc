@@ -31,6 +31,8 @@
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::contains;
+using alphatrail::testing::lines_of;
 using alphatrail::testing::build_six_run_ledger;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::read_file;
@@ -40,17 +42,6 @@ using nlohmann::json;
 
 constexpr const char* kStrategies[] = {"trend-12m", "trend-3m",       "trend-6m",
                                        "carry-g10", "defensive-tilt", "crash-hedge"};
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
-
-std::vector<std::string> lines_of(const std::string& text) {
-  std::vector<std::string> lines;
-  std::istringstream in(text);
-  for (std::string line; std::getline(in, line);) lines.push_back(line);
-  return lines;
-}
 
 CommandResult at(const std::string& ledger, const std::vector<std::string>& args) {
   std::vector<std::string> all{"--ledger", ledger};

@@ -26,15 +26,12 @@ namespace fs = std::filesystem;
 namespace ledger = alphatrail::ledger;
 using alphatrail::Error;
 using alphatrail::ExitCode;
+using alphatrail::testing::contains;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::source_path;
-
-bool contains(const std::string& text, const std::string& part) {
-  return text.find(part) != std::string::npos;
-}
 
 SQLite::Database memory_db() {
   return SQLite::Database(":memory:", SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);

@@ -49,6 +49,12 @@ CommandResult run_program(const std::vector<std::string>& argv,
 std::string build_six_run_ledger(const std::filesystem::path& demo,
                                  const std::filesystem::path& ledger);
 
+// Returns true when text holds part.
+bool contains(const std::string& text, const std::string& part);
+
+// Splits text into its lines (without line ends).
+std::vector<std::string> lines_of(const std::string& text);
+
 // Reads a whole file.
 std::string read_file(const std::filesystem::path& path);
 
