@@ -197,10 +197,10 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
   }
 
   // Strategies and the frequency each is evaluated at.
-  std::vector<ledger::LoadedVersion> strategies;
-  strategies.reserve(strategy_names.size());
-  for (const auto& name : strategy_names)
-    strategies.push_back(ledger::load_version(ledger, name, pinned(rq, name)));
+  std::vector<ledger::VersionRequest> wanted;
+  wanted.reserve(strategy_names.size());
+  for (const auto& name : strategy_names) wanted.push_back({name, pinned(rq, name)});
+  std::vector<ledger::LoadedVersion> strategies = ledger::load_versions(ledger, wanted);
 
   const auto detected = [](const ledger::VersionInfo& info, const std::string& what) {
     if (!info.frequency)

@@ -211,6 +211,16 @@ CommonSample::CommonSample(const std::vector<NamedSeries>& shared, const AlignOp
   check_names(names_);
   for (const NamedSeries& in : shared)
     values_.push_back(spread(in.series.keys, in.series.values, keys_));
+
+  std::vector<const std::vector<double>*> columns;
+  for (const auto& v : values_) columns.push_back(&v);
+  shared_alone_ = classify(frequency_, keys_, names_, columns, coverage_, options_);
+  kept_positions_.reserve(shared_alone_.keys.size());
+  std::size_t i = 0;
+  for (const std::int64_t key : shared_alone_.keys) {
+    while (keys_[i] != key) ++i;
+    kept_positions_.push_back(i);
+  }
 }
 
 Aligned CommonSample::align(const NamedSeries& first) const {
@@ -221,6 +231,26 @@ Aligned CommonSample::align(const NamedSeries& first) const {
   check_names(names);
   std::vector<InputCoverage> coverage{coverage_of(first)};
   coverage.insert(coverage.end(), coverage_.begin(), coverage_.end());
+
+  // A series finite on every shared key cannot drop a period or narrow the common range, so
+  // the shared inputs' own alignment stands, with the series' values added in front.
+  const auto& values = first.series.values;
+  if (!names_.empty() && first.series.keys == keys_ &&
+      std::none_of(values.begin(), values.end(), [](double v) { return std::isnan(v); })) {
+    Aligned out;
+    out.frequency = f;
+    out.keys = shared_alone_.keys;
+    out.names = std::move(names);
+    out.columns.reserve(1 + values_.size());
+    auto& own = out.columns.emplace_back();
+    own.reserve(kept_positions_.size());
+    for (const std::size_t i : kept_positions_) own.push_back(values[i]);
+    out.columns.insert(out.columns.end(), shared_alone_.columns.begin(),
+                       shared_alone_.columns.end());
+    out.report = shared_alone_.report;
+    out.report.coverage = std::move(coverage);
+    return out;
+  }
 
   const std::vector<std::int64_t> keys = merge_keys(first.series.keys, keys_);
   const std::vector<double> own = spread(first.series.keys, first.series.values, keys);

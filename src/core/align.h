@@ -99,6 +99,10 @@ class CommonSample {
   std::vector<std::int64_t> keys_;           // union of the shared keys
   std::vector<std::vector<double>> values_;  // values_[j][i] at keys_[i], NaN if absent
   std::vector<InputCoverage> coverage_;
+  // The shared inputs aligned alone, and which of keys_ they kept: a series with a finite
+  // value on every one of keys_ (the usual case) aligns to exactly this, without classifying.
+  Aligned shared_alone_;
+  std::vector<std::size_t> kept_positions_;
 };
 
 // Returns every period key from the period containing `from` to the one containing `to`

@@ -5,9 +5,9 @@
 #include <cmath>
 #include <map>
 #include <numeric>
-#include <thread>
 
 #include "core/error.h"
+#include "core/parallel.h"
 
 namespace alphatrail::core {
 
@@ -97,26 +97,32 @@ double correlation(const std::vector<double>& x, const std::vector<double>& y) {
   return sxy / std::sqrt(sxx * syy);
 }
 
-// Slope of y on x with an intercept over the periods selected by `keep`; NaN below 3.
+// Slope of y on x with an intercept over the periods where x > 0 (up) or x < 0 (down); NaN
+// below 3 such periods. Two passes (means, then cross products), no copies: it runs for every
+// strategy of a batch.
 double conditional_slope(const std::vector<double>& y, const std::vector<double>& x, bool up,
                          int& count) {
-  std::vector<double> xs;
-  std::vector<double> ys;
+  const auto chosen = [up](double v) { return up ? v > 0 : v < 0; };
+  std::size_t n = 0;
+  double sx = 0;
+  double sy = 0;
   for (std::size_t i = 0; i < x.size(); ++i)
-    if (up ? x[i] > 0 : x[i] < 0) {
-      xs.push_back(x[i]);
-      ys.push_back(y[i]);
+    if (chosen(x[i])) {
+      ++n;
+      sx += x[i];
+      sy += y[i];
     }
-  count = static_cast<int>(xs.size());
-  if (xs.size() < 3) return NAN;
-  const double mx = mean(xs);
-  const double my = mean(ys);
+  count = static_cast<int>(n);
+  if (n < 3) return NAN;
+  const double mx = sx / static_cast<double>(n);
+  const double my = sy / static_cast<double>(n);
   double sxy = 0;
   double sxx = 0;
-  for (std::size_t i = 0; i < xs.size(); ++i) {
-    sxy += (xs[i] - mx) * (ys[i] - my);
-    sxx += (xs[i] - mx) * (xs[i] - mx);
-  }
+  for (std::size_t i = 0; i < x.size(); ++i)
+    if (chosen(x[i])) {
+      sxy += (x[i] - mx) * (y[i] - my);
+      sxx += (x[i] - mx) * (x[i] - mx);
+    }
   return sxx > 0 ? sxy / sxx : NAN;
 }
 
@@ -350,7 +356,7 @@ std::vector<Evaluator::Outcome> Evaluator::evaluate_many(const std::vector<Retur
                                                          int threads, bool keep_series) const {
   std::vector<Outcome> outcomes(strategies.size());
   // Blocks bound the memory: each prepared strategy holds its aligned copy of every input.
-  constexpr std::size_t kBlock = 64;
+  constexpr std::size_t kBlock = 128;
   for (std::size_t begin = 0; begin < strategies.size(); begin += kBlock) {
     const std::size_t end = std::min(strategies.size(), begin + kBlock);
     evaluate_block(strategies, begin, end, threads, keep_series, outcomes);
@@ -362,7 +368,11 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
                                std::size_t end, int threads, bool keep_series,
                                std::vector<Outcome>& outcomes) const {
   std::vector<Prepared> prepared(end - begin);
-  for (std::size_t i = begin; i < end; ++i) prepared[i - begin] = prepare(strategies[i]);
+  parallel_ranges(prepared.size(), worker_count(prepared.size(), 8, threads),
+                  [&](std::size_t first, std::size_t last) {
+                    for (std::size_t i = first; i < last; ++i)
+                      prepared[i] = prepare(strategies[begin + i]);
+                  });
 
   // Strategies whose kept periods are the same share a design matrix.
   std::map<std::vector<std::int64_t>, std::vector<std::size_t>> groups;
@@ -374,6 +384,10 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
     }
     groups[prepared[i - begin].aligned.keys].push_back(i);
   }
+  const auto finish_member = [&](std::size_t i, OlsResult&& fit) {
+    outcomes[i].result = finish(std::move(prepared[i - begin]), std::move(fit));
+    if (!keep_series) drop_series(*outcomes[i].result);
+  };
   for (auto& [keys, members] : groups) {
     const Design d = build_design(prepared[members.front() - begin].aligned, factor_names_);
     Eigen::MatrixXd Y(d.X.rows(), static_cast<Eigen::Index>(members.size()));
@@ -383,31 +397,30 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
       const auto& rf = a.column("rate");
       for (Eigen::Index t = 0; t < Y.rows(); ++t) Y(t, static_cast<Eigen::Index>(j)) = s[t] - rf[t];
     }
+    std::vector<OlsResult> fits;
     try {
-      std::vector<OlsResult> fits = fit_ols_many(d.X, Y, term_names_, true, settings_.covariance,
-                                                 settings_.confidence, threads);
-      for (std::size_t j = 0; j < members.size(); ++j)
-        outcomes[members[j]].result =
-            finish(std::move(prepared[members[j] - begin]), std::move(fits[j]));
+      fits = fit_ols_many(d.X, Y, term_names_, true, settings_.covariance, settings_.confidence,
+                          threads);
     } catch (const Error&) {
       // One column can fail where others do not (e.g. an exact fit): fit them one by one.
       for (std::size_t j = 0; j < members.size(); ++j) {
         try {
           Eigen::VectorXd y = Y.col(static_cast<Eigen::Index>(j));
-          OlsResult fit =
-              fit_ols(d.X, y, term_names_, true, settings_.covariance, settings_.confidence);
-          outcomes[members[j]].result =
-              finish(std::move(prepared[members[j] - begin]), std::move(fit));
+          finish_member(members[j], fit_ols(d.X, y, term_names_, true, settings_.covariance,
+                                            settings_.confidence));
         } catch (const Error& e) {
           outcomes[members[j]].error = e.what();
           outcomes[members[j]].error_code = static_cast<int>(e.code());
         }
       }
+      continue;
     }
+    parallel_ranges(members.size(), worker_count(members.size(), 8, threads),
+                    [&](std::size_t first, std::size_t last) {
+                      for (std::size_t j = first; j < last; ++j)
+                        finish_member(members[j], std::move(fits[j]));
+                    });
   }
-  if (!keep_series)
-    for (std::size_t i = begin; i < end; ++i)
-      if (outcomes[i].result) drop_series(*outcomes[i].result);
 }
 
 const std::vector<std::string>& standard_cautions() {

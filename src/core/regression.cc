@@ -6,9 +6,9 @@
 #include <cstdio>
 #include <exception>
 #include <limits>
-#include <thread>
 
 #include "core/error.h"
+#include "core/parallel.h"
 #include "core/student_t.h"
 
 namespace alphatrail::core {
@@ -458,21 +458,11 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
     }
   };
 
-  int workers =
-      threads > 0 ? threads : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
-  workers = static_cast<int>(std::min<Eigen::Index>(workers, std::max<Eigen::Index>(1, m / 16)));
-  if (workers <= 1) {
-    run_range(0, m);
-  } else {
-    std::vector<std::thread> pool;
-    const Eigen::Index chunk = (m + workers - 1) / workers;
-    for (int w = 0; w < workers; ++w) {
-      const Eigen::Index begin = std::min<Eigen::Index>(m, w * chunk);
-      const Eigen::Index end = std::min<Eigen::Index>(m, begin + chunk);
-      pool.emplace_back(run_range, begin, end);
-    }
-    for (auto& thread : pool) thread.join();
-  }
+  parallel_ranges(static_cast<std::size_t>(m),
+                  worker_count(static_cast<std::size_t>(m), 16, threads),
+                  [&](std::size_t begin, std::size_t end) {
+                    run_range(static_cast<Eigen::Index>(begin), static_cast<Eigen::Index>(end));
+                  });
   for (const auto& failure : failures) {
     if (failure) std::rethrow_exception(failure);
   }

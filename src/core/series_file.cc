@@ -16,6 +16,7 @@
 
 #include "core/csv.h"
 #include "core/error.h"
+#include "core/parallel.h"
 
 namespace alphatrail::core {
 
@@ -493,32 +494,6 @@ std::size_t parse_rows(CsvReader reader, const Layout& layout, std::size_t first
     ++row;
   }
   return row - first_row;
-}
-
-// Runs task(0..tasks-1) on up to `tasks` threads (task 0 on the caller's) and rethrows the
-// error of the lowest-numbered failing task, so the outcome does not depend on timing.
-template <typename Task>
-void run_parallel(std::size_t tasks, const Task& task) {
-  std::vector<std::exception_ptr> errors(tasks);
-  auto guarded = [&](std::size_t k) {
-    try {
-      task(k);
-    } catch (...) {
-      errors[k] = std::current_exception();
-    }
-  };
-  std::vector<std::thread> threads;
-  for (std::size_t k = 1; k < tasks; ++k) {
-    try {
-      threads.emplace_back(guarded, k);
-    } catch (const std::system_error&) {
-      guarded(k);  // no thread to spare: do the work here
-    }
-  }
-  if (tasks > 0) guarded(0);
-  for (auto& t : threads) t.join();
-  for (const auto& e : errors)
-    if (e) std::rethrow_exception(e);
 }
 
 double median_of(std::vector<double>& v) {

@@ -6,6 +6,7 @@
 #include <charconv>
 #include <cmath>
 #include <cstring>
+#include <optional>
 
 #include "core/error.h"
 #include "core/sha256.h"
@@ -26,6 +27,21 @@ char* write_date(char* p, core::Day day) {
   p[8] = static_cast<char>('0' + c.day / 10);
   p[9] = static_cast<char>('0' + c.day % 10);
   return p + 10;
+}
+
+// Reads the "YYYY-MM-DD" that encode_values_json writes; nullopt for anything else. Decoding
+// is the hot path of every evaluation, so this skips the general date parser.
+std::optional<core::Day> read_date(const char* p) {
+  const auto digit = [&](int i) { return static_cast<unsigned>(p[i] - '0'); };
+  for (int i : {0, 1, 2, 3, 5, 6, 8, 9})
+    if (digit(i) > 9) return std::nullopt;
+  if (p[4] != '-' || p[7] != '-') return std::nullopt;
+  const int year = static_cast<int>(digit(0) * 1000 + digit(1) * 100 + digit(2) * 10 + digit(3));
+  const int month = static_cast<int>(digit(5) * 10 + digit(6));
+  const int day = static_cast<int>(digit(8) * 10 + digit(9));
+  if (month < 1 || month > 12 || day < 1 || day > core::days_in_month(year, month))
+    return std::nullopt;
+  return core::to_day({year, month, day});
 }
 
 [[noreturn]] void malformed(const std::string& name, std::size_t at) {
@@ -81,8 +97,8 @@ ColumnData decode_values_json(const std::string& name, std::string_view json) {
   while (true) {
     expect('"');
     if (i + 10 > json.size()) malformed(name, i);
-    const auto date = core::parse_date(json.substr(i, 10));
-    if (date.status != core::DateParse::ok || date.month_only) malformed(name, i);
+    const auto date = read_date(json.data() + i);
+    if (!date) malformed(name, i);
     i += 10;
     expect('"');
     expect(':');
@@ -94,8 +110,8 @@ ColumnData decode_values_json(const std::string& name, std::string_view json) {
       if (ec != std::errc() || !std::isfinite(value)) malformed(name, i);  // JSON has no nan/inf
       i = static_cast<std::size_t>(end - json.data());
     }
-    if (!column.dates.empty() && date.day <= column.dates.back()) malformed(name, i);  // ascending
-    column.dates.push_back(date.day);
+    if (!column.dates.empty() && *date <= column.dates.back()) malformed(name, i);  // ascending
+    column.dates.push_back(*date);
     column.values.push_back(value);
     if (i < json.size() && json[i] == ',') {
       ++i;

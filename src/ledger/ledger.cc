@@ -155,6 +155,12 @@ int Ledger::schema_version() {
   return pragma_int(*db_, "user_version");
 }
 
+CachedStatement Ledger::statement(const std::string& sql) {
+  auto& slot = statements_[sql];
+  if (!slot) slot = std::make_unique<SQLite::Statement>(*db_, sql);
+  return CachedStatement(*slot);
+}
+
 void Ledger::write_transaction(const std::function<void()>& work) {
   db_->exec("BEGIN IMMEDIATE");
   try {

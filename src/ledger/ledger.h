@@ -6,12 +6,14 @@
 #pragma once
 
 #include <SQLiteCpp/Database.h>
+#include <SQLiteCpp/Statement.h>
 
 #include <filesystem>
 #include <functional>
 #include <memory>
 #include <ostream>
 #include <string>
+#include <unordered_map>
 
 namespace alphatrail::ledger {
 
@@ -28,6 +30,24 @@ enum class OpenMode {
 // ./alphatrail.db.
 std::filesystem::path resolve_ledger_path(const std::string& option_value);
 
+// A prepared statement borrowed from a Ledger's cache; handing it back resets it and clears
+// its bindings, so a finished read never holds a snapshot open. Use it as a SQLite::Statement.
+class CachedStatement {
+ public:
+  explicit CachedStatement(SQLite::Statement& statement) : statement_(&statement) {}
+  ~CachedStatement() {
+    statement_->tryReset();
+    statement_->clearBindings();
+  }
+  CachedStatement(const CachedStatement&) = delete;
+  CachedStatement& operator=(const CachedStatement&) = delete;
+  SQLite::Statement* operator->() { return statement_; }
+  SQLite::Statement& operator*() { return *statement_; }
+
+ private:
+  SQLite::Statement* statement_;
+};
+
 class Ledger {
  public:
   // Opens (and when needed creates or upgrades) the ledger; notices go to `notices`. An older
@@ -42,10 +62,17 @@ class Ledger {
   // Runs work inside BEGIN IMMEDIATE ... COMMIT; any exception rolls everything back.
   void write_transaction(const std::function<void()>& work);
 
+  // Returns the statement for `sql`, prepared once per connection: statements run once per
+  // run or per series (thousands per command) spend more time being parsed than executed.
+  // Do not borrow the same statement twice at once.
+  CachedStatement statement(const std::string& sql);
+
  private:
   Ledger(std::filesystem::path path, std::unique_ptr<SQLite::Database> db);
   std::filesystem::path path_;
   std::unique_ptr<SQLite::Database> db_;
+  // Declared after db_, so destroyed before the connection closes.
+  std::unordered_map<std::string, std::unique_ptr<SQLite::Statement>> statements_;
 };
 
 // Returns the schema version this binary writes (the number of embedded migrations).

@@ -157,13 +157,16 @@ std::string chain_hash(const std::string& previous_record_hash, const std::strin
 }
 
 std::int64_t store_run(Ledger& ledger, const NewRun& run) {
-  auto& db = ledger.db();
   const core::EvaluationResult& r = *run.result;
   const auto& alpha = r.fit.coefficients.at(0);
   const auto& beta = r.fit.coefficients.at(1);
 
   RunRow row;
-  row.run_id = db.execAndGet("SELECT coalesce(max(run_id), 0) + 1 FROM runs").getInt64();
+  {
+    auto next = ledger.statement("SELECT coalesce(max(run_id), 0) + 1 FROM runs");
+    next->executeStep();
+    row.run_id = next->getColumn(0).getInt64();
+  }
   row.created_at = utc_now();
   row.engine_version = kEngineVersion;
   row.strategy = run.strategy;
@@ -192,8 +195,8 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   row.r_squared = r.fit.r_squared;
   row.result_json = result_json(r, run.reading).dump();
   {
-    SQLite::Statement last(db, "SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
-    row.previous_record_hash = last.executeStep() ? last.getColumn(0).getString() : kGenesisHash;
+    auto last = ledger.statement("SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
+    row.previous_record_hash = last->executeStep() ? last->getColumn(0).getString() : kGenesisHash;
   }
   for (const auto& in : run.inputs)
     row.inputs.push_back(
@@ -201,8 +204,7 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   row.coefficients = r.fit.coefficients;
   row.record_hash = chain_hash(row.previous_record_hash, canonical_run_record(row));
 
-  SQLite::Statement insert(
-      db,
+  auto insert = ledger.statement(
       "INSERT INTO runs (run_id, created_at, engine_version, strategy, benchmark, rate, factors, "
       "study, note, revises_run_id, parameters_json, inputs_hash, frequency, first_period, "
       "last_period, observations, dropped_periods, errors, lags, alpha, alpha_std_error, alpha_t, "
@@ -212,67 +214,66 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   int i = 1;
   const auto bind_optional = [&](const std::optional<std::string>& v) {
     if (v)
-      insert.bind(i, *v);
+      insert->bind(i, *v);
     else
-      insert.bind(i);
+      insert->bind(i);
     ++i;
   };
-  insert.bind(i++, row.run_id);
-  insert.bind(i++, row.created_at);
-  insert.bind(i++, row.engine_version);
-  insert.bind(i++, row.strategy);
-  insert.bind(i++, row.benchmark);
-  insert.bind(i++, row.rate);
+  insert->bind(i++, row.run_id);
+  insert->bind(i++, row.created_at);
+  insert->bind(i++, row.engine_version);
+  insert->bind(i++, row.strategy);
+  insert->bind(i++, row.benchmark);
+  insert->bind(i++, row.rate);
   bind_optional(row.factors);
   bind_optional(row.study);
   bind_optional(row.note);
   if (row.revises_run_id)
-    insert.bind(i++, *row.revises_run_id);
+    insert->bind(i++, *row.revises_run_id);
   else
-    insert.bind(i++);
-  insert.bind(i++, row.parameters_json);
-  insert.bind(i++, row.inputs_hash);
-  insert.bind(i++, row.frequency);
-  insert.bind(i++, row.first_period);
-  insert.bind(i++, row.last_period);
-  insert.bind(i++, row.observations);
-  insert.bind(i++, row.dropped_periods);
-  insert.bind(i++, row.errors);
-  insert.bind(i++, row.lags);
+    insert->bind(i++);
+  insert->bind(i++, row.parameters_json);
+  insert->bind(i++, row.inputs_hash);
+  insert->bind(i++, row.frequency);
+  insert->bind(i++, row.first_period);
+  insert->bind(i++, row.last_period);
+  insert->bind(i++, row.observations);
+  insert->bind(i++, row.dropped_periods);
+  insert->bind(i++, row.errors);
+  insert->bind(i++, row.lags);
   for (double v : {row.alpha, row.alpha_std_error, row.alpha_t, row.alpha_p, row.alpha_annualized,
                    row.beta, row.beta_t, row.r_squared})
-    bind_double(insert, i++, v);
-  insert.bind(i++, row.result_json);
-  insert.bind(i++, row.previous_record_hash);
-  insert.bind(i++, row.record_hash);
-  insert.exec();
+    bind_double(*insert, i++, v);
+  insert->bind(i++, row.result_json);
+  insert->bind(i++, row.previous_record_hash);
+  insert->bind(i++, row.record_hash);
+  insert->exec();
 
-  SQLite::Statement add_input(db,
-                              "INSERT INTO run_inputs (run_id, role, position, version_id, "
-                              "columns) VALUES (?, ?, ?, ?, ?)");
+  auto add_input = ledger.statement(
+      "INSERT INTO run_inputs (run_id, role, position, version_id, "
+      "columns) VALUES (?, ?, ?, ?, ?)");
   for (const auto& in : row.inputs) {
-    add_input.reset();
-    add_input.bind(1, row.run_id);
-    add_input.bind(2, in.role);
-    add_input.bind(3, in.position);
-    add_input.bind(4, in.version_id);
-    add_input.bind(5, in.columns);
-    add_input.exec();
+    add_input->reset();
+    add_input->bind(1, row.run_id);
+    add_input->bind(2, in.role);
+    add_input->bind(3, in.position);
+    add_input->bind(4, in.version_id);
+    add_input->bind(5, in.columns);
+    add_input->exec();
   }
-  SQLite::Statement add_coefficient(
-      db,
+  auto add_coefficient = ledger.statement(
       "INSERT INTO run_coefficients (run_id, position, term, estimate, std_error, t_stat, "
       "p_value, ci_low, ci_high) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?)");
   for (std::size_t c = 0; c < row.coefficients.size(); ++c) {
     const auto& co = row.coefficients[c];
-    add_coefficient.reset();
-    add_coefficient.bind(1, row.run_id);
-    add_coefficient.bind(2, static_cast<int>(c + 1));
-    add_coefficient.bind(3, co.term);
+    add_coefficient->reset();
+    add_coefficient->bind(1, row.run_id);
+    add_coefficient->bind(2, static_cast<int>(c + 1));
+    add_coefficient->bind(3, co.term);
     int k = 4;
     for (double v : {co.estimate, co.std_error, co.t_stat, co.p_value, co.ci_low, co.ci_high})
-      bind_double(add_coefficient, k++, v);
-    add_coefficient.exec();
+      bind_double(*add_coefficient, k++, v);
+    add_coefficient->exec();
   }
   return row.run_id;
 }
@@ -379,17 +380,17 @@ std::vector<RunInput> read_run_inputs(Ledger& ledger, std::int64_t run_id) {
 
 int count_study_runs(Ledger& ledger, const std::string& study) {
   if (study.empty()) return 0;
-  SQLite::Statement q(ledger.db(), "SELECT count(*) FROM runs WHERE study = ?");
-  q.bind(1, study);
-  q.executeStep();
-  return q.getColumn(0).getInt();
+  auto q = ledger.statement("SELECT count(*) FROM runs WHERE study = ?");
+  q->bind(1, study);
+  q->executeStep();
+  return q->getColumn(0).getInt();
 }
 
 int count_strategy_runs(Ledger& ledger, const std::string& strategy) {
-  SQLite::Statement q(ledger.db(), "SELECT count(*) FROM runs WHERE strategy = ?");
-  q.bind(1, strategy);
-  q.executeStep();
-  return q.getColumn(0).getInt();
+  auto q = ledger.statement("SELECT count(*) FROM runs WHERE strategy = ?");
+  q->bind(1, strategy);
+  q->executeStep();
+  return q->getColumn(0).getInt();
 }
 
 ordered_json load_run(Ledger& ledger, std::int64_t run_id) {

@@ -16,6 +16,7 @@
 #include <thread>
 
 #include "core/error.h"
+#include "core/parallel.h"
 
 namespace alphatrail::ledger {
 
@@ -292,41 +293,65 @@ std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name
   return out;
 }
 
-LoadedVersion load_version(Ledger& ledger, const std::string& name, std::optional<int> version) {
-  SQLite::Statement q(ledger.db(),
-                      fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id "
-                                  "= s.series_id WHERE s.name = ? AND (? IS NULL OR v.version = "
-                                  "?) ORDER BY v.version DESC LIMIT 1",
-                                  kVersionColumns));
-  q.bind(1, name);
-  if (version) {
-    q.bind(2, *version);
-    q.bind(3, *version);
-  } else {
-    q.bind(2);
-    q.bind(3);
-  }
-  if (!q.executeStep()) {
-    if (version) version_history(ledger, name);  // names an unknown series first
-    throw Error(ExitCode::not_found,
-                version
-                    ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
+std::vector<LoadedVersion> load_versions(Ledger& ledger,
+                                         const std::vector<VersionRequest>& requests) {
+  // Reading is SQLite's and serial; decoding the stored text is pure and shared out.
+  std::vector<LoadedVersion> loaded(requests.size());
+  struct Pending {
+    std::size_t version;
+    std::string name;
+    std::string text;
+  };
+  std::vector<Pending> pending;
+  for (std::size_t r = 0; r < requests.size(); ++r) {
+    const auto& [name, version] = requests[r];
+    {
+      auto q = ledger.statement(
+          fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = "
+                      "s.series_id WHERE s.name = ? AND (? IS NULL OR v.version = ?) ORDER BY "
+                      "v.version DESC LIMIT 1",
+                      kVersionColumns));
+      q->bind(1, name);
+      if (version) {
+        q->bind(2, *version);
+        q->bind(3, *version);
+      }
+      if (!q->executeStep()) {
+        if (version) version_history(ledger, name);  // names an unknown series first
+        throw Error(
+            ExitCode::not_found,
+            version ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
                                   "lists its versions",
                                   name, *version, name)
                     : fmt::format("no series named '{}'; `alphatrail series` lists them", name));
+      }
+      loaded[r].info = read_version_info(*q);
+    }
+    auto cols = ledger.statement(
+        "SELECT column_name, values_json FROM version_columns WHERE version_id = ? ORDER BY "
+        "position");
+    cols->bind(1, loaded[r].info.version_id);
+    while (cols->executeStep()) {
+      const auto* text = static_cast<const char*>(cols->getColumn(1).getText());
+      const auto size = static_cast<std::size_t>(cols->getColumn(1).getBytes());
+      pending.push_back({r, cols->getColumn(0).getString(), std::string(text, size)});
+    }
   }
-  LoadedVersion loaded{read_version_info(q), {}};
-  SQLite::Statement cols(ledger.db(),
-                         "SELECT column_name, values_json FROM version_columns WHERE version_id "
-                         "= ? ORDER BY position");
-  cols.bind(1, loaded.info.version_id);
-  while (cols.executeStep()) {
-    const auto* text = static_cast<const char*>(cols.getColumn(1).getText());
-    const auto size = static_cast<std::size_t>(cols.getColumn(1).getBytes());
-    loaded.columns.push_back(
-        decode_values_json(cols.getColumn(0).getString(), std::string_view(text, size)));
-  }
+  std::vector<ColumnData> decoded(pending.size());
+  core::parallel_ranges(pending.size(), core::worker_count(pending.size(), 8),
+                        [&](std::size_t begin, std::size_t end) {
+                          for (std::size_t i = begin; i < end; ++i) {
+                            decoded[i] = decode_values_json(pending[i].name, pending[i].text);
+                            std::string().swap(pending[i].text);  // keep the peak low
+                          }
+                        });
+  for (std::size_t i = 0; i < pending.size(); ++i)
+    loaded[pending[i].version].columns.push_back(std::move(decoded[i]));
   return loaded;
+}
+
+LoadedVersion load_version(Ledger& ledger, const std::string& name, std::optional<int> version) {
+  return std::move(load_versions(ledger, {{name, version}}).front());
 }
 
 }  // namespace alphatrail::ledger

@@ -1,16 +1,21 @@
 #include "core/align.h"
 
-#include <cmath>
-
 #include <gtest/gtest.h>
+
+#include <algorithm>
+#include <cmath>
 
 #include "core/error.h"
 
 namespace alphatrail::core {
 namespace {
 
-Day day(const char* iso) { return parse_date(iso).day; }
-std::int64_t month(const char* iso) { return period_key(Frequency::monthly, parse_date(iso).day); }
+Day day(const char* iso) {
+  return parse_date(iso).day;
+}
+std::int64_t month(const char* iso) {
+  return period_key(Frequency::monthly, parse_date(iso).day);
+}
 
 // Monthly series from `first` ("YYYY-MM-DD" in the first month), values v0, v0 + step, ...
 PeriodSeries monthly(const char* first, int count, double v0, double step = 0.001) {
@@ -51,7 +56,7 @@ TEST(Align, KeepsCompleteCasesAndExplainsEveryDrop) {
   EXPECT_EQ(a.keys[3], month("2020-06-01"));
   EXPECT_EQ(a.names, (std::vector<std::string>{"strategy", "benchmark", "rate"}));
   ASSERT_EQ(a.columns.size(), 3u);
-  EXPECT_DOUBLE_EQ(a.column("strategy")[3], 0.015);  // 2020-06 is the strategy's 6th month
+  EXPECT_DOUBLE_EQ(a.column("strategy")[3], 0.015);   // 2020-06 is the strategy's 6th month
   EXPECT_DOUBLE_EQ(a.column("benchmark")[0], 0.022);  // 2020-01 is the benchmark's 3rd month
 
   const AlignReport& r = a.report;
@@ -97,7 +102,8 @@ TEST(Align, HonoursFromAndToBounds) {
   ASSERT_EQ(a.keys.size(), 4u);  // 2020-02, 03, 06, 07
   EXPECT_EQ(a.keys.front(), month("2020-02-01"));
   EXPECT_EQ(a.keys.back(), month("2020-07-01"));
-  EXPECT_EQ(a.report.dropped_by_reason.at("outside the requested range"), 5u);  // 19-11, 19-12, 20-01, 20-08, 20-09
+  EXPECT_EQ(a.report.dropped_by_reason.at("outside the requested range"),
+            5u);  // 19-11, 19-12, 20-01, 20-08, 20-09
   EXPECT_TRUE(a.report.dropped[0].missing.empty());
 }
 
@@ -123,6 +129,49 @@ TEST(Align, CommonSampleGivesTheSameResultForManyStrategies) {
   const Aligned a = common.align(s);
   EXPECT_EQ(a.report.dropped_by_reason.at("momentum missing"), 1u);
   EXPECT_EQ(a.keys.size(), 5u);  // 2020-01, 03, 06, 07, 08
+}
+
+// A strategy with a finite value on every shared period takes the shortcut in CommonSample;
+// the result must be exactly align()'s, report included.
+TEST(Align, CommonSampleShortcutEqualsAFullAlignment) {
+  const auto inputs = example();
+  const CommonSample common({inputs[1], inputs[2]});
+  std::vector<std::int64_t> union_keys = inputs[1].series.keys;
+  for (auto k : inputs[2].series.keys)
+    if (std::find(union_keys.begin(), union_keys.end(), k) == union_keys.end())
+      union_keys.push_back(k);
+  std::sort(union_keys.begin(), union_keys.end());
+  NamedSeries s{"strategy", {Frequency::monthly, union_keys, {}}};
+  for (std::size_t i = 0; i < union_keys.size(); ++i) s.series.values.push_back(0.003 * i - 0.01);
+
+  const Aligned fast = common.align(s);
+  const Aligned slow = align({s, inputs[1], inputs[2]});
+  EXPECT_EQ(fast.keys, slow.keys);
+  EXPECT_EQ(fast.names, slow.names);
+  EXPECT_EQ(fast.columns, slow.columns);
+  ASSERT_EQ(fast.report.dropped.size(), slow.report.dropped.size());
+  for (std::size_t k = 0; k < fast.report.dropped.size(); ++k) {
+    EXPECT_EQ(fast.report.dropped[k].key, slow.report.dropped[k].key);
+    EXPECT_EQ(fast.report.dropped[k].label, slow.report.dropped[k].label);
+    EXPECT_EQ(fast.report.dropped[k].reason, slow.report.dropped[k].reason);
+    EXPECT_EQ(fast.report.dropped[k].missing, slow.report.dropped[k].missing);
+  }
+  EXPECT_EQ(fast.report.dropped_by_reason, slow.report.dropped_by_reason);
+  ASSERT_EQ(fast.report.gaps.size(), slow.report.gaps.size());
+  for (std::size_t k = 0; k < fast.report.gaps.size(); ++k)
+    EXPECT_EQ(fast.report.gaps[k].text, slow.report.gaps[k].text);
+  ASSERT_EQ(fast.report.coverage.size(), 3u);
+  for (std::size_t k = 0; k < 3; ++k) {
+    EXPECT_EQ(fast.report.coverage[k].name, slow.report.coverage[k].name);
+    EXPECT_EQ(fast.report.coverage[k].first, slow.report.coverage[k].first);
+    EXPECT_EQ(fast.report.coverage[k].last, slow.report.coverage[k].last);
+  }
+  // The example's shared inputs drop 2019-11, 2019-12 and 2020-09 (outside the common range),
+  // 2020-04 (benchmark missing) and 2020-05 (rate missing): the shortcut really was taken on a
+  // sample with drops and a gap.
+  EXPECT_EQ(fast.keys.size(), 6u);
+  EXPECT_EQ(fast.report.dropped.size(), 5u);
+  EXPECT_EQ(fast.report.gaps.size(), 1u);
 }
 
 TEST(Align, ReportsGapsOfDailySamplesInBusinessDays) {
@@ -166,7 +215,8 @@ TEST(Align, RejectsMixedFrequenciesUnsortedKeysAndDuplicateNames) {
   inputs = example();
   inputs[2].name = "benchmark";
   EXPECT_THROW(align(inputs), Error);
-  EXPECT_THROW(CommonSample(std::vector<NamedSeries>{example()[1]}).align(example()[1]), Error);  // same name twice
+  EXPECT_THROW(CommonSample(std::vector<NamedSeries>{example()[1]}).align(example()[1]),
+               Error);  // same name twice
 }
 
 TEST(Align, HandlesEmptyInputs) {
@@ -185,7 +235,8 @@ TEST(Align, EnumeratesPeriodKeys) {
                                           month("2020-03-01")}));
   EXPECT_EQ(period_keys_between(Frequency::daily, day("2020-02-27"), day("2020-03-01")).size(),
             4u);  // 02-27, 02-28, 02-29 (leap year), 03-01
-  EXPECT_TRUE(period_keys_between(Frequency::monthly, day("2020-03-01"), day("2020-01-01")).empty());
+  EXPECT_TRUE(
+      period_keys_between(Frequency::monthly, day("2020-03-01"), day("2020-01-01")).empty());
   EXPECT_EQ(count_label(Frequency::quarterly, 2), "2 quarters");
   EXPECT_EQ(count_label(Frequency::weekly, 1), "1 week");
 }
