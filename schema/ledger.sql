@@ -1,4 +1,4 @@
--- alphatrail ledger schema, current version (PRAGMA user_version = 3,
+-- alphatrail ledger schema, current version (PRAGMA user_version = 4,
 -- PRAGMA application_id = 0x4154524C, "ATRL").
 --
 -- This file is the reference for people who query a ledger with SQL. It is kept equal to
@@ -119,7 +119,7 @@ CREATE TABLE runs (
   beta                 REAL NOT NULL,        -- slope on the benchmark's excess return
   beta_t               REAL,                 -- its t statistic
   r_squared            REAL,                 -- R-squared of the regression
-  result_json          TEXT NOT NULL,        -- sample, coefficients, statistics, reading, preparation, warnings
+  result_json          TEXT NOT NULL,        -- sample, coefficients, statistics, reading, preparation, warnings, rolling
   previous_record_hash TEXT NOT NULL CHECK (length(previous_record_hash) = 64),  -- record_hash of the run before (zeros for run 1)
   record_hash          TEXT NOT NULL CHECK (length(record_hash) = 64)  -- SHA-256 of previous_record_hash and this run's canonical record
 );
@@ -196,3 +196,30 @@ SELECT i.run_id, i.role, i.position, s.name AS series, v.version, v.content_hash
 FROM run_inputs AS i
 JOIN series_versions AS v ON v.version_id = i.version_id
 JOIN series AS s ON s.series_id = v.series_id;
+
+-- The rolling estimates of each run recorded with --rolling, one row per window end, read
+-- from result_json's "rolling" (nothing is stored twice). A window holds `observations`
+-- consecutive kept periods, window_first .. window_end, so it may cross a gap in the sample.
+-- alpha, its standard error and interval bounds are decimal returns per period under the
+-- run's errors and confidence; alpha_annualized and its bounds follow parameters.annualize;
+-- beta is the slope on the benchmark's excess return. lags: Newey-West lags of the window
+-- (0 for other errors). Figures of a window that cannot be estimated are NULL.
+CREATE VIEW run_windows AS
+SELECT r.run_id,
+       json_extract(w.value, '$.end') AS window_end,
+       json_extract(w.value, '$.first') AS window_first,
+       json_extract(w.value, '$.observations') AS observations,
+       json_extract(w.value, '$.lags') AS lags,
+       json_extract(w.value, '$.alpha') AS alpha,
+       json_extract(w.value, '$.alpha_std_error') AS alpha_std_error,
+       json_extract(w.value, '$.alpha_ci_low') AS alpha_ci_low,
+       json_extract(w.value, '$.alpha_ci_high') AS alpha_ci_high,
+       json_extract(w.value, '$.alpha_annualized') AS alpha_annualized,
+       json_extract(w.value, '$.alpha_annualized_ci_low') AS alpha_annualized_ci_low,
+       json_extract(w.value, '$.alpha_annualized_ci_high') AS alpha_annualized_ci_high,
+       json_extract(w.value, '$.beta') AS beta,
+       json_extract(w.value, '$.beta_std_error') AS beta_std_error,
+       json_extract(w.value, '$.beta_ci_low') AS beta_ci_low,
+       json_extract(w.value, '$.beta_ci_high') AS beta_ci_high
+FROM runs AS r, json_each(r.result_json, '$.rolling.windows') AS w
+WHERE w.type = 'object';

@@ -51,6 +51,7 @@ int run_app(int argc, char** argv) {
   setup_rerun(app, global);
   setup_reproduce(app, global);
   setup_compare(app, global);
+  setup_report(app, global);
   setup_verify(app, global);
   setup_query(app, global);
   setup_demo(app, global);

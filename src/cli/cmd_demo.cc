@@ -7,6 +7,7 @@
 #include "cli/demo_scenario.h"
 #include "cli/evaluate.h"
 #include "cli/ingest.h"
+#include "cli/report.h"
 #include "core/error.h"
 #include "ledger/ledger.h"
 #include "ledger/run_store.h"
@@ -66,10 +67,11 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   request.strategies = {"trend-*"};
   request.study = kDemoStudy;
   request.note = "demo: trend look-back variants";
+  request.rolling = "auto";  // three-year rolling alpha and beta, kept for the later commands
   auto ledger = ledger::Ledger::open(path, ledger::OpenMode::existing, std::cerr);
   std::cout << fmt::format(
       "\n$ alphatrail evaluate 'trend-*' --benchmark {} --rate {} --factor {} "
-      "--study {}\n",
+      "--study {} --rolling auto\n",
       kDemoBenchmark, kDemoRate, kDemoFactors, kDemoStudy);
   auto runs = evaluate_and_record(ledger, request, false);
   request.strategies = {"carry-g10", "defensive-tilt", "crash-hedge"};
@@ -77,7 +79,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   request.note = "demo: other books";
   std::cout << fmt::format(
       "$ alphatrail evaluate carry-g10 defensive-tilt crash-hedge "
-      "--benchmark {} --rate {} --factor {}\n\n",
+      "--benchmark {} --rate {} --factor {} --rolling auto\n\n",
       kDemoBenchmark, kDemoRate, kDemoFactors);
   const auto more = evaluate_and_record(ledger, request, false);
   runs.insert(runs.end(), more.begin(), more.end());
@@ -98,7 +100,14 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   ingest_file(path, revision, std::cout, std::cerr);
   std::cout << fmt::format("\n$ alphatrail rerun --all-stale\n\n");
   rerun_runs(ledger, runs, Format::table, std::cout, false);
-  std::cout << '\n';
+
+  // The page a colleague would open: the latest run of the first strategy (a revision).
+  const auto main_runs = ledger::list_runs(ledger, {"trend-12m", "", 0, 0});
+  const std::int64_t main_run = main_runs.back().run_id;
+  const auto page = std::filesystem::absolute(folder / fmt::format("report-run-{}.html", main_run));
+  std::cout << fmt::format("\n$ alphatrail report {} -o {}\n", main_run, page.string());
+  write_run_report(ledger, main_run, page);
+  std::cout << fmt::format("report written to {}\n\n", page.string());
   std::cout << fmt::format(
       "Demo ledger: {} (try `alphatrail runs --ledger {}` or "
       "`alphatrail series --ledger {}`)\n",

@@ -64,6 +64,10 @@ void setup_evaluate(CLI::App& app, const GlobalOptions& global) {
   cmd->add_option("--annualize", r->annualize, "compound ((1+a)^P - 1) or arithmetic (a P)")
       ->check(CLI::IsMember({"compound", "arithmetic"}))
       ->default_str("compound");
+  cmd->add_option("--rolling", r->rolling,
+                  "Rolling alpha and beta over windows of N periods: N, auto (three years: 36 "
+                  "months, 156 weeks, 756 days, 12 quarters) or off")
+      ->default_str("off");
   cmd->add_option("--study", r->study, "Tag the runs as trials of a named study");
   cmd->add_option("--note", r->note, "Note stored with the runs");
   add_format_option(*cmd, *format);

@@ -100,6 +100,34 @@ struct ShowOptions {
   Format format = Format::table;
 };
 
+// Prints one CSV row per rolling window end, with the columns of the run_windows view.
+void print_windows_csv(std::ostream& out, const nlohmann::ordered_json& run) {
+  static const std::vector<std::string> kFigures{"alpha",
+                                                 "alpha_std_error",
+                                                 "alpha_ci_low",
+                                                 "alpha_ci_high",
+                                                 "alpha_annualized",
+                                                 "alpha_annualized_ci_low",
+                                                 "alpha_annualized_ci_high",
+                                                 "beta",
+                                                 "beta_std_error",
+                                                 "beta_ci_low",
+                                                 "beta_ci_high"};
+  Table table;
+  table.header = {"run_id", "window_end", "window_first", "observations", "lags"};
+  table.header.insert(table.header.end(), kFigures.begin(), kFigures.end());
+  const std::string run_id = std::to_string(run["run_id"].get<std::int64_t>());
+  for (const auto& w : run["rolling"]["windows"]) {
+    std::vector<std::string> row{run_id, w["end"].get<std::string>(), w["first"].get<std::string>(),
+                                 std::to_string(w["observations"].get<int>()),
+                                 std::to_string(w["lags"].get<int>())};
+    for (const auto& key : kFigures)
+      row.push_back(w[key].is_number() ? fmt::format("{}", w[key].get<double>()) : "");
+    table.rows.push_back(std::move(row));
+  }
+  print_csv(out, table);
+}
+
 void run_show(const ShowOptions& o, const GlobalOptions& global) {
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
                                      ledger::OpenMode::read_only, std::cerr);
@@ -107,6 +135,10 @@ void run_show(const ShowOptions& o, const GlobalOptions& global) {
   switch (o.format) {
     case Format::json: print_json(std::cout, run); break;
     case Format::csv: {
+      if (run["rolling"].is_object()) {
+        print_windows_csv(std::cout, run);
+        break;
+      }
       Table table;
       table.header = {"term", "estimate", "std_error", "t_stat", "p_value", "ci_low", "ci_high"};
       for (const auto& c : run["coefficients"]) {

@@ -27,5 +27,6 @@ void setup_query(CLI::App& app, const GlobalOptions& global);
 void setup_rerun(CLI::App& app, const GlobalOptions& global);
 void setup_reproduce(CLI::App& app, const GlobalOptions& global);
 void setup_compare(CLI::App& app, const GlobalOptions& global);
+void setup_report(CLI::App& app, const GlobalOptions& global);
 
 }  // namespace alphatrail::cli

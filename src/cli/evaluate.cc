@@ -14,6 +14,7 @@
 #include "core/evaluation.h"
 #include "ledger/run_store.h"
 #include "ledger/series_store.h"
+#include "report/reports.h"
 
 namespace alphatrail::cli {
 
@@ -117,6 +118,23 @@ std::optional<core::Day> parse_bound(const std::string& text, const char* option
   return d.day;
 }
 
+// Parses --rolling: 0 for off, -1 for auto (three years at the evaluation frequency), else
+// the window in periods (checked against the model once the frequency is known).
+int parse_rolling(const std::string& text) {
+  if (text == "off") return 0;
+  if (text == "auto") return -1;
+  try {
+    std::size_t used = 0;
+    const int n = std::stoi(text, &used);
+    if (used == text.size() && n > 0) return n;
+  } catch (const std::exception&) {
+  }
+  throw usage(
+      fmt::format("--rolling {}: write a whole number of periods per window, auto (three years of "
+                  "periods) or off",
+                  text));
+}
+
 struct FactorChoice {
   ledger::LoadedVersion version;
   std::vector<std::string> columns;
@@ -129,6 +147,7 @@ struct Plan {
   bool tenor_given;
   nlohmann::json parameters;
   std::vector<std::size_t> members;  // indices into the strategy list
+  int rolling_window = 0;            // N periods; 0: none
 };
 
 void draw_progress(std::size_t done, std::size_t total) {
@@ -169,6 +188,7 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
   settings.to = parse_bound(rq.to, "--to", false);
   if (settings.from && settings.to && *settings.to < *settings.from)
     throw usage("--to comes before --from; swap them");
+  const int rolling = parse_rolling(rq.rolling);
 
   const auto strategy_names = resolve_strategies(ledger, rq.strategies);
   auto benchmark = load_kind(ledger, rq, rq.benchmark, {"benchmark", "strategy"}, "benchmark");
@@ -231,6 +251,14 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
   for (auto& [f, plan] : plans) {
     plan.tenor_given = !rate_tenor.empty();
     plan.tenor = plan.tenor_given ? rate_tenor : core::choose_tenor(rate.info.columns, f).label;
+    plan.rolling_window = rolling == -1 ? core::default_rolling_window(f) : rolling;
+    if (plan.rolling_window > 0) {
+      const auto problem = core::rolling_window_problem(
+          plan.rolling_window, static_cast<int>(2 + factor_terms.size()), settings.covariance);
+      if (!problem.empty())
+        throw usage(fmt::format("--rolling {}: {} ({} data)", rq.rolling, problem,
+                                core::frequency_name(f)));
+    }
     nlohmann::json factor_params = nlohmann::json::array();
     for (const auto& fc : factors)
       factor_params.push_back({{"set", fc.version.info.name}, {"columns", fc.columns}});
@@ -255,7 +283,9 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
         {"factors", factor_params},
         {"alignment", "complete cases by calendar period (exact dates for daily)"},
         {"partial_periods", "dropped"},
-        {"returns", "simple returns, compounded within a period"}};
+        {"returns", "simple returns, compounded within a period"},
+        {"rolling_window",
+         plan.rolling_window > 0 ? nlohmann::json(plan.rolling_window) : nlohmann::json()}};
   }
 
   // Evaluate each frequency group against its shared inputs.
@@ -286,7 +316,9 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
                 fc.version.columns[static_cast<std::size_t>(it - fc.version.info.columns.begin())]),
             fc.version.info));
       }
-    const core::Evaluator evaluator(shared, f, settings);
+    core::EvaluationSettings plan_settings = settings;
+    plan_settings.rolling_window = plan.rolling_window;
+    const core::Evaluator evaluator(shared, f, plan_settings);
     std::vector<core::ReturnInput> inputs;
     inputs.reserve(plan.members.size());
     for (std::size_t i : plan.members)
@@ -323,6 +355,7 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
       PendingRun p;
       p.result = std::move(*results[i]);
       p.settings = settings;
+      p.settings.rolling_window = plan.rolling_window;
       ledger::NewRun& run = p.run;
       run.strategy = strategies[i].info.name;
       run.benchmark = benchmark.info.name;
@@ -400,17 +433,56 @@ const char* per(const std::string& frequency) {
   return "per month";
 }
 
-std::string errors_text(const ordered_json& stats) {
-  const std::string kind = stats["errors"];
-  if (kind == "newey-west")
-    return fmt::format("Newey-West, {} lags, {}", stats["lags"].get<int>(),
-                       stats["small_sample_factor"].get<bool>() ? "small-sample factor T/(T-k)"
-                                                                : "no small-sample factor");
-  if (kind == "classic") return "classic (homoskedastic)";
-  return fmt::format("White {}", kind == "hc1"   ? "HC1 (HC0 x T/(T-k))"
-                                 : kind == "hc0" ? "HC0"
-                                 : kind == "hc2" ? "HC2"
-                                                 : "HC3");
+// Prints the short rolling section of a run: how many windows, over which ends, and the range
+// of alpha a year and beta; the windows themselves are one `show --format csv` away.
+void print_rolling_text(std::ostream& out, const ordered_json& run) {
+  const auto& rolling = run["rolling"];
+  const std::string frequency = run["sample"]["frequency"];
+  const auto window = rolling["window"].get<int>();
+  const auto& windows = rolling["windows"];
+  const std::string noun = std::string(per(frequency)).substr(4);  // "per month" -> "month"
+  if (windows.empty()) {
+    out << fmt::format(
+        "  rolling estimates      none: the sample is shorter than the window of {} {}s\n\n",
+        window, noun);
+    return;
+  }
+  double alpha_low = NAN, alpha_high = NAN, beta_low = NAN, beta_high = NAN;
+  int missing = 0;
+  for (const auto& w : windows) {
+    const double a = num(w["alpha_annualized"]);
+    const double b = num(w["beta"]);
+    if (std::isnan(a) || std::isnan(b)) {
+      ++missing;
+      continue;
+    }
+    alpha_low = std::isnan(alpha_low) ? a : std::min(alpha_low, a);
+    alpha_high = std::isnan(alpha_high) ? a : std::max(alpha_high, a);
+    beta_low = std::isnan(beta_low) ? b : std::min(beta_low, b);
+    beta_high = std::isnan(beta_high) ? b : std::max(beta_high, b);
+  }
+  const std::string errors = rolling["errors"];
+  const int lags = windows.front()["lags"].get<int>();
+  out << fmt::format("  rolling estimates      {} windows of {} {}s, ending {} to {}\n",
+                     windows.size(), window, noun, windows.front()["end"].get<std::string>(),
+                     windows.back()["end"].get<std::string>());
+  out << fmt::format("                         {} errors{}\n", errors,
+                     errors != "newey-west" ? ""
+                     : rolling["lag_rule"] == "auto"
+                         ? fmt::format(", {} lags in each window "
+                                       "(the automatic rule for {})",
+                                       lags, window)
+                         : fmt::format(", {} lags in each window", lags));
+  if (missing < static_cast<int>(windows.size()))
+    out << fmt::format(
+        "                         alpha {} to {} a year ({}), beta {:.2f} to {:.2f}{}\n",
+        pct(alpha_low), pct(alpha_high), rolling["annualize"].get<std::string>(), beta_low,
+        beta_high, missing > 0 ? fmt::format("; {} windows without figures", missing) : "");
+  else
+    out << "                         no window could be estimated (see the warnings)\n";
+  out << fmt::format(
+      "                         one row per window: `alphatrail show {} --format csv`\n\n",
+      run["run_id"].get<std::int64_t>());
 }
 
 }  // namespace
@@ -439,7 +511,7 @@ void print_run_text(std::ostream& out, const ordered_json& run) {
                      sample["observations"].get<int>(), frequency, sample["dropped"].get<int>());
   out << fmt::format(
       "  standard errors {}; {:g}% intervals, Student t with {} degrees of freedom\n\n",
-      errors_text(stats), 100 * stats["confidence"].get<double>(),
+      report::describe_errors(stats), 100 * stats["confidence"].get<double>(),
       stats["degrees_of_freedom"].get<int>());
 
   Table table;
@@ -479,6 +551,7 @@ void print_run_text(std::ostream& out, const ordered_json& run) {
       fixed(stats["correlation"], 3), fixed(stats["up_market_beta"], 2),
       stats["up_periods"].get<int>(), fixed(stats["down_market_beta"], 2),
       stats["down_periods"].get<int>());
+  if (run.contains("rolling") && run["rolling"].is_object()) print_rolling_text(out, run);
   for (const auto& w : run["warnings"]) out << "  warning: " << w.get<std::string>() << '\n';
   if (!run["warnings"].empty()) out << '\n';
   out << "  Reading\n";
@@ -566,6 +639,9 @@ EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bo
   rq.rate_basis = p.at("rate_basis");
   rq.rate_timing = p.at("rate_timing");
   rq.annualize = p.at("annualize");
+  // Runs recorded before engine 0.2.0 have no rolling_window: they had no rolling estimates.
+  if (p.contains("rolling_window") && p.at("rolling_window").is_number())
+    rq.rolling = std::to_string(p.at("rolling_window").get<int>());
   rq.study = row->study.value_or("");
   rq.note = row->note.value_or("");
   if (pin_versions)

@@ -31,6 +31,7 @@ struct EvaluateRequest {
   std::string rate_basis = "compound";
   std::string rate_timing = "start";
   std::string annualize = "compound";
+  std::string rolling = "off";  // N periods per rolling window, auto (three years) or off
   std::string study;
   std::string note;
   // Re-runs and reproductions: versions to use instead of the latest, and the run revised.

@@ -11,16 +11,6 @@
 
 namespace alphatrail::core {
 
-const char* annualize_name(Annualize a) {
-  return a == Annualize::compound ? "compound" : "arithmetic";
-}
-
-std::optional<Annualize> parse_annualize(std::string_view name) {
-  if (name == "compound") return Annualize::compound;
-  if (name == "arithmetic") return Annualize::arithmetic;
-  return std::nullopt;
-}
-
 namespace {
 
 // Orders frequencies from the highest (daily) to the lowest (quarterly).
@@ -310,8 +300,7 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
   const double alpha = fit.coefficients[0].estimate;
   const double beta = fit.coefficients[1].estimate;
   const double root_p = std::sqrt(static_cast<double>(P));
-  d.alpha_annualized =
-      settings_.annualize == Annualize::compound ? std::pow(1.0 + alpha, P) - 1.0 : alpha * P;
+  d.alpha_annualized = annualize(alpha, settings_.annualize, P);
   d.appraisal_ratio = alpha / fit.residual_std * root_p;
   d.mean_excess_strategy = mean(r.strategy_excess);
   d.mean_excess_benchmark = mean(r.benchmark_excess);
@@ -327,7 +316,34 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
       conditional_slope(r.strategy_excess, r.benchmark_excess, false, d.down_periods);
 
   r.fit = std::move(fit);
+  r.annualize = settings_.annualize;
+  if (settings_.rolling_window > 0) add_rolling(r, a);
   return r;
+}
+
+void Evaluator::add_rolling(EvaluationResult& r, const Aligned& a) const {
+  const auto& c = settings_.covariance;
+  const int N = settings_.rolling_window;
+  r.rolling_window = N;
+  r.rolling_auto_lags = c.kind == ErrorKind::newey_west && c.lags == -1;
+  const Design d = build_design(a, factor_names_);
+  r.rolling =
+      rolling_fits(d.X, d.y, term_names_, a.keys, frequency_,
+                   {N, c, settings_.confidence, settings_.annualize, periods_per_year(frequency_)});
+  auto& warnings = r.sample.warnings;
+  if (r.rolling.empty())
+    warnings.push_back(fmt::format(
+        "rolling estimates: the sample has {} periods, fewer than the window of {}; no window",
+        a.keys.size(), N));
+  std::size_t failed = 0;
+  const RollingWindow* first_failed = nullptr;
+  for (const auto& w : r.rolling)
+    if (!w.problem.empty() && failed++ == 0) first_failed = &w;
+  if (first_failed)
+    warnings.push_back(fmt::format(
+        "rolling estimates: {} of {} windows cannot be estimated and have no figures (first "
+        "ending {}: {})",
+        failed, r.rolling.size(), first_failed->end, first_failed->problem));
 }
 
 namespace {

@@ -16,19 +16,14 @@
 #include <vector>
 
 #include "core/align.h"
+#include "core/annualize.h"
 #include "core/dates.h"
 #include "core/rates.h"
 #include "core/regression.h"
 #include "core/resample.h"
+#include "core/rolling.h"
 
 namespace alphatrail::core {
-
-enum class Annualize { compound, arithmetic };  // (1 + a)^P - 1 | a * P
-
-// Returns "compound" or "arithmetic".
-const char* annualize_name(Annualize a);
-// Parses "compound" or "arithmetic"; nullopt when unknown.
-std::optional<Annualize> parse_annualize(std::string_view name);
 
 struct EvaluationSettings {
   std::optional<Frequency> frequency;  // nullopt: the lowest frequency among the inputs
@@ -39,6 +34,7 @@ struct EvaluationSettings {
   RateBasis rate_basis = RateBasis::compound;
   RateTiming rate_timing = RateTiming::start;
   Annualize annualize = Annualize::compound;
+  int rolling_window = 0;  // N observations per rolling window (rolling.h); 0: none
 };
 
 // A return series (decimal simple returns) with the frequency it was detected at.
@@ -106,6 +102,13 @@ struct EvaluationResult {
   std::vector<double> strategy_excess;
   std::vector<double> benchmark_excess;
   std::vector<double> risk_free;
+  // Rolling estimates when EvaluationSettings::rolling_window > 0 (rolling.h): one window per
+  // end, oldest first, empty when the sample is shorter than the window. Kept by
+  // evaluate_many(keep_series = false): they are part of the run record.
+  int rolling_window = 0;          // N; 0: none asked for
+  bool rolling_auto_lags = false;  // Newey-West lags by the automatic rule in each window
+  Annualize annualize = Annualize::compound;  // the convention of every annualized figure
+  std::vector<RollingWindow> rolling;
 };
 
 // Returns the lowest frequency among the inputs (quarterly < monthly < weekly < daily).
@@ -145,6 +148,8 @@ class Evaluator {
   struct Prepared;  // one strategy aligned on the shared sample
   Prepared prepare(const ReturnInput& strategy) const;
   EvaluationResult finish(Prepared&& prepared, OlsResult&& fit) const;
+  // Fills the rolling windows of a result and warns about windows it could not estimate.
+  void add_rolling(EvaluationResult& result, const Aligned& aligned) const;
   void evaluate_block(const std::vector<ReturnInput>& strategies, std::size_t begin,
                       std::size_t end, int threads, bool keep_series,
                       std::vector<Outcome>& outcomes) const;

@@ -70,6 +70,39 @@ std::string inputs_hash(const std::string& engine_version, const std::string& pa
   return h.hex();
 }
 
+namespace {
+
+// The rolling estimates of a run: null when none were asked for (see schema/ledger.sql,
+// view run_windows).
+ordered_json rolling_json(const core::EvaluationResult& r) {
+  if (r.rolling_window <= 0) return nullptr;
+  ordered_json windows = ordered_json::array();
+  for (const auto& w : r.rolling)
+    windows.push_back({{"end", w.end},
+                       {"first", w.first},
+                       {"observations", w.observations},
+                       {"lags", w.lags},
+                       {"alpha", number(w.alpha)},
+                       {"alpha_std_error", number(w.alpha_std_error)},
+                       {"alpha_ci_low", number(w.alpha_ci_low)},
+                       {"alpha_ci_high", number(w.alpha_ci_high)},
+                       {"alpha_annualized", number(w.alpha_annualized)},
+                       {"alpha_annualized_ci_low", number(w.alpha_annualized_ci_low)},
+                       {"alpha_annualized_ci_high", number(w.alpha_annualized_ci_high)},
+                       {"beta", number(w.beta)},
+                       {"beta_std_error", number(w.beta_std_error)},
+                       {"beta_ci_low", number(w.beta_ci_low)},
+                       {"beta_ci_high", number(w.beta_ci_high)}});
+  return {{"window", r.rolling_window},
+          {"errors", core::error_kind_name(r.fit.errors)},
+          {"lag_rule", r.rolling_auto_lags ? "auto" : "fixed"},
+          {"confidence", r.fit.confidence},
+          {"annualize", core::annualize_name(r.annualize)},
+          {"windows", windows}};
+}
+
+}  // namespace
+
 ordered_json result_json(const core::EvaluationResult& r, const std::vector<std::string>& reading) {
   const auto& fit = r.fit;
   const auto& d = r.derived;
@@ -123,9 +156,13 @@ ordered_json result_json(const core::EvaluationResult& r, const std::vector<std:
                              {"down_market_beta", number(d.down_market_beta)},
                              {"up_periods", d.up_periods},
                              {"down_periods", d.down_periods}};
-  return {
-      {"sample", sample},   {"coefficients", coefficients},        {"statistics", statistics},
-      {"reading", reading}, {"preparation", r.sample.preparation}, {"warnings", r.sample.warnings}};
+  return {{"sample", sample},
+          {"coefficients", coefficients},
+          {"statistics", statistics},
+          {"reading", reading},
+          {"preparation", r.sample.preparation},
+          {"warnings", r.sample.warnings},
+          {"rolling", rolling_json(r)}};
 }
 
 std::string canonical_run_record(const RunRow& r) {
@@ -433,6 +470,7 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
       {"parameters", ordered_json::parse(row->parameters_json)},
       {"inputs", inputs}};
   for (const auto& [key, value] : result.items()) run[key] = value;
+  if (!run.contains("rolling")) run["rolling"] = nullptr;  // runs recorded before engine 0.2.0
   run["record_hash"] = row->record_hash;
   return run;
 }

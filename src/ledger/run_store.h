@@ -52,7 +52,7 @@ struct NewRun {
 };
 
 // Returns the result part of a run (sample, coefficients, statistics, reading, preparation,
-// warnings) as it is stored in runs.result_json.
+// warnings, rolling) as it is stored in runs.result_json.
 nlohmann::ordered_json result_json(const core::EvaluationResult& result,
                                    const std::vector<std::string>& reading);
 

@@ -1,0 +1,177 @@
+#include <fmt/format.h>
+#include <unistd.h>
+
+#include <CLI/CLI.hpp>
+#include <fstream>
+#include <iostream>
+
+#include "cli/commands.h"
+#include "cli/evaluate.h"
+#include "cli/report.h"
+#include "core/error.h"
+#include "ledger/run_store.h"
+#include "ledger/series_store.h"
+#include "report/reports.h"
+#include "version.h"
+
+namespace alphatrail::cli {
+
+namespace {
+
+using nlohmann::ordered_json;
+
+std::string made_by(ledger::Ledger& ledger) {
+  return fmt::format(
+      "Made by alphatrail {} on {} UTC from the ledger {}. Self-contained page: "
+      "no script, nothing loaded from elsewhere.",
+      kEngineVersion, ledger::utc_now(), ledger.path().filename().string());
+}
+
+// Writes through a temporary file beside the target, then renames it into place.
+void write_page(const std::filesystem::path& output, const std::string& html) {
+  const std::filesystem::path temporary =
+      output.string() + fmt::format(".{}.partial", static_cast<long>(::getpid()));
+  {
+    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
+    out << html;
+    out.close();
+    if (!out)
+      throw Error(ExitCode::bad_input,
+                  fmt::format("{}: cannot write the report there; name a writable file with -o",
+                              output.string()));
+  }
+  std::error_code ec;
+  std::filesystem::rename(temporary, output, ec);
+  if (ec) {
+    std::filesystem::remove(temporary, ec);
+    throw Error(ExitCode::bad_input,
+                fmt::format("{}: cannot write the report there; name a writable file with -o",
+                            output.string()));
+  }
+}
+
+std::vector<ordered_json> load_runs(ledger::Ledger& ledger, const ledger::RunFilter& filter) {
+  std::vector<ordered_json> runs;
+  for (const auto& summary : ledger::list_runs(ledger, filter))
+    runs.push_back(ledger::load_run(ledger, summary.run_id));
+  return runs;
+}
+
+}  // namespace
+
+void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
+                      const std::filesystem::path& output) {
+  report::RunReportInput in;
+  in.run = ledger::load_run(ledger, run_id);
+
+  // The charts need the sample period by period: recompute it from the run's own versions.
+  EvaluateRequest request = request_from_run(ledger, run_id, true);
+  request.keep_series = true;
+  auto pending = evaluate_request(ledger, request);
+  const PendingRun& p = pending.front();
+  const std::string recomputed =
+      ledger::inputs_hash(kEngineVersion, p.run.parameters.dump(), p.run.inputs);
+  in.reproduction =
+      recomputed == in.run["inputs_hash"].get<std::string>()
+          ? "recomputed from the run's own input versions and parameters; inputs hash identical"
+          : fmt::format(
+                "recomputed from the run's own input versions by engine {} (the run was "
+                "recorded by {}): inputs hash {} differs, so the charts may differ "
+                "slightly from the recorded figures",
+                kEngineVersion, in.run["engine_version"].get<std::string>(),
+                recomputed.substr(0, 12));
+  const auto& r = p.result;
+  for (const auto key : r.keys)
+    in.data.periods.push_back(core::period_label(r.sample.frequency, key));
+  in.data.strategy_excess = r.strategy_excess;
+  in.data.benchmark_excess = r.benchmark_excess;
+  in.data.risk_free = r.risk_free;
+  in.data.residuals.assign(r.fit.residuals.begin(), r.fit.residuals.end());
+
+  in.rolling = in.run.contains("rolling") ? in.run["rolling"] : ordered_json();
+  in.rolling_from_run = in.rolling.is_object();
+  if (!in.rolling_from_run) {
+    // Recorded without --rolling: compute the default window for the page (and say so).
+    request.rolling = "auto";
+    try {
+      in.rolling =
+          ledger::result_json(evaluate_request(ledger, request).front().result, {})["rolling"];
+    } catch (const Error&) {  // the sample is shorter than the window: the page says so
+    }
+  }
+  if (in.run["revises_run_id"].is_number())
+    in.revised = ledger::load_run(ledger, in.run["revises_run_id"].get<std::int64_t>());
+  in.made_by = made_by(ledger);
+  write_page(output, report::run_report(in));
+}
+
+void write_strategy_report(ledger::Ledger& ledger, const std::string& strategy,
+                           const std::filesystem::path& output) {
+  report::StrategyReportInput in;
+  in.strategy = strategy;
+  for (const auto& v : ledger::version_history(ledger, strategy))
+    in.versions.push_back({v.version, v.ingested_at, v.content_hash, v.source_file, v.note});
+  in.runs = load_runs(ledger, {strategy, "", 0, 0});
+  if (in.runs.empty())
+    throw Error(ExitCode::not_found,
+                fmt::format("strategy '{}' has no runs yet; evaluate it first (`alphatrail "
+                            "evaluate {} --benchmark ... --rate ...`)",
+                            strategy, strategy));
+  in.made_by = made_by(ledger);
+  write_page(output, report::strategy_report(in));
+}
+
+void write_study_report(ledger::Ledger& ledger, const std::string& study,
+                        const std::filesystem::path& output) {
+  report::StudyReportInput in;
+  in.study = study;
+  in.runs = load_runs(ledger, {"", study, 0, 0});
+  if (in.runs.empty())
+    throw Error(ExitCode::not_found,
+                fmt::format("no run belongs to study '{}'; `alphatrail runs` lists the studies, "
+                            "and `evaluate --study NAME` records runs in one",
+                            study));
+  in.made_by = made_by(ledger);
+  write_page(output, report::study_report(in));
+}
+
+namespace {
+
+struct ReportOptions {
+  std::int64_t run_id = 0;
+  std::string strategy;
+  std::string study;
+  std::string output;
+};
+
+void run_report(const ReportOptions& o, const GlobalOptions& global) {
+  const int chosen = (o.run_id != 0) + !o.strategy.empty() + !o.study.empty();
+  if (chosen != 1)
+    throw Error(ExitCode::usage,
+                "name one subject: a RUN id, --strategy NAME or --study NAME (for example "
+                "`alphatrail report 7 -o run-7.html`)");
+  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
+                                     ledger::OpenMode::read_only, std::cerr);
+  if (o.run_id != 0)
+    write_run_report(ledger, o.run_id, o.output);
+  else if (!o.strategy.empty())
+    write_strategy_report(ledger, o.strategy, o.output);
+  else
+    write_study_report(ledger, o.study, o.output);
+  std::cout << fmt::format("report written to {}\n", o.output);
+}
+
+}  // namespace
+
+void setup_report(CLI::App& app, const GlobalOptions& global) {
+  auto o = std::make_shared<ReportOptions>();
+  auto* cmd = app.add_subcommand(
+      "report", "Write a self-contained HTML page with charts for a run, a strategy or a study");
+  cmd->add_option("run", o->run_id, "Run id (or use --strategy / --study)");
+  cmd->add_option("--strategy", o->strategy, "Every run of a strategy, in time order");
+  cmd->add_option("--study", o->study, "Every run of a study, side by side");
+  cmd->add_option("-o,--output", o->output, "The HTML file to write")->required();
+  cmd->callback([o, &global] { run_report(*o, global); });
+}
+
+}  // namespace alphatrail::cli
