@@ -189,6 +189,63 @@ TEST_F(ReportTest, RunWithoutStoredRollingGetsWindowsComputedForThePage) {
   EXPECT_FALSE(contains(html, "size-spread"));  // single-index model
 }
 
+// The same three pages from files ingested by hand (fixtures/evaluate: 120 months, HC3 errors,
+// a two-year window), a study of three strategies, and re-runs after a benchmark revision.
+TEST_F(ReportTest, AllThreeKindsWorkOnIngestedFiles) {
+  const std::string ledger = (scratch_->path() / "ingested.db").string();
+  const auto fixture = [](const std::string& name) {
+    return source_path("fixtures/evaluate/" + name).string();
+  };
+  const std::vector<std::vector<std::string>> steps{
+      {"ingest", "strategy", fixture("strategies.csv")},
+      {"ingest", "benchmark", fixture("benchmark.csv"), "--levels", "--name", "market"},
+      {"ingest", "rate", fixture("bills.csv"), "--name", "bills"},
+      {"ingest", "factor", fixture("factors.csv"), "--name", "ff"},
+      {"evaluate", "*", "--benchmark", "market", "--rate", "bills", "--factor", "ff", "--study",
+       "fixture-study", "--errors", "hc3", "--rolling", "24"},
+      {"ingest", "benchmark", fixture("benchmark_revised.csv"), "--levels", "--name", "market"},
+      {"rerun", "--all-stale"}};
+  for (const auto& step : steps) {
+    std::vector<std::string> args{"--ledger", ledger};
+    args.insert(args.end(), step.begin(), step.end());
+    const auto r = run_alphatrail(args);
+    ASSERT_EQ(r.exit_code, 0) << step[0] << ": " << r.err;
+  }
+  const auto report = [&](const std::vector<std::string>& subject, const std::string& file) {
+    const auto path = scratch_->path() / file;
+    std::vector<std::string> args{"--ledger", ledger, "report"};
+    args.insert(args.end(), subject.begin(), subject.end());
+    args.insert(args.end(), {"-o", path.string()});
+    const auto r = run_alphatrail(args);
+    EXPECT_EQ(r.exit_code, 0) << r.err;
+    return path;
+  };
+  // Runs 1-3 are carry, trend-fast, trend-slow (names in order); 4-6 their re-runs.
+  const auto run_page = report({"5"}, "ingested-run.html");
+  const std::string html = read_file(run_page);
+  expect_self_contained(html);
+  EXPECT_EQ(count(html, "class=\"mark dot\""), 120);
+  EXPECT_TRUE(contains(html, "White HC3"));
+  EXPECT_TRUE(contains(html, "Windows of 24 months"));
+  EXPECT_TRUE(contains(html, "What changed since run 2"));
+  const auto strategy_page = report({"--strategy", "trend-fast"}, "ingested-strategy.html");
+  EXPECT_EQ(count(read_file(strategy_page), "data-revision=\"true\""), 1);
+  const auto study_page = report({"--study", "fixture-study"}, "ingested-study.html");
+  EXPECT_TRUE(contains(read_file(study_page), "(6 trials)"));
+
+  if (!browser_available())
+    GTEST_SKIP() << "Chromium is not installed (the test set-up installs it)";
+  EXPECT_EQ(
+      kinds(check_in_browser(run_page, "report-ingested-run.png")),
+      (std::vector<std::string>{"scatter", "band", "band", "lines", "drawdown", "histogram"}));
+  const auto strategy_charts = check_in_browser(strategy_page, "report-ingested-strategy.png");
+  ASSERT_EQ(strategy_charts.size(), 1u);
+  EXPECT_EQ(strategy_charts[0].marks, 2);
+  const auto study_charts = check_in_browser(study_page, "report-ingested-study.png");
+  ASSERT_EQ(study_charts.size(), 1u);
+  EXPECT_EQ(study_charts[0].marks, 6);
+}
+
 TEST_F(ReportTest, RefusesBadSubjectsAndWritesNothing) {
   const auto out = scratch_->path() / "never.html";
   const auto none = run_alphatrail({"--ledger", ledger_, "report", "-o", out.string()});
