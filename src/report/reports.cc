@@ -65,12 +65,12 @@ struct AnnualAlpha {
 };
 AnnualAlpha annual_alpha(const ordered_json& run) {
   const auto& a = coefficient(run, "alpha");
-  const int P = periods_per_year(run);
+  const int per_year = periods_per_year(run);
   const auto convention =
       core::parse_annualize(run["parameters"]["annualize"].get<std::string>()).value();
   return {num(run["statistics"]["alpha_annualized"]),
-          core::annualize(num(a["ci_low"]), convention, P),
-          core::annualize(num(a["ci_high"]), convention, P)};
+          core::annualize(num(a["ci_low"]), convention, per_year),
+          core::annualize(num(a["ci_high"]), convention, per_year)};
 }
 
 // "newey-west (5)", "hc3": for tables.
@@ -155,6 +155,7 @@ Facts statistics_facts(const ordered_json& run) {
 // Growth of one unit from per-period returns, and the drawdown from the running peak.
 std::vector<double> growth(const std::vector<double>& returns) {
   std::vector<double> out;
+  out.reserve(returns.size());
   double level = 1.0;
   for (double r : returns) out.push_back(level *= 1.0 + r);
   return out;
@@ -162,6 +163,7 @@ std::vector<double> growth(const std::vector<double>& returns) {
 
 std::vector<double> drawdown(const std::vector<double>& levels) {
   std::vector<double> out;
+  out.reserve(levels.size());
   double peak = 1.0;
   for (double v : levels) {
     peak = std::max(peak, v);

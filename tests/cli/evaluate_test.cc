@@ -20,9 +20,10 @@
 namespace {
 
 namespace fs = std::filesystem;
-using alphatrail::testing::contains;
-using alphatrail::testing::lines_of;
 using alphatrail::testing::CommandResult;
+using alphatrail::testing::contains;
+using alphatrail::testing::ingest_evaluate_fixtures;
+using alphatrail::testing::lines_of;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
@@ -42,18 +43,7 @@ class EvaluateTest : public ::testing::Test {
   static void SetUpTestSuite() {
     base_ = new ScratchDir();
     const std::string ledger = (*base_ / "base.db").string();
-    const std::vector<std::vector<std::string>> ingests{
-        {"strategy", fixture("strategies.csv")},
-        {"strategy", fixture("tiny.csv")},
-        {"benchmark", fixture("benchmark.csv"), "--levels", "--name", "market"},
-        {"rate", fixture("bills.csv"), "--name", "bills"},
-        {"factor", fixture("factors.csv"), "--name", "ff"}};
-    for (const auto& args : ingests) {
-      std::vector<std::string> all{"--ledger", ledger, "ingest"};
-      all.insert(all.end(), args.begin(), args.end());
-      const CommandResult r = run_alphatrail(all);
-      ASSERT_EQ(r.exit_code, 0) << args[1] << ": " << r.err;
-    }
+    ASSERT_EQ(ingest_evaluate_fixtures(ledger), "");
     expected_ = new json(json::parse(read_file(fixture("expected.json"))));
   }
   static void TearDownTestSuite() {
@@ -225,7 +215,8 @@ TEST_F(EvaluateTest, JsonContractKeysArePresent) {
   EXPECT_EQ(run["coefficients"][0]["term"], "alpha");
   EXPECT_EQ(run["coefficients"][1]["term"], "beta");
   for (const auto& c : run["coefficients"])
-    for (const char* key : {"term", "estimate", "std_error", "t_stat", "p_value", "ci_low", "ci_high"})
+    for (const char* key :
+         {"term", "estimate", "std_error", "t_stat", "p_value", "ci_low", "ci_high"})
       EXPECT_TRUE(c.contains(key)) << "coefficient." << key;
   for (const char* key : {"r_squared", "adj_r_squared", "residual_std", "alpha_annualized", "lags"})
     EXPECT_TRUE(run["statistics"].contains(key)) << "statistics." << key;
@@ -237,8 +228,7 @@ TEST_F(EvaluateTest, JsonContractKeysArePresent) {
   ASSERT_FALSE(run["reading"].empty());
   for (const auto& sentence : run["reading"]) EXPECT_TRUE(sentence.is_string());
   // The first sentence reads beta (1.30 here: more strongly than the market).
-  EXPECT_TRUE(contains(run["reading"][0].get<std::string>(), "Beta is 1.30"))
-      << run["reading"][0];
+  EXPECT_TRUE(contains(run["reading"][0].get<std::string>(), "Beta is 1.30")) << run["reading"][0];
   // show --format json prints the same run object.
   const CommandResult shown = cli({"show", "1", "--format", "json"});
   ASSERT_EQ(shown.exit_code, 0) << shown.err;
@@ -256,7 +246,8 @@ TEST_F(EvaluateTest, GlobPatternEvaluatesEachMatchingStrategy) {
   expect_matches_statsmodels(runs[1], expected("trend-slow newey-west"), "trend-slow via glob");
   EXPECT_EQ(count("SELECT count(*) FROM runs"), 2);
   // A pattern that matches nothing is an unknown strategy.
-  const CommandResult none = cli({"evaluate", "nothing-*", "--benchmark", "market", "--rate", "bills"});
+  const CommandResult none =
+      cli({"evaluate", "nothing-*", "--benchmark", "market", "--rate", "bills"});
   EXPECT_EQ(none.exit_code, 5) << none.err;
   EXPECT_TRUE(contains(none.err, "nothing-*")) << none.err;
 }
@@ -276,8 +267,8 @@ TEST_F(EvaluateTest, StudyTagsRunsAndTheReadingCountsThem) {
   EXPECT_TRUE(contains(study_sentence(second), "one of 2 runs recorded in study 'trend-grid'"))
       << second["reading"].dump();
   // Two more in one command: the count includes the runs recorded before in the same command.
-  const json more = evaluate_json({"trend-*", "--benchmark", "market", "--rate", "bills", "--study",
-                                   "trend-grid"});
+  const json more = evaluate_json(
+      {"trend-*", "--benchmark", "market", "--rate", "bills", "--study", "trend-grid"});
   ASSERT_EQ(more.size(), 2u);
   EXPECT_TRUE(contains(study_sentence(more[0]), "one of 3 runs")) << more[0]["reading"].dump();
   EXPECT_TRUE(contains(study_sentence(more[1]), "one of 4 runs")) << more[1]["reading"].dump();
@@ -346,14 +337,16 @@ TEST_F(EvaluateTest, UnknownStrategyOrBenchmarkExits5) {
   const CommandResult s = cli({"evaluate", "no-such", "--benchmark", "market", "--rate", "bills"});
   EXPECT_EQ(s.exit_code, 5) << s.err;
   EXPECT_TRUE(contains(s.err, "no-such")) << s.err;
-  const CommandResult b = cli({"evaluate", "trend-fast", "--benchmark", "no-index", "--rate", "bills"});
+  const CommandResult b =
+      cli({"evaluate", "trend-fast", "--benchmark", "no-index", "--rate", "bills"});
   EXPECT_EQ(b.exit_code, 5) << b.err;
   EXPECT_TRUE(contains(b.err, "no-index")) << b.err;
   EXPECT_EQ(count("SELECT count(*) FROM runs"), 0);
 }
 
 TEST_F(EvaluateTest, MissingTenorExits2) {
-  const CommandResult r = cli({"evaluate", "trend-fast", "--benchmark", "market", "--rate", "bills:6M"});
+  const CommandResult r =
+      cli({"evaluate", "trend-fast", "--benchmark", "market", "--rate", "bills:6M"});
   EXPECT_EQ(r.exit_code, 2) << r.err;
   EXPECT_TRUE(contains(r.err, "6M")) << r.err;
   EXPECT_TRUE(contains(r.err, "1M, 3M")) << r.err;  // names the tenors it has

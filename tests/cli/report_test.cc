@@ -193,17 +193,12 @@ TEST_F(ReportTest, RunWithoutStoredRollingGetsWindowsComputedForThePage) {
 // a two-year window), a study of three strategies, and re-runs after a benchmark revision.
 TEST_F(ReportTest, AllThreeKindsWorkOnIngestedFiles) {
   const std::string ledger = (scratch_->path() / "ingested.db").string();
-  const auto fixture = [](const std::string& name) {
-    return source_path("fixtures/evaluate/" + name).string();
-  };
+  ASSERT_EQ(ingest_evaluate_fixtures(ledger), "");
+  const std::string revised = source_path("fixtures/evaluate/benchmark_revised.csv").string();
   const std::vector<std::vector<std::string>> steps{
-      {"ingest", "strategy", fixture("strategies.csv")},
-      {"ingest", "benchmark", fixture("benchmark.csv"), "--levels", "--name", "market"},
-      {"ingest", "rate", fixture("bills.csv"), "--name", "bills"},
-      {"ingest", "factor", fixture("factors.csv"), "--name", "ff"},
-      {"evaluate", "*", "--benchmark", "market", "--rate", "bills", "--factor", "ff", "--study",
-       "fixture-study", "--errors", "hc3", "--rolling", "24"},
-      {"ingest", "benchmark", fixture("benchmark_revised.csv"), "--levels", "--name", "market"},
+      {"evaluate", "carry", "trend-*", "--benchmark", "market", "--rate", "bills", "--factor", "ff",
+       "--study", "fixture-study", "--errors", "hc3", "--rolling", "24"},
+      {"ingest", "benchmark", revised, "--levels", "--name", "market"},
       {"rerun", "--all-stale"}};
   for (const auto& step : steps) {
     std::vector<std::string> args{"--ledger", ledger};

@@ -18,10 +18,10 @@ namespace {
 namespace fs = std::filesystem;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
+using alphatrail::testing::ingest_evaluate_fixtures;
 using alphatrail::testing::lines_of;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
-using alphatrail::testing::source_path;
 using nlohmann::json;
 
 const std::string kWindowHeader =
@@ -29,28 +29,15 @@ const std::string kWindowHeader =
     "alpha_ci_high,alpha_annualized,alpha_annualized_ci_low,alpha_annualized_ci_high,beta,"
     "beta_std_error,beta_ci_low,beta_ci_high";
 
-std::string fixture(const std::string& name) {
-  return source_path("fixtures/evaluate/" + name).string();
-}
-
 // A ledger with the evaluate fixtures ingested once and copied per test: strategies
-// trend-fast, trend-slow, carry; benchmark "market" (levels); rate curve "bills"; factors "ff".
+// trend-fast, trend-slow, carry, tiny; benchmark "market" (levels); rate curve "bills";
+// factors "ff" (see ingest_evaluate_fixtures).
 class RollingTest : public ::testing::Test {
  protected:
   static void SetUpTestSuite() {
     base_ = new ScratchDir();
     const std::string ledger = (*base_ / "base.db").string();
-    const std::vector<std::vector<std::string>> ingests{
-        {"strategy", fixture("strategies.csv")},
-        {"benchmark", fixture("benchmark.csv"), "--levels", "--name", "market"},
-        {"rate", fixture("bills.csv"), "--name", "bills"},
-        {"factor", fixture("factors.csv"), "--name", "ff"}};
-    for (const auto& args : ingests) {
-      std::vector<std::string> all{"--ledger", ledger, "ingest"};
-      all.insert(all.end(), args.begin(), args.end());
-      const CommandResult r = run_alphatrail(all);
-      ASSERT_EQ(r.exit_code, 0) << args[1] << ": " << r.err;
-    }
+    ASSERT_EQ(ingest_evaluate_fixtures(ledger), "");
   }
   static void TearDownTestSuite() {
     delete base_;

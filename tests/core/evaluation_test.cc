@@ -4,6 +4,8 @@
 //
 // All data are built in the test (no files): monthly month-end dates, benchmark returns and
 // percent yields that change every month, strategies built from them.
+#include "core/evaluation.h"
+
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -13,25 +15,13 @@
 #include <vector>
 
 #include "core/error.h"
-#include "core/evaluation.h"
+#include "support/test_support.h"
 
 namespace alphatrail::core {
 namespace {
 
-Day month_end(int year, int month) { return to_day({year, month, days_in_month(year, month)}); }
-
-// Month ends of n consecutive months starting with (year, month).
-std::vector<Day> month_ends(int year, int month, int n) {
-  std::vector<Day> out;
-  for (int i = 0; i < n; ++i) {
-    out.push_back(month_end(year, month));
-    if (++month == 13) {
-      month = 1;
-      ++year;
-    }
-  }
-  return out;
-}
+using testing::month_end;
+using testing::month_ends;
 
 // Uniform in [0, 1) from the standardized mt19937 sequence (portable, unlike the
 // distributions of <random>).
@@ -50,10 +40,10 @@ ReturnInput returns(std::string name, std::vector<Day> dates, std::vector<double
 // yields from the month before (T + 1 values, 2014-12 .. ), changing every month.
 struct World {
   int T = 0;
-  std::vector<Day> dates;         // month ends of the T return months
-  std::vector<Day> yield_dates;   // month ends of T + 1 months, one earlier
-  std::vector<double> market;     // r_m
-  std::vector<double> yields;     // percent, yields[i] at yield_dates[i]
+  std::vector<Day> dates;        // month ends of the T return months
+  std::vector<Day> yield_dates;  // month ends of T + 1 months, one earlier
+  std::vector<double> market;    // r_m
+  std::vector<double> yields;    // percent, yields[i] at yield_dates[i]
   SharedInputs shared;
 
   // The yield known at the start of return month t is yields[t] (the previous month-end).
@@ -92,8 +82,7 @@ double rf_of(const World& w, int t, RateBasis basis) {
   return NAN;
 }
 
-EvaluationSettings settings_with(RateBasis basis,
-                                 ErrorKind errors = ErrorKind::newey_west) {
+EvaluationSettings settings_with(RateBasis basis, ErrorKind errors = ErrorKind::newey_west) {
   EvaluationSettings s;
   s.rate_basis = basis;
   s.covariance.kind = errors;
@@ -195,22 +184,23 @@ TEST(EvaluationRates, RiskFreeUsesTheYieldKnownAtThePeriodStart) {
   w.shared.rate.yields = {dates, values};
 
   const Evaluator ev(w.shared, Frequency::monthly, settings_with(RateBasis::compound));
-  const auto r = ev.evaluate(
-      returns("s", w.dates, strategy_values(w, RateBasis::compound, 0.001, 0.5, noise_of(24, 3, 0.01))));
+  const auto r = ev.evaluate(returns(
+      "s", w.dates, strategy_values(w, RateBasis::compound, 0.001, 0.5, noise_of(24, 3, 0.01))));
   ASSERT_EQ(r.risk_free.size(), 24u);
   for (int t = 0; t < 24; ++t)
     EXPECT_NEAR(r.risk_free[static_cast<std::size_t>(t)],
                 std::pow(1.0 + w.yields[static_cast<std::size_t>(t)] / 100.0, 1.0 / 12.0) - 1.0,
                 1e-17)
         << "month " << t;
-  EXPECT_NEAR(r.risk_free[6], 0.00407412, 5e-9);  // 2015-07, from the 5% of 2015-06-30
+  EXPECT_NEAR(r.risk_free[6], 0.00407412, 5e-9);            // 2015-07, from the 5% of 2015-06-30
   EXPECT_GT(std::fabs(r.risk_free[5] - 0.00407412), 1e-6);  // 2015-06 does not see it yet
 
   // End timing (look-ahead, by request) reads the yield at the period's own end instead.
   EvaluationSettings end = settings_with(RateBasis::compound);
   end.rate_timing = RateTiming::end;
   const Evaluator ev_end(w.shared, Frequency::monthly, end);
-  const auto r_end = ev_end.evaluate(returns("s", w.dates, strategy_values(w, RateBasis::compound, 0.0, 1.0)));
+  const auto r_end =
+      ev_end.evaluate(returns("s", w.dates, strategy_values(w, RateBasis::compound, 0.0, 1.0)));
   ASSERT_GE(r_end.risk_free.size(), 6u);
   EXPECT_NEAR(r_end.risk_free[5], 0.00407412, 5e-9);  // 2015-06 with its own month-end 5%
 }
@@ -224,8 +214,11 @@ TEST(EvaluationResampling, DailyStrategyCompoundsToMonthly) {
   std::vector<double> market;
   for (int t = 0; t < 11; ++t) market.push_back(0.01 * std::sin(1.3 * t) + 0.004);
   shared.benchmark = returns("market", dates, market);
-  shared.rate = {"bills", "1M", {month_ends(2021, 1, 12), std::vector<double>(12, 2.0)},
-                 RateUnit::percent, RateQuote::yield};
+  shared.rate = {"bills",
+                 "1M",
+                 {month_ends(2021, 1, 12), std::vector<double>(12, 2.0)},
+                 RateUnit::percent,
+                 RateQuote::yield};
   // Every weekday from Monday 2021-02-01 to Friday 2021-12-31: no partial month.
   std::vector<Day> days;
   std::vector<double> daily;
@@ -280,8 +273,7 @@ TEST(EvaluationDerived, AnnualizeCompoundAndArithmetic) {
 TEST(EvaluationDerived, RatiosEqualIndependentComputations) {
   const int T = 60;
   const World w = make_world(T, 11);
-  const auto values =
-      strategy_values(w, RateBasis::compound, 0.003, 1.1, noise_of(T, 5, 0.04));
+  const auto values = strategy_values(w, RateBasis::compound, 0.003, 1.1, noise_of(T, 5, 0.04));
   const Evaluator ev(w.shared, Frequency::monthly, settings_with(RateBasis::compound));
   const auto r = ev.evaluate(returns("s", w.dates, values));
   ASSERT_EQ(r.sample.observations, T);
@@ -298,7 +290,8 @@ TEST(EvaluationDerived, RatiosEqualIndependentComputations) {
   const double alpha = mean_of(ex_s) - beta * mean_of(ex_m);
   double rss = 0;
   for (int t = 0; t < T; ++t) {
-    const double e = ex_s[static_cast<std::size_t>(t)] - alpha - beta * ex_m[static_cast<std::size_t>(t)];
+    const double e =
+        ex_s[static_cast<std::size_t>(t)] - alpha - beta * ex_m[static_cast<std::size_t>(t)];
     rss += e * e;
   }
   const double sd_e = std::sqrt(rss / (T - 2));  // s of the regression, T - k
@@ -333,7 +326,8 @@ TEST(EvaluationDerived, UpAndDownMarketBeta) {
   for (int t = 0; t < T; ++t) {
     const double rf = rf_of(w, t, RateBasis::compound);
     // market excess alternating in sign, of varying size
-    const double x = (t % 2 == 0 ? 1.0 : -1.0) * (0.005 + 0.001 * (t % 7)) + (t % 5 == 0 ? 0.02 : 0.0);
+    const double x =
+        (t % 2 == 0 ? 1.0 : -1.0) * (0.005 + 0.001 * (t % 7)) + (t % 5 == 0 ? 0.02 : 0.0);
     w.market[static_cast<std::size_t>(t)] = rf + x;
     s.push_back(rf + (x > 0 ? 1.5 * x : 0.5 * x));
     (x > 0 ? up : down) += 1;
@@ -369,7 +363,8 @@ TEST(EvaluationSample, ShortSampleWarningBelow36Months) {
 // T < k + 2 cannot be estimated: Error with ExitCode::estimation; T = k + 2 can.
 TEST(EvaluationSample, TooShortThrowsEstimationError) {
   const World w = make_world(4);
-  const Evaluator ev(w.shared, Frequency::monthly, settings_with(RateBasis::compound, ErrorKind::classic));
+  const Evaluator ev(w.shared, Frequency::monthly,
+                     settings_with(RateBasis::compound, ErrorKind::classic));
   const auto values = strategy_values(w, RateBasis::compound, 0.001, 1.0, noise_of(4, 9, 0.02));
   std::vector<Day> three(w.dates.begin(), w.dates.begin() + 3);
   std::vector<double> three_values(values.begin(), values.begin() + 3);
@@ -466,8 +461,7 @@ TEST(EvaluationMany, BitIdenticalToEvaluateForEachStrategy) {
 TEST(EvaluationSample, MissingBenchmarkMonthIsDroppedAndReported) {
   const int T = 48;
   const World full = make_world(T, 21);
-  const auto values =
-      strategy_values(full, RateBasis::compound, 0.001, 0.9, noise_of(T, 8, 0.02));
+  const auto values = strategy_values(full, RateBasis::compound, 0.001, 0.9, noise_of(T, 8, 0.02));
   const auto strategy = returns("s", full.dates, values);
   const std::size_t hole = 17;  // 2016-06
   ASSERT_EQ(period_label(Frequency::monthly, period_key(Frequency::monthly, full.dates[hole])),
@@ -529,8 +523,8 @@ TEST(EvaluationReading, StudyAndStrategyRunsAreMentioned) {
   const World w = make_world(48);
   const EvaluationSettings s = settings_with(RateBasis::compound);
   const Evaluator ev(w.shared, Frequency::monthly, s);
-  const auto r = ev.evaluate(
-      returns("s", w.dates, strategy_values(w, RateBasis::compound, 0.001, 0.8, noise_of(48, 6, 0.02))));
+  const auto r = ev.evaluate(returns(
+      "s", w.dates, strategy_values(w, RateBasis::compound, 0.001, 0.8, noise_of(48, 6, 0.02))));
   const auto joined = [](const std::vector<std::string>& v) {
     std::string all;
     for (const auto& x : v) all += x + "\n";

@@ -26,6 +26,9 @@
 namespace alphatrail::core {
 namespace {
 
+using testing::month_end;
+using testing::month_ends;
+
 using nlohmann::json;
 
 // True when two doubles have the same bits (NaN included): "bit for bit".
@@ -319,22 +322,6 @@ TEST(RollingStatsmodels, NeweyWestWindowsMatchHacFits) {
 }
 
 // --- through the Evaluator ------------------------------------------------------------------
-
-Day month_end(int year, int month) {
-  return to_day({year, month, days_in_month(year, month)});
-}
-
-std::vector<Day> month_ends(int year, int month, int n) {
-  std::vector<Day> out;
-  for (int i = 0; i < n; ++i) {
-    out.push_back(month_end(year, month));
-    if (++month == 13) {
-      month = 1;
-      ++year;
-    }
-  }
-  return out;
-}
 
 ReturnInput monthly(std::string name, std::vector<Day> dates, std::vector<double> values) {
   return ReturnInput{std::move(name), {std::move(dates), std::move(values)}, Frequency::monthly};

@@ -142,7 +142,8 @@ CommandResult run_alphatrail(const std::vector<std::string>& args,
 // factor set brindle-styles, six strategies; runs 1-3 'trend-*' (study trend-lookbacks), runs
 // 4-6 carry-g10, defensive-tilt and crash-hedge. (The demo itself goes on to restate the index
 // and re-run; these tests make their own revisions.) Returns an error text, empty on success.
-std::string build_six_run_ledger(const std::filesystem::path& demo, const std::filesystem::path& ledger) {
+std::string build_six_run_ledger(const std::filesystem::path& demo,
+                                 const std::filesystem::path& ledger) {
   const std::filesystem::path data = demo.string() + "-data";
   const auto file = [&](const char* name) { return (data / name).string(); };
   const std::vector<std::vector<std::string>> steps{
@@ -163,10 +164,46 @@ std::string build_six_run_ledger(const std::filesystem::path& demo, const std::f
        "brindle-styles", "--note", "demo: other books"}};
   for (const auto& args : steps) {
     const CommandResult r = run_alphatrail(args);
-    if (r.exit_code != 0) return fmt::format("{} {} failed: {}", args[2], args.size() > 3 ? args[3] : "", r.err);
+    if (r.exit_code != 0)
+      return fmt::format("{} {} failed: {}", args[2], args.size() > 3 ? args[3] : "", r.err);
   }
   SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
   db.exec("PRAGMA wal_checkpoint(TRUNCATE)");
+  return "";
+}
+
+core::Day month_end(int year, int month) {
+  return core::to_day({year, month, core::days_in_month(year, month)});
+}
+
+std::vector<core::Day> month_ends(int year, int month, int n) {
+  std::vector<core::Day> out;
+  for (int i = 0; i < n; ++i) {
+    out.push_back(month_end(year, month));
+    if (++month == 13) {
+      month = 1;
+      ++year;
+    }
+  }
+  return out;
+}
+
+std::string ingest_evaluate_fixtures(const std::filesystem::path& ledger) {
+  const auto fixture = [](const char* name) {
+    return source_path(std::string("fixtures/evaluate/") + name).string();
+  };
+  const std::vector<std::vector<std::string>> ingests{
+      {"strategy", fixture("strategies.csv")},
+      {"strategy", fixture("tiny.csv")},
+      {"benchmark", fixture("benchmark.csv"), "--levels", "--name", "market"},
+      {"rate", fixture("bills.csv"), "--name", "bills"},
+      {"factor", fixture("factors.csv"), "--name", "ff"}};
+  for (const auto& args : ingests) {
+    std::vector<std::string> all{"--ledger", ledger.string(), "ingest"};
+    all.insert(all.end(), args.begin(), args.end());
+    const CommandResult r = run_alphatrail(all);
+    if (r.exit_code != 0) return fmt::format("ingest {}: {}", args[1], r.err);
+  }
   return "";
 }
 

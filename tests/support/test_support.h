@@ -5,6 +5,8 @@
 #include <string>
 #include <vector>
 
+#include "core/dates.h"
+
 namespace alphatrail::testing {
 
 // Returns the path of a file below the source tree, e.g. source_path("fixtures/x.csv").
@@ -57,5 +59,16 @@ std::vector<std::string> lines_of(const std::string& text);
 
 // Reads a whole file.
 std::string read_file(const std::filesystem::path& path);
+
+// Returns the last day of a month, and the month ends of n consecutive months from (year, month).
+// Example: month_ends(2020, 12, 2) is 2020-12-31, 2021-01-31.
+core::Day month_end(int year, int month);
+std::vector<core::Day> month_ends(int year, int month, int n);
+
+// Ingests fixtures/evaluate into a ledger (created when missing): strategies trend-fast,
+// trend-slow, carry (2010-01 .. 2019-12) and tiny (3 months); benchmark "market" from levels;
+// rate curve "bills" (1M, 3M, percent); factor set "ff" (SMB, HML). Returns an error text,
+// empty on success.
+std::string ingest_evaluate_fixtures(const std::filesystem::path& ledger);
 
 }  // namespace alphatrail::testing
