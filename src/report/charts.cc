@@ -307,7 +307,7 @@ std::string scatter_chart(const ScatterInput& in, const Frame& f) {
     w.leaf("path", "class", "intercept", "d", diamond(x0, y0, 6), "fill", style(3).colour, "stroke",
            kInk);
     halo_label(w, "intercept-label", x0 + 10, y0 - 8, "start",
-               fmt::format("alpha {:.2f}{}", a, unit));
+               fmt::format("alpha {:+.3f}{}", a, unit));
   }
   return w.finish();
 }

@@ -134,7 +134,7 @@ TEST(ScatterChart, DotsFitLineAndInterceptSitWhereTheScalesPutThem) {
   ASSERT_EQ(intercept.size(), 1u);
   EXPECT_EQ(attr(intercept[0], "d").substr(0, 1 + number(xs.map(0)).size()),
             "M" + number(xs.map(0)));
-  EXPECT_NE(svg.find(">alpha 0.50% per month<"), std::string::npos);
+  EXPECT_NE(svg.find(">alpha +0.500% per month<"), std::string::npos);
   EXPECT_EQ(with_class(svg, "zero").size(), 2u);  // horizontal and vertical zero lines
 }
 
