@@ -226,18 +226,7 @@ Reference compute_reference(const testing::ScratchDir& dir) {
       << run.err;
   Reference r;
   if (run.exit_code != 0) return r;
-  std::istringstream in(testing::read_file(dir / "data.csv"));
-  std::string line;
-  std::getline(in, line);
-  EXPECT_EQ(line, "strategy,market,size");
-  std::vector<std::vector<double>> rows;
-  while (std::getline(in, line)) {
-    if (line.empty()) continue;
-    std::vector<double> row;
-    std::istringstream fields(line);
-    for (std::string field; std::getline(fields, field, ',');) row.push_back(std::stod(field));
-    rows.push_back(row);
-  }
+  const auto rows = testing::read_number_rows(dir / "data.csv", "strategy,market,size");
   const auto T = static_cast<Eigen::Index>(rows.size());
   r.data.X.resize(T, 3);
   r.data.y.resize(T);

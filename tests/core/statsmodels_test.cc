@@ -5,10 +5,9 @@
 // tests/reference/statsmodels_reference.py (see tests/reference/README.md).
 #include <gtest/gtest.h>
 
-#include <nlohmann/json.hpp>
-
 #include <cmath>
 #include <fstream>
+#include <nlohmann/json.hpp>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -29,19 +28,7 @@ struct Sample {
 };
 
 Sample read_sample(const std::filesystem::path& file) {
-  std::istringstream in(testing::read_file(file));
-  std::string line;
-  std::getline(in, line);
-  EXPECT_EQ(line, "strategy,market,size,value");
-  std::vector<std::vector<double>> rows;
-  while (std::getline(in, line)) {
-    if (line.empty()) continue;
-    std::vector<double> row;
-    std::istringstream fields(line);
-    for (std::string field; std::getline(fields, field, ',');) row.push_back(std::stod(field));
-    EXPECT_EQ(row.size(), 4u) << line;
-    rows.push_back(row);
-  }
+  const auto rows = testing::read_number_rows(file, "strategy,market,size,value");
   Sample s;
   const auto T = static_cast<Eigen::Index>(rows.size());
   s.strategy.resize(T);
@@ -100,7 +87,8 @@ void compare_fit(const std::string& label, const OlsResult& fit, const json& ref
     }
   }
   expect_relative(fit.r_squared, ref["rsquared"].get<double>(), label + " R-squared");
-  expect_relative(fit.adj_r_squared, ref["rsquared_adj"].get<double>(), label + " adjusted R-squared");
+  expect_relative(fit.adj_r_squared, ref["rsquared_adj"].get<double>(),
+                  label + " adjusted R-squared");
   expect_relative(fit.rss, ref["ssr"].get<double>(), label + " residual sum of squares");
 }
 
@@ -134,7 +122,8 @@ TEST(Statsmodels, MatchesOlsAndEveryCovarianceKind) {
     const json& classic = part["fits"]["classic"];
     int compared = 0;
     for (const auto& [name, ref] : part["fits"].items()) {
-      const std::string label = std::string(with_intercept ? "with" : "without") + " intercept, " + name;
+      const std::string label =
+          std::string(with_intercept ? "with" : "without") + " intercept, " + name;
       const CovarianceOptions opts = options_for(name);
       const OlsResult fit = fit_ols(X, sample.strategy, names, with_intercept, opts);
       EXPECT_EQ(fit.lags, opts.kind == ErrorKind::newey_west ? opts.lags : 0) << label;

@@ -3,10 +3,12 @@
 #include <SQLiteCpp/Database.h>
 #include <fcntl.h>
 #include <fmt/format.h>
+#include <gtest/gtest.h>
 #include <spawn.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <array>
 #include <cstdlib>
 #include <fstream>
@@ -170,6 +172,25 @@ std::string build_six_run_ledger(const std::filesystem::path& demo,
   SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
   db.exec("PRAGMA wal_checkpoint(TRUNCATE)");
   return "";
+}
+
+std::vector<std::vector<double>> read_number_rows(const std::filesystem::path& file,
+                                                  const std::string& header) {
+  std::istringstream in(read_file(file));
+  std::string line;
+  std::getline(in, line);
+  EXPECT_EQ(line, header) << file;
+  const auto columns = static_cast<std::size_t>(std::count(header.begin(), header.end(), ',') + 1);
+  std::vector<std::vector<double>> rows;
+  while (std::getline(in, line)) {
+    if (line.empty()) continue;
+    std::vector<double> row;
+    std::istringstream fields(line);
+    for (std::string field; std::getline(fields, field, ',');) row.push_back(std::stod(field));
+    EXPECT_EQ(row.size(), columns) << file << ": " << line;
+    rows.push_back(row);
+  }
+  return rows;
 }
 
 core::Day month_end(int year, int month) {

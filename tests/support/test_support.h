@@ -60,6 +60,11 @@ std::vector<std::string> lines_of(const std::string& text);
 // Reads a whole file.
 std::string read_file(const std::filesystem::path& path);
 
+// Reads a CSV of numbers written by a reference script: checks the header line and that every
+// row has one number per column (failing the test otherwise) and returns the rows.
+std::vector<std::vector<double>> read_number_rows(const std::filesystem::path& file,
+                                                  const std::string& header);
+
 // Returns the last day of a month, and the month ends of n consecutive months from (year, month).
 // Example: month_ends(2020, 12, 2) is 2020-12-31, 2021-01-31.
 core::Day month_end(int year, int month);
