@@ -23,7 +23,8 @@ inline unsigned worker_count(std::size_t items, std::size_t min_per_worker, int 
 }
 
 // Runs task(0..tasks-1) on up to `tasks` threads (task 0 on the caller's) and rethrows the
-// error of the lowest-numbered failing task, so the outcome does not depend on timing.
+// error of the lowest-numbered failing task, so the outcome does not depend on timing. A task
+// whose thread cannot start runs on the caller after task 0, so task 0 may feed the others.
 template <typename Task>
 void run_parallel(std::size_t tasks, const Task& task) {
   std::vector<std::exception_ptr> errors(tasks);
@@ -35,14 +36,16 @@ void run_parallel(std::size_t tasks, const Task& task) {
     }
   };
   std::vector<std::thread> threads;
+  std::vector<std::size_t> here;  // no thread to spare: these run on the caller, after task 0
   for (std::size_t k = 1; k < tasks; ++k) {
     try {
       threads.emplace_back(guarded, k);
     } catch (const std::system_error&) {
-      guarded(k);  // no thread to spare: do the work here
+      here.push_back(k);
     }
   }
   if (tasks > 0) guarded(0);
+  for (const std::size_t k : here) guarded(k);
   for (auto& t : threads) t.join();
   for (const auto& e : errors)
     if (e) std::rethrow_exception(e);

@@ -11,6 +11,7 @@
 #include <cmath>
 #include <condition_variable>
 #include <cstdlib>
+#include <deque>
 #include <exception>
 #include <mutex>
 #include <thread>
@@ -295,58 +296,91 @@ std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name
 
 std::vector<LoadedVersion> load_versions(Ledger& ledger,
                                          const std::vector<VersionRequest>& requests) {
-  // Reading is SQLite's and serial; decoding the stored text is pure and shared out.
+  // Reading is SQLite's and serial; decoding the stored text is pure. The caller reads while
+  // the other workers decode what has been read, then decodes the rest with them.
   std::vector<LoadedVersion> loaded(requests.size());
   struct Pending {
     std::size_t version;
     std::string name;
     std::string text;
+    ColumnData column;
   };
-  std::vector<Pending> pending;
-  for (std::size_t r = 0; r < requests.size(); ++r) {
-    const auto& [name, version] = requests[r];
+  std::deque<Pending> pending;  // push_back keeps references to earlier items valid
+  std::size_t next = 0;         // the first item no worker has taken yet
+  bool reading = true;
+  std::mutex mutex;
+  std::condition_variable arrived;
+
+  const auto decode_until_done = [&] {
+    while (true) {
+      std::unique_lock lock(mutex);
+      arrived.wait(lock, [&] { return next < pending.size() || !reading; });
+      if (next >= pending.size()) return;
+      Pending& item = pending[next++];
+      lock.unlock();
+      item.column = decode_values_json(item.name, item.text);
+      std::string().swap(item.text);  // keep the peak low
+    }
+  };
+  const auto stop_reading = [&] {
     {
-      auto q = ledger.statement(
-          fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = "
-                      "s.series_id WHERE s.name = ? AND (? IS NULL OR v.version = ?) ORDER BY "
-                      "v.version DESC LIMIT 1",
-                      kVersionColumns));
-      q->bind(1, name);
-      if (version) {
-        q->bind(2, *version);
-        q->bind(3, *version);
-      }
-      if (!q->executeStep()) {
-        if (version) version_history(ledger, name);  // names an unknown series first
-        throw Error(
-            ExitCode::not_found,
-            version ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
-                                  "lists its versions",
-                                  name, *version, name)
-                    : fmt::format("no series named '{}'; `alphatrail series` lists them", name));
-      }
-      loaded[r].info = read_version_info(*q);
+      std::lock_guard lock(mutex);
+      reading = false;
     }
-    auto cols = ledger.statement(
-        "SELECT column_name, values_json FROM version_columns WHERE version_id = ? ORDER BY "
-        "position");
-    cols->bind(1, loaded[r].info.version_id);
-    while (cols->executeStep()) {
-      const auto* text = static_cast<const char*>(cols->getColumn(1).getText());
-      const auto size = static_cast<std::size_t>(cols->getColumn(1).getBytes());
-      pending.push_back({r, cols->getColumn(0).getString(), std::string(text, size)});
+    arrived.notify_all();
+  };
+  const auto read_all = [&] {
+    for (std::size_t r = 0; r < requests.size(); ++r) {
+      const auto& [name, version] = requests[r];
+      {
+        auto q = ledger.statement(
+            fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = "
+                        "s.series_id WHERE s.name = ? AND (? IS NULL OR v.version = ?) ORDER BY "
+                        "v.version DESC LIMIT 1",
+                        kVersionColumns));
+        q->bind(1, name);
+        if (version) {
+          q->bind(2, *version);
+          q->bind(3, *version);
+        }
+        if (!q->executeStep()) {
+          if (version) version_history(ledger, name);  // names an unknown series first
+          throw Error(
+              ExitCode::not_found,
+              version ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
+                                    "lists its versions",
+                                    name, *version, name)
+                      : fmt::format("no series named '{}'; `alphatrail series` lists them", name));
+        }
+        loaded[r].info = read_version_info(*q);
+      }
+      auto cols = ledger.statement(
+          "SELECT column_name, values_json FROM version_columns WHERE version_id = ? ORDER BY "
+          "position");
+      cols->bind(1, loaded[r].info.version_id);
+      while (cols->executeStep()) {
+        const auto* text = static_cast<const char*>(cols->getColumn(1).getText());
+        const auto size = static_cast<std::size_t>(cols->getColumn(1).getBytes());
+        {
+          std::lock_guard lock(mutex);
+          pending.push_back({r, cols->getColumn(0).getString(), std::string(text, size), {}});
+        }
+        arrived.notify_one();
+      }
     }
-  }
-  std::vector<ColumnData> decoded(pending.size());
-  core::parallel_ranges(pending.size(), core::worker_count(pending.size(), 8),
-                        [&](std::size_t begin, std::size_t end) {
-                          for (std::size_t i = begin; i < end; ++i) {
-                            decoded[i] = decode_values_json(pending[i].name, pending[i].text);
-                            std::string().swap(pending[i].text);  // keep the peak low
-                          }
-                        });
-  for (std::size_t i = 0; i < pending.size(); ++i)
-    loaded[pending[i].version].columns.push_back(std::move(decoded[i]));
+  };
+  core::run_parallel(core::worker_count(requests.size(), 8), [&](std::size_t task) {
+    if (task > 0) return decode_until_done();
+    try {
+      read_all();
+    } catch (...) {
+      stop_reading();  // the decoders finish what was read, then the error surfaces
+      throw;
+    }
+    stop_reading();
+    decode_until_done();
+  });
+  for (auto& item : pending) loaded[item.version].columns.push_back(std::move(item.column));
   return loaded;
 }
 

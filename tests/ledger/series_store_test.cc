@@ -321,3 +321,46 @@ TEST(UtcNow, IsIsoWithMilliseconds) {
 }
 
 }  // namespace
+
+namespace {
+
+// Many versions at once: decoding overlaps reading on worker threads; the result must be that
+// of load_version on each, in request order, and an unknown name anywhere must fail cleanly.
+TEST_F(SeriesStore, LoadsManyVersionsAsLoadVersionDoes) {
+  std::vector<ledger::NewVersion> batch;
+  for (int i = 0; i < 120; ++i)
+    batch.push_back(returns(fmt::format("s{}", i), {i * 1e-4, 0.01, kNaN, -0.02 + i * 1e-5}));
+  store(batch);
+  store({returns("s7", {0.5, 0.6})});  // s7 gets a version 2
+  std::vector<ledger::VersionRequest> wanted;
+  for (int i = 119; i >= 0; --i) wanted.push_back({fmt::format("s{}", i), std::nullopt});
+  wanted.push_back({"s7", 1});
+  const auto many = ledger::load_versions(ledger_, wanted);
+  ASSERT_EQ(many.size(), wanted.size());
+  for (std::size_t r = 0; r < wanted.size(); ++r) {
+    const auto one = ledger::load_version(ledger_, wanted[r].name, wanted[r].version);
+    EXPECT_EQ(many[r].info.name, wanted[r].name);
+    EXPECT_EQ(many[r].info.version, one.info.version);
+    ASSERT_EQ(many[r].columns.size(), 1u);
+    EXPECT_EQ(many[r].columns[0].dates, one.columns[0].dates);
+    ASSERT_EQ(many[r].columns[0].values.size(), one.columns[0].values.size());
+    for (std::size_t t = 0; t < one.columns[0].values.size(); ++t)
+      EXPECT_EQ(bits(many[r].columns[0].values[t]), bits(one.columns[0].values[t]));
+  }
+  EXPECT_EQ(many[0].info.name, "s119");
+  EXPECT_EQ(many[112].info.version, 2);  // s7, latest
+  EXPECT_EQ(many[112].columns[0].values[0], 0.5);
+  EXPECT_EQ(many[120].info.version, 1);  // s7 pinned to version 1
+  EXPECT_EQ(many[120].columns[0].values[0], 7e-4);
+
+  wanted.insert(wanted.begin() + 60, {"missing", std::nullopt});
+  try {
+    ledger::load_versions(ledger_, wanted);
+    ADD_FAILURE() << "an unknown series was loaded";
+  } catch (const Error& e) {
+    EXPECT_EQ(e.code(), ExitCode::not_found);
+    EXPECT_NE(std::string(e.what()).find("no series named 'missing'"), std::string::npos);
+  }
+}
+
+}  // namespace
