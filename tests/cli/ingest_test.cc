@@ -3,14 +3,14 @@
 // handling read back through the observations view, and all-or-nothing storage.
 #include <SQLiteCpp/Database.h>
 #include <SQLiteCpp/Statement.h>
-#include <gtest/gtest.h>
 #include <fcntl.h>
+#include <fmt/format.h>
+#include <gtest/gtest.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include <csignal>
-
 #include <cmath>
+#include <csignal>
 #include <filesystem>
 #include <optional>
 #include <sstream>
@@ -24,8 +24,8 @@
 namespace {
 
 namespace fs = std::filesystem;
-using alphatrail::testing::contains;
 using alphatrail::testing::CommandResult;
+using alphatrail::testing::contains;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::run_program;
@@ -84,8 +84,8 @@ struct Observation {
 };
 
 // Reads one version of a series (one column) back through the observations view.
-std::vector<Observation> observations(const fs::path& path, const std::string& series,
-                                      int version, const std::string& column = "") {
+std::vector<Observation> observations(const fs::path& path, const std::string& series, int version,
+                                      const std::string& column = "") {
   SQLite::Database db(path.string(), SQLite::OPEN_READONLY);
   SQLite::Statement q(db,
                       "SELECT date, value FROM observations WHERE series = ? AND version = ? "
@@ -106,12 +106,13 @@ std::vector<Observation> observations(const fs::path& path, const std::string& s
 // A header "date,s01,...,sNN" and `rows` month-end rows of small returns.
 std::string wide_csv(int columns, int rows, const std::string& prefix = "s") {
   std::string csv = "date";
-  for (int c = 1; c <= columns; ++c) csv += "," + prefix + (c < 10 ? "0" : "") + std::to_string(c);
+  // fmt::format, not "," + ... + std::to_string(c): GCC 12 warns falsely on that (-Wrestrict).
+  for (int c = 1; c <= columns; ++c) csv += fmt::format(",{}{:02}", prefix, c);
   csv += '\n';
   const char* dates[] = {"2021-01-31", "2021-02-28", "2021-03-31", "2021-04-30", "2021-05-31"};
   for (int r = 0; r < rows; ++r) {
     csv += dates[r];
-    for (int c = 1; c <= columns; ++c) csv += "," + std::to_string(c) + "e-4";
+    for (int c = 1; c <= columns; ++c) csv += fmt::format(",{}e-4", c);
     csv += '\n';
   }
   return csv;
@@ -165,8 +166,8 @@ class IngestTest : public ::testing::Test {
 // "FILE:LINE:COLUMN: " for a cell, "FILE:LINE: " for a row, "FILE: " for the whole file.
 std::string at(const std::string& file, long line = 0, long column = 0) {
   std::string s = file;
-  if (line > 0) s += ":" + std::to_string(line);
-  if (column > 0) s += ":" + std::to_string(column);
+  if (line > 0) s += fmt::format(":{}", line);  // (not ":" + std::to_string: GCC 12 -Wrestrict)
+  if (column > 0) s += fmt::format(":{}", column);
   return s + ": ";
 }
 
@@ -225,8 +226,7 @@ TEST_F(IngestTest, BlankLineBetweenRowsIsRejected) {
 
 TEST_F(IngestTest, UnparseableDateIsRejected) {
   const std::string file = write("baddate.csv", "date,a\n2021-01-31,0.01\n31/02/2021,0.02\n");
-  expect_rejected({"strategy", file}, at(file, 3, 1) + "'31/02/2021' is not a date",
-                  "YYYY-MM-DD");
+  expect_rejected({"strategy", file}, at(file, 3, 1) + "'31/02/2021' is not a date", "YYYY-MM-DD");
 }
 
 TEST_F(IngestTest, EmptyDateIsRejected) {
@@ -255,7 +255,8 @@ TEST_F(IngestTest, MixedDateFormsAreRejected) {
 }
 
 TEST_F(IngestTest, UnparseableNumberIsRejected) {
-  const std::string file = write("word.csv", "date,a,b\n2021-01-31,0.01,0.02\n2021-02-28,0.02,abc\n");
+  const std::string file =
+      write("word.csv", "date,a,b\n2021-01-31,0.01,0.02\n2021-02-28,0.02,abc\n");
   expect_rejected({"strategy", file}, at(file, 3, 3) + "'abc' is not a number", "plain numbers");
 }
 
@@ -313,8 +314,7 @@ TEST_F(IngestTest, PercentLookingValuesWithoutPercentAreRejected) {
 
 TEST_F(IngestTest, LevelLookingValuesWithoutLevelsAreRejected) {
   const std::string file = write("px.csv", "date,a\n2021-01-31,100\n2021-02-28,101.5\n");
-  expect_rejected({"strategy", file}, at(file, 1, 2) + "column 'a' looks like levels",
-                  "--levels");
+  expect_rejected({"strategy", file}, at(file, 1, 2) + "column 'a' looks like levels", "--levels");
 }
 
 TEST_F(IngestTest, ImplausibleRateIsRejected) {
@@ -334,22 +334,20 @@ TEST_F(IngestTest, ImplausibleDecimalRateIsRejected) {
 
 TEST_F(IngestTest, RateColumnThatIsNotATenorIsRejected) {
   const std::string file = write("rate.csv", "date,bill\n2021-01-31,0.05\n");
-  expect_rejected({"rate", file, "--name", "tbill"}, at(file, 1, 2) + "rate column 'bill' is not a tenor",
-                  "--tenor");
+  expect_rejected({"rate", file, "--name", "tbill"},
+                  at(file, 1, 2) + "rate column 'bill' is not a tenor", "--tenor");
 }
 
 TEST_F(IngestTest, ColumnsNamingAMissingColumnAreRejected) {
   const std::string file = write("cols.csv", "date,a,b\n2021-01-31,0.01,0.02\n");
   expect_rejected({"strategy", file, "--columns", "a,zzz"},
-                  at(file, 1) + "no column named 'zzz'; the header has: date, a, b",
-                  "--columns");
+                  at(file, 1) + "no column named 'zzz'; the header has: date, a, b", "--columns");
 }
 
 TEST_F(IngestTest, MissingDateColumnIsRejected) {
   const std::string file = write("cols.csv", "when,a\n2021-01-31,0.01\n");
   expect_rejected({"strategy", file, "--date-column", "date"},
-                  at(file, 1) + "no column named 'date'; the header has: when, a",
-                  "--date-column");
+                  at(file, 1) + "no column named 'date'; the header has: when, a", "--date-column");
 }
 
 TEST_F(IngestTest, FileWithoutValueColumnsIsRejected) {
@@ -360,8 +358,7 @@ TEST_F(IngestTest, FileWithoutValueColumnsIsRejected) {
 
 TEST_F(IngestTest, ColumnWithoutValuesIsRejected) {
   const std::string file = write("hollow.csv", "date,a,b\n2021-01-31,0.01,\n2021-02-28,0.02,NA\n");
-  expect_rejected({"strategy", file}, at(file, 1, 3) + "column 'b' has no values",
-                  "--columns");
+  expect_rejected({"strategy", file}, at(file, 1, 3) + "column 'b' has no values", "--columns");
 }
 
 TEST_F(IngestTest, DuplicateColumnNameIsRejected) {
@@ -387,8 +384,8 @@ TEST_F(IngestTest, FactorAndRateFilesNeedAName) {
   const std::string before = dump_ledger(ledger_);
   const std::string factors = write("ff.csv", "date,mkt_rf,smb\n2021-01-31,0.01,0.002\n");
   const std::string rates = write("r.csv", "date,3M\n2021-01-31,0.05\n");
-  for (const auto& args : std::vector<std::vector<std::string>>{{"factor", factors},
-                                                                {"rate", rates}}) {
+  for (const auto& args :
+       std::vector<std::vector<std::string>>{{"factor", factors}, {"rate", rates}}) {
     const CommandResult r = ingest(args);
     EXPECT_EQ(r.exit_code, 2) << args[0] << ": " << r.err;
     EXPECT_TRUE(contains(r.err, "--name")) << r.err;
@@ -400,13 +397,13 @@ TEST_F(IngestTest, ConflictingUnitOptionsAreUsageErrors) {
   seed();
   const std::string before = dump_ledger(ledger_);
   const std::string file = write("a.csv", "date,a\n2021-01-31,0.01\n");
-  for (const auto& args : std::vector<std::vector<std::string>>{
-           {"strategy", file, "--percent", "--levels"},
-           {"strategy", file, "--decimal"},
-           {"strategy", file, "--quote", "discount"},
-           {"strategy", file, "--tenor", "3M"},
-           {"rate", file, "--name", "r", "--levels"},
-           {"bond", file}}) {
+  for (const auto& args :
+       std::vector<std::vector<std::string>>{{"strategy", file, "--percent", "--levels"},
+                                             {"strategy", file, "--decimal"},
+                                             {"strategy", file, "--quote", "discount"},
+                                             {"strategy", file, "--tenor", "3M"},
+                                             {"rate", file, "--name", "r", "--levels"},
+                                             {"bond", file}}) {
     const CommandResult r = ingest(args);
     EXPECT_EQ(r.exit_code, 2) << args[0] << " " << args.back() << ": " << r.err;
     EXPECT_EQ(dump_ledger(ledger_), before);
@@ -434,8 +431,9 @@ TEST_F(IngestTest, DatesOutOfOrderAreSortedWithANote) {
       write("unsorted.csv", "date,a\n2021-03-31,0.03\n2021-01-31,0.01\n2021-02-28,0.02\n");
   const CommandResult r = ingest({"strategy", file});
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  EXPECT_TRUE(contains(r.err, "alphatrail: note: dates were out of order and have been sorted "
-                              "(line 3 has 2021-01-31 after 2021-03-31)\n"))
+  EXPECT_TRUE(contains(r.err,
+                       "alphatrail: note: dates were out of order and have been sorted "
+                       "(line 3 has 2021-01-31 after 2021-03-31)\n"))
       << r.err;
   const auto obs = observations(ledger_, "a", 1);
   ASSERT_EQ(obs.size(), 3u);
@@ -539,8 +537,9 @@ TEST_F(IngestTest, WideFileGivesOneSeriesPerColumn) {
   ASSERT_EQ(s37.size(), 4u);
   for (const auto& o : s37) EXPECT_DOUBLE_EQ(*o.value, 37e-4);
   EXPECT_EQ(s37.back().date, "2021-04-30");
-  EXPECT_EQ(text(ledger_, "SELECT column_name FROM version_columns c JOIN series_versions v "
-                          "USING (version_id) JOIN series s USING (series_id) WHERE s.name = 's50'"),
+  EXPECT_EQ(text(ledger_,
+                 "SELECT column_name FROM version_columns c JOIN series_versions v "
+                 "USING (version_id) JOIN series s USING (series_id) WHERE s.name = 's50'"),
             "s50");
 
   // All 50 again: one summary line, nothing written.
@@ -576,8 +575,9 @@ TEST_F(IngestTest, LevelsBecomeSimpleReturns) {
   EXPECT_FALSE(obs[3].value.has_value());  // 2021-05-31: no level the month before
   EXPECT_EQ(obs[4].date, "2021-06-30");
   EXPECT_DOUBLE_EQ(*obs[4].value, 132.0 / 120.0 - 1);
-  EXPECT_EQ(text(ledger_, "SELECT input_unit || '|' || unit || '|' || first_date || '|' || "
-                          "observations || '|' || missing FROM series_versions"),
+  EXPECT_EQ(text(ledger_,
+                 "SELECT input_unit || '|' || unit || '|' || first_date || '|' || "
+                 "observations || '|' || missing FROM series_versions"),
             "levels|decimal return|2021-02-28|5|2");
 }
 
@@ -608,9 +608,10 @@ TEST_F(IngestTest, RatesKeepTheirUnitAndQuote) {
   EXPECT_EQ(text(ledger_, "SELECT kind FROM series"), "rate");
   EXPECT_EQ(text(ledger_, "SELECT unit || '|' || input_unit || '|' || quote FROM series_versions"),
             "percent yield|percent|discount");
-  EXPECT_EQ(text(ledger_, "SELECT group_concat(column_name, ',') FROM "
-                          "(SELECT column_name FROM version_columns ORDER BY position)"),
-            "1M,3M");  // tenors upper-cased
+  EXPECT_EQ(text(ledger_,
+                 "SELECT group_concat(column_name, ',') FROM "
+                 "(SELECT column_name FROM version_columns ORDER BY position)"),
+            "1M,3M");                                                       // tenors upper-cased
   EXPECT_DOUBLE_EQ(*observations(ledger_, "ust", 1, "3M")[1].value, 0.06);  // not converted
 
   // Same numbers quoted as yields are other content: version 2.
@@ -622,8 +623,9 @@ TEST_F(IngestTest, RatesKeepTheirUnitAndQuote) {
   const std::string one = write("bill.csv", "date,yield\n2021-01-31,0.05\n");
   r = ingest({"rate", one, "--name", "bill", "--tenor", "13w", "--decimal"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  EXPECT_EQ(text(ledger_, "SELECT unit FROM series_versions v JOIN series s USING (series_id) "
-                          "WHERE s.name = 'bill'"),
+  EXPECT_EQ(text(ledger_,
+                 "SELECT unit FROM series_versions v JOIN series s USING (series_id) "
+                 "WHERE s.name = 'bill'"),
             "decimal yield");
   EXPECT_EQ(observations(ledger_, "bill", 1, "13W").size(), 1u);
 }
@@ -650,8 +652,9 @@ TEST_F(IngestTest, ColumnsDateColumnAndNameSelectAndRename) {
       write("sel.csv", "a,when,b,c\n0.01,2021-01-31,0.02,0.03\n0.04,2021-02-28,0.05,0.06\n");
   CommandResult r = ingest({"strategy", file, "--date-column", "when", "--columns", "c,a"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  EXPECT_EQ(text(ledger_, "SELECT group_concat(name, ',') FROM (SELECT name FROM series ORDER BY "
-                          "series_id)"),
+  EXPECT_EQ(text(ledger_,
+                 "SELECT group_concat(name, ',') FROM (SELECT name FROM series ORDER BY "
+                 "series_id)"),
             "a,c");  // file order, b left out
   EXPECT_DOUBLE_EQ(*observations(ledger_, "c", 1)[1].value, 0.06);
 
@@ -662,8 +665,9 @@ TEST_F(IngestTest, ColumnsDateColumnAndNameSelectAndRename) {
 }
 
 TEST_F(IngestTest, ByteOrderMarkAndCrlfAreAccepted) {
-  const std::string file =
-      write("excel.csv", "\xEF\xBB\xBF" "date,fund\r\n2021-01-31,0.01\r\n2021-02-28,0.02\r\n");
+  const std::string file = write("excel.csv",
+                                 "\xEF\xBB\xBF"
+                                 "date,fund\r\n2021-01-31,0.01\r\n2021-02-28,0.02\r\n");
   const CommandResult r = ingest({"strategy", file});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_EQ(text(ledger_, "SELECT name FROM series"), "fund");
@@ -672,8 +676,9 @@ TEST_F(IngestTest, ByteOrderMarkAndCrlfAreAccepted) {
 }
 
 TEST_F(IngestTest, CrlfFileReportsPhysicalLines) {
-  const std::string file =
-      write("crlf.csv", "\xEF\xBB\xBF" "date,fund\r\n2021-01-31,0.01\r\n2021-02-28,x\r\n");
+  const std::string file = write("crlf.csv",
+                                 "\xEF\xBB\xBF"
+                                 "date,fund\r\n2021-01-31,0.01\r\n2021-02-28,x\r\n");
   expect_rejected({"strategy", file}, at(file, 3, 2) + "'x' is not a number", "plain numbers");
 }
 
@@ -708,8 +713,9 @@ TEST_F(IngestTest, LeadingAndTrailingMissingValuesAreTrimmed) {
   ASSERT_EQ(ingest({"strategy", file}).exit_code, 0);
   EXPECT_EQ(text(ledger_, "SELECT values_json FROM version_columns WHERE column_name = 'b'"),
             R"({"2021-02-28":0.05})");
-  EXPECT_EQ(text(ledger_, "SELECT first_date || '|' || last_date || '|' || observations FROM "
-                          "series_versions v JOIN series s USING (series_id) WHERE s.name = 'b'"),
+  EXPECT_EQ(text(ledger_,
+                 "SELECT first_date || '|' || last_date || '|' || observations FROM "
+                 "series_versions v JOIN series s USING (series_id) WHERE s.name = 'b'"),
             "2021-02-28|2021-02-28|1");
 }
 
@@ -727,8 +733,9 @@ TEST_F(IngestTest, NoteAndSourceAreStored) {
 
   // Without --note the column is NULL.
   ASSERT_EQ(ingest({"strategy", write("other.csv", "date,other\n2021-01-31,0.01\n")}).exit_code, 0);
-  EXPECT_EQ(text(ledger_, "SELECT note FROM series_versions v JOIN series s USING (series_id) "
-                          "WHERE s.name = 'other'"),
+  EXPECT_EQ(text(ledger_,
+                 "SELECT note FROM series_versions v JOIN series s USING (series_id) "
+                 "WHERE s.name = 'other'"),
             "NULL");
 }
 
@@ -765,9 +772,9 @@ TEST_F(IngestTest, LedgerOptionBeforeOrAfterTheCommandAndFromTheEnvironment) {
   EXPECT_EQ(run_alphatrail({"--ledger", before.string(), "ingest", "strategy", file}).exit_code, 0);
   EXPECT_EQ(run_alphatrail({"ingest", "--ledger", after.string(), "strategy", file}).exit_code, 0);
   EXPECT_EQ(run_alphatrail({"ingest", "strategy", file, "--ledger", last.string()}).exit_code, 0);
-  EXPECT_EQ(run_alphatrail({"ingest", "strategy", file}, {"ALPHATRAIL_LEDGER=" + env.string()})
-                .exit_code,
-            0);
+  EXPECT_EQ(
+      run_alphatrail({"ingest", "strategy", file}, {"ALPHATRAIL_LEDGER=" + env.string()}).exit_code,
+      0);
   EXPECT_EQ(run_alphatrail({"--ledger", overridden.string(), "ingest", "strategy", file},
                            {"ALPHATRAIL_LEDGER=" + (dir_ / "unused.db").string()})
                 .exit_code,
@@ -813,7 +820,8 @@ TEST_F(IngestTest, NameOfAnotherKindRollsBackTheWholeFile) {
   std::string with_seed;
   std::istringstream lines(csv);
   std::string line;
-  for (int i = 0; std::getline(lines, line); ++i) with_seed += line + (i == 0 ? ",seed\n" : ",0.001\n");
+  for (int i = 0; std::getline(lines, line); ++i)
+    with_seed += line + (i == 0 ? ",seed\n" : ",0.001\n");
   const std::string file = write("clash.csv", with_seed);
   const CommandResult r = ingest({"benchmark", file});
   EXPECT_EQ(r.exit_code, 3) << r.err;
