@@ -26,6 +26,17 @@ void remove_ledger(const std::filesystem::path& path) {
   for (const char* suffix : {"", "-wal", "-shm"}) std::filesystem::remove(path.string() + suffix);
 }
 
+IngestRequest ingest_request(const DemoFile& file) {
+  IngestRequest request;
+  request.kind = file.kind;
+  request.file = file.path.string();
+  request.name = file.name;
+  request.percent = file.percent;
+  request.levels = file.levels;
+  request.note = file.note;
+  return request;
+}
+
 void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   const auto path = ledger::resolve_ledger_path(global.ledger);
   if (std::filesystem::exists(path)) {
@@ -45,13 +56,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
       "Vale Composite index and Alder Vale bills (invented data, seed {}).\n\n",
       options.seed);
   for (const auto& file : write_demo_files(folder, options.seed)) {
-    IngestRequest request;
-    request.kind = file.kind;
-    request.file = file.path.string();
-    request.name = file.name;
-    request.percent = file.percent;
-    request.levels = file.levels;
-    request.note = file.note;
+    const IngestRequest request = ingest_request(file);
     std::cout << fmt::format("$ alphatrail ingest {} {}{}{}{}\n", request.kind, request.file,
                              request.name.empty() ? "" : " --name " + request.name,
                              request.percent ? " --percent" : "",
@@ -88,13 +93,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   std::cout << fmt::format("\n$ alphatrail show {}\n\n", runs.front());
   print_run_text(std::cout, ledger::load_run(ledger, runs.front()));
   // The vendor restates a month of the index: re-run what it touched and show what changed.
-  const DemoFile restated = write_restated_benchmark(folder);
-  IngestRequest revision;
-  revision.kind = restated.kind;
-  revision.file = restated.path.string();
-  revision.name = restated.name;
-  revision.levels = restated.levels;
-  revision.note = restated.note;
+  const IngestRequest revision = ingest_request(write_restated_benchmark(folder));
   std::cout << fmt::format("$ alphatrail ingest benchmark {} --name {} --levels --note \"{}\"\n",
                            revision.file, revision.name, revision.note);
   ingest_file(path, revision, std::cout, std::cerr);

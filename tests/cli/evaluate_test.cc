@@ -22,17 +22,13 @@ namespace {
 namespace fs = std::filesystem;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
+using alphatrail::testing::evaluate_fixture;
 using alphatrail::testing::ingest_evaluate_fixtures;
 using alphatrail::testing::lines_of;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
-using alphatrail::testing::source_path;
 using nlohmann::json;
-
-std::string fixture(const std::string& name) {
-  return source_path("fixtures/evaluate/" + name).string();
-}
 
 // The ledger every test starts from: the fixtures ingested once, copied per test.
 //   strategies trend-fast, trend-slow, carry (2010-01 .. 2019-12) and tiny (3 months);
@@ -44,7 +40,7 @@ class EvaluateTest : public ::testing::Test {
     base_ = new ScratchDir();
     const std::string ledger = (*base_ / "base.db").string();
     ASSERT_EQ(ingest_evaluate_fixtures(ledger), "");
-    expected_ = new json(json::parse(read_file(fixture("expected.json"))));
+    expected_ = new json(json::parse(read_file(evaluate_fixture("expected.json"))));
   }
   static void TearDownTestSuite() {
     delete base_;

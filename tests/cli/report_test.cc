@@ -194,7 +194,7 @@ TEST_F(ReportTest, RunWithoutStoredRollingGetsWindowsComputedForThePage) {
 TEST_F(ReportTest, AllThreeKindsWorkOnIngestedFiles) {
   const std::string ledger = (scratch_->path() / "ingested.db").string();
   ASSERT_EQ(ingest_evaluate_fixtures(ledger), "");
-  const std::string revised = source_path("fixtures/evaluate/benchmark_revised.csv").string();
+  const std::string revised = evaluate_fixture("benchmark_revised.csv");
   const std::vector<std::vector<std::string>> steps{
       {"evaluate", "carry", "trend-*", "--benchmark", "market", "--rate", "bills", "--factor", "ff",
        "--study", "fixture-study", "--errors", "hc3", "--rolling", "24"},

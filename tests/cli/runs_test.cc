@@ -2,8 +2,8 @@
 // list and its filters, the JSON keys checked against the run objects of `show`, show's CSV
 // and its error for an unknown run, and stale marking after an input is revised.
 #include <SQLiteCpp/Database.h>
-#include <gtest/gtest.h>
 #include <fmt/format.h>
+#include <gtest/gtest.h>
 
 #include <cmath>
 #include <cstdlib>
@@ -18,17 +18,13 @@
 namespace {
 
 namespace fs = std::filesystem;
-using alphatrail::testing::contains;
-using alphatrail::testing::lines_of;
 using alphatrail::testing::CommandResult;
+using alphatrail::testing::contains;
+using alphatrail::testing::evaluate_fixture;
+using alphatrail::testing::lines_of;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
-using alphatrail::testing::source_path;
 using nlohmann::json;
-
-std::string fixture(const std::string& name) {
-  return source_path("fixtures/evaluate/" + name).string();
-}
 
 std::vector<std::string> split_csv_line(const std::string& line) {
   std::vector<std::string> out;
@@ -55,10 +51,10 @@ class RunsTest : public ::testing::Test {
   static void SetUpTestSuite() {
     dir_ = new ScratchDir();
     const std::vector<std::vector<std::string>> commands{
-        {"ingest", "strategy", fixture("strategies.csv")},
-        {"ingest", "benchmark", fixture("benchmark.csv"), "--levels", "--name", "market"},
-        {"ingest", "rate", fixture("bills.csv"), "--name", "bills"},
-        {"ingest", "factor", fixture("factors.csv"), "--name", "ff"},
+        {"ingest", "strategy", evaluate_fixture("strategies.csv")},
+        {"ingest", "benchmark", evaluate_fixture("benchmark.csv"), "--levels", "--name", "market"},
+        {"ingest", "rate", evaluate_fixture("bills.csv"), "--name", "bills"},
+        {"ingest", "factor", evaluate_fixture("factors.csv"), "--name", "ff"},
         {"evaluate", "trend-fast", "--benchmark", "market", "--rate", "bills"},
         {"evaluate", "trend-*", "--benchmark", "market", "--rate", "bills", "--study", "grid"},
         {"evaluate", "carry", "--factor", "ff", "--benchmark", "market", "--rate", "bills",
@@ -112,7 +108,8 @@ TEST_F(RunsTest, ListsRunsWithHeadlineFigures) {
     const json run = show_json(id);
     const std::string alpha_year =
         fmt::format("{:+.2f}%", 100 * run["statistics"]["alpha_annualized"].get<double>());
-    const std::string beta = fmt::format("{:.3f}", run["coefficients"][1]["estimate"].get<double>());
+    const std::string beta =
+        fmt::format("{:.3f}", run["coefficients"][1]["estimate"].get<double>());
     const std::string t = fmt::format("{:.2f}", run["coefficients"][0]["t_stat"].get<double>());
     const std::string hash = run["inputs_hash"].get<std::string>().substr(0, 12);
     bool found = false;
@@ -141,7 +138,8 @@ TEST_F(RunsTest, FiltersByStrategyAndStudy) {
   EXPECT_EQ(ids_of(runs_json({"--strategy", "trend-fast"})), (std::vector<int>{1, 2}));
   EXPECT_EQ(ids_of(runs_json({"--strategy", "carry"})), (std::vector<int>{4}));
   EXPECT_EQ(ids_of(runs_json({"--study", "grid"})), (std::vector<int>{2, 3, 4}));
-  EXPECT_EQ(ids_of(runs_json({"--study", "grid", "--strategy", "trend-fast"})), (std::vector<int>{2}));
+  EXPECT_EQ(ids_of(runs_json({"--study", "grid", "--strategy", "trend-fast"})),
+            (std::vector<int>{2}));
   EXPECT_EQ(ids_of(runs_json({"--study", "no-such-study"})), (std::vector<int>{}));
   for (const auto& r : runs_json({"--study", "grid"})) EXPECT_EQ(r["study"], "grid");
   EXPECT_TRUE(runs_json({"--strategy", "trend-fast"})[0]["study"].is_null());
@@ -250,19 +248,21 @@ TEST_F(RunsTest, RevisedInputMarksEarlierRunsStale) {
   EXPECT_EQ(stale_flags(), (std::vector<bool>{false, false, false, false}));
 
   // Ingesting the same content again is no new version and stales nothing.
-  ASSERT_EQ(at(ledger, {"ingest", "benchmark", fixture("benchmark.csv"), "--levels", "--name", "market"})
+  ASSERT_EQ(at(ledger, {"ingest", "benchmark", evaluate_fixture("benchmark.csv"), "--levels",
+                        "--name", "market"})
                 .exit_code,
             0);
   EXPECT_EQ(stale_flags(), (std::vector<bool>{false, false, false, false}));
 
-  const CommandResult revised = at(ledger, {"ingest", "benchmark", fixture("benchmark_revised.csv"),
-                                            "--levels", "--name", "market"});
+  const CommandResult revised =
+      at(ledger, {"ingest", "benchmark", evaluate_fixture("benchmark_revised.csv"), "--levels",
+                  "--name", "market"});
   ASSERT_EQ(revised.exit_code, 0) << revised.err;
   EXPECT_TRUE(contains(revised.out, "version 2")) << revised.out;
   EXPECT_EQ(stale_flags(), (std::vector<bool>{true, true, true, true}));
 
-  const CommandResult again =
-      at(ledger, {"evaluate", "trend-fast", "--benchmark", "market", "--rate", "bills", "--format", "json"});
+  const CommandResult again = at(ledger, {"evaluate", "trend-fast", "--benchmark", "market",
+                                          "--rate", "bills", "--format", "json"});
   ASSERT_EQ(again.exit_code, 0) << again.err;
   EXPECT_EQ(stale_flags(), (std::vector<bool>{true, true, true, true, false}));
   const json runs = json::parse(at(ledger, {"runs", "--format", "json"}).out);

@@ -209,16 +209,17 @@ std::vector<core::Day> month_ends(int year, int month, int n) {
   return out;
 }
 
+std::string evaluate_fixture(const std::string& name) {
+  return source_path("fixtures/evaluate/" + name).string();
+}
+
 std::string ingest_evaluate_fixtures(const std::filesystem::path& ledger) {
-  const auto fixture = [](const char* name) {
-    return source_path(std::string("fixtures/evaluate/") + name).string();
-  };
   const std::vector<std::vector<std::string>> ingests{
-      {"strategy", fixture("strategies.csv")},
-      {"strategy", fixture("tiny.csv")},
-      {"benchmark", fixture("benchmark.csv"), "--levels", "--name", "market"},
-      {"rate", fixture("bills.csv"), "--name", "bills"},
-      {"factor", fixture("factors.csv"), "--name", "ff"}};
+      {"strategy", evaluate_fixture("strategies.csv")},
+      {"strategy", evaluate_fixture("tiny.csv")},
+      {"benchmark", evaluate_fixture("benchmark.csv"), "--levels", "--name", "market"},
+      {"rate", evaluate_fixture("bills.csv"), "--name", "bills"},
+      {"factor", evaluate_fixture("factors.csv"), "--name", "ff"}};
   for (const auto& args : ingests) {
     std::vector<std::string> all{"--ledger", ledger.string(), "ingest"};
     all.insert(all.end(), args.begin(), args.end());

@@ -70,6 +70,9 @@ std::vector<std::vector<double>> read_number_rows(const std::filesystem::path& f
 core::Day month_end(int year, int month);
 std::vector<core::Day> month_ends(int year, int month, int n);
 
+// Returns the path of a file in fixtures/evaluate.
+std::string evaluate_fixture(const std::string& name);
+
 // Ingests fixtures/evaluate into a ledger (created when missing): strategies trend-fast,
 // trend-slow, carry (2010-01 .. 2019-12) and tiny (3 months); benchmark "market" from levels;
 // rate curve "bills" (1M, 3M, percent); factor set "ff" (SMB, HML). Returns an error text,
