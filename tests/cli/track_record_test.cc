@@ -25,13 +25,13 @@
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
 using alphatrail::testing::lines_of;
-using alphatrail::testing::build_six_run_ledger;
-using alphatrail::testing::CommandResult;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
+using alphatrail::testing::SixRunLedgerTest;
 using nlohmann::json;
 
 constexpr const char* kBenchmark = "alder-vale-composite";
@@ -63,19 +63,13 @@ json show(const std::string& ledger, std::int64_t run) {
 
 // Counts through the ledger's own read-only query command.
 std::int64_t count_of(const std::string& ledger, const std::string& table) {
-  const json rows = json_at(ledger, {"query", "select count(*) n from " + table, "--format", "json"});
+  const json rows =
+      json_at(ledger, {"query", "select count(*) n from " + table, "--format", "json"});
   if (!rows.is_array() || rows.size() != 1) return -1;
   return rows[0]["n"].get<std::int64_t>();
 }
 
 // Copies a ledger file (and its write-ahead log when one is left).
-void copy_ledger(const fs::path& from, const fs::path& to) {
-  for (const char* suffix : {"-wal", "-shm"}) fs::remove(to.string() + suffix);
-  fs::copy_file(from, to, fs::copy_options::overwrite_existing);
-  const fs::path wal = from.string() + "-wal";
-  if (fs::exists(wal)) fs::copy_file(wal, to.string() + "-wal", fs::copy_options::overwrite_existing);
-}
-
 
 struct Level {
   std::string date;
@@ -105,7 +99,9 @@ std::string write_levels(const std::vector<Level>& levels) {
 }
 
 // The return alphatrail derives from two consecutive levels.
-double level_return(double now, double before) { return now / before - 1; }
+double level_return(double now, double before) {
+  return now / before - 1;
+}
 
 // The verdict rule of the re-run, stated independently: significance at the run's own level.
 std::string expected_verdict(const json& before, const json& after) {
@@ -125,7 +121,8 @@ std::string expected_verdict(const json& before, const json& after) {
 // Checks one side of a re-run figure block against the run object of `show`.
 void expect_figures(const json& figures, const json& run, const std::string& side) {
   SCOPED_TRACE(side + " of run " + std::to_string(run["run_id"].get<std::int64_t>()));
-  EXPECT_EQ(figures["alpha_annualized"].get<double>(), run["statistics"]["alpha_annualized"].get<double>());
+  EXPECT_EQ(figures["alpha_annualized"].get<double>(),
+            run["statistics"]["alpha_annualized"].get<double>());
   EXPECT_EQ(figures["alpha_t"].get<double>(), run["coefficients"][0]["t_stat"].get<double>());
   EXPECT_EQ(figures["alpha_p"].get<double>(), run["coefficients"][0]["p_value"].get<double>());
   EXPECT_EQ(figures["beta"].get<double>(), run["coefficients"][1]["estimate"].get<double>());
@@ -133,31 +130,12 @@ void expect_figures(const json& figures, const json& run, const std::string& sid
 }
 
 // The six-run ledger, built once; every test works on its own copy.
-class TrackRecordTest : public ::testing::Test {
+class TrackRecordTest : public SixRunLedgerTest {
  protected:
-  static void SetUpTestSuite() {
-    dir_ = new ScratchDir();
-    problem_ = build_six_run_ledger(demo(), base());
-  }
-  static void TearDownTestSuite() {
-    delete dir_;
-    dir_ = nullptr;
-  }
-  static fs::path demo() { return *dir_ / "demo.db"; }
-  static fs::path base() { return *dir_ / "six.db"; }
-  static fs::path benchmark_csv() { return *dir_ / "demo.db-data" / "alder-vale-composite.csv"; }
-
-  void SetUp() override {
-    ASSERT_NE(dir_, nullptr);
-    ASSERT_EQ(problem_, "");
-    copy_ledger(base(), ledger_path());
-  }
-  fs::path ledger_path() const { return scratch_ / "ledger.db"; }
-  std::string ledger() const { return ledger_path().string(); }
-
   // Writes the benchmark with one level revised (row `row` of the data, times `factor`) and
   // ingests it as version 2 of the benchmark. Returns the levels before and after.
-  std::pair<std::vector<Level>, std::vector<Level>> revise_benchmark(std::size_t row, double factor) {
+  std::pair<std::vector<Level>, std::vector<Level>> revise_benchmark(std::size_t row,
+                                                                     double factor) {
     const auto before = read_levels(benchmark_csv());
     auto after = before;
     after[row].text = fmt::format("{:.2f}", before[row].level * factor);
@@ -169,14 +147,7 @@ class TrackRecordTest : public ::testing::Test {
     EXPECT_TRUE(contains(r.out, "version 2")) << r.out;
     return {before, after};
   }
-
-  static ScratchDir* dir_;
-  static std::string problem_;
-  ScratchDir scratch_;
 };
-
-ScratchDir* TrackRecordTest::dir_ = nullptr;
-std::string TrackRecordTest::problem_;
 
 // The demo's own track record: it restates the index and re-runs the six evaluations; the
 // re-runs revise the originals, nothing is left to re-run, and every run reproduces.
@@ -232,7 +203,8 @@ TEST_F(TrackRecordTest, DemoLedgerHasSixFreshRuns) {
 TEST_F(TrackRecordTest, DiffListsExactlyTheTwoReturnsOneLevelMoves) {
   const std::size_t row = 100;
   const auto [before, after] = revise_benchmark(row, 1.03);
-  const json diff = json_at(ledger(), {"series", kBenchmark, "--diff", "1", "2", "--format", "json"});
+  const json diff =
+      json_at(ledger(), {"series", kBenchmark, "--diff", "1", "2", "--format", "json"});
   ASSERT_TRUE(diff.is_object()) << diff.dump();
   EXPECT_EQ(diff["name"], kBenchmark);
   EXPECT_EQ(diff["from_version"], 1);
@@ -259,7 +231,9 @@ TEST_F(TrackRecordTest, DiffListsExactlyTheTwoReturnsOneLevelMoves) {
   }
   EXPECT_TRUE(expected.empty());
   // Largest change first.
-  const auto size = [](const json& c) { return std::abs(c["after"].get<double>() - c["before"].get<double>()); };
+  const auto size = [](const json& c) {
+    return std::abs(c["after"].get<double>() - c["before"].get<double>());
+  };
   EXPECT_GE(size(column["changed"][0]), size(column["changed"][1])) << column.dump();
 
   // The table form names the same two dates and the counts.
@@ -269,7 +243,8 @@ TEST_F(TrackRecordTest, DiffListsExactlyTheTwoReturnsOneLevelMoves) {
   EXPECT_TRUE(contains(table.out, before[row].date)) << table.out;
   EXPECT_TRUE(contains(table.out, before[row + 1].date)) << table.out;
   // A version against itself has no differences.
-  const json same = json_at(ledger(), {"series", kBenchmark, "--diff", "2", "2", "--format", "json"});
+  const json same =
+      json_at(ledger(), {"series", kBenchmark, "--diff", "2", "2", "--format", "json"});
   ASSERT_EQ(same["columns"].size(), 1u);
   EXPECT_TRUE(same["columns"][0]["changed"].empty()) << same.dump();
   // A version that does not exist is not found.
@@ -283,7 +258,8 @@ TEST_F(TrackRecordTest, RevisedBenchmarkMarksRunsStaleAndRerunRevisesEachOnce) {
   ASSERT_EQ(runs.size(), 6u);
   for (const auto& r : runs) EXPECT_TRUE(r["stale"].get<bool>()) << r.dump();
   // Staleness is derived: the stored figures did not move.
-  for (std::size_t i = 0; i < runs.size(); ++i) EXPECT_EQ(runs[i]["alpha"], old_runs_before[i]["alpha"]);
+  for (std::size_t i = 0; i < runs.size(); ++i)
+    EXPECT_EQ(runs[i]["alpha"], old_runs_before[i]["alpha"]);
 
   // Dry run: lists the six runs and why, records nothing.
   const CommandResult dry = at(ledger(), {"rerun", "--all-stale", "--dry-run"});
@@ -374,9 +350,9 @@ TEST_F(TrackRecordTest, RerunOfAMissingRunIsNotFoundAndRecordsNothing) {
 // every figure with its change b - a.
 TEST_F(TrackRecordTest, CompareShowsInputsParametersSampleAndFigures) {
   revise_benchmark(60, 1.04);
-  const CommandResult ev = at(ledger(), {"evaluate", "trend-12m", "--benchmark", kBenchmark, "--rate",
-                                         kRate, "--factor", kFactors, "--errors", "classic",
-                                         "--from", "2005-01", "--format", "json"});
+  const CommandResult ev =
+      at(ledger(), {"evaluate", "trend-12m", "--benchmark", kBenchmark, "--rate", kRate, "--factor",
+                    kFactors, "--errors", "classic", "--from", "2005-01", "--format", "json"});
   ASSERT_EQ(ev.exit_code, 0) << ev.err;
   const std::int64_t b_id = json::parse(ev.out)[0]["run_id"];
   ASSERT_EQ(b_id, 7);
@@ -448,8 +424,10 @@ TEST_F(TrackRecordTest, CompareShowsInputsParametersSampleAndFigures) {
       EXPECT_EQ(f["change"], vb - va == 0 ? "" : fmt::format("{:+.6g}", vb - va));
     }
   ASSERT_TRUE(figures.count("alpha estimate"));
-  const double alpha_change = std::strtod(figures["alpha estimate"]["change"].get<std::string>().c_str(), nullptr);
-  const double exact = b["coefficients"][0]["estimate"].get<double>() - a["coefficients"][0]["estimate"].get<double>();
+  const double alpha_change =
+      std::strtod(figures["alpha estimate"]["change"].get<std::string>().c_str(), nullptr);
+  const double exact = b["coefficients"][0]["estimate"].get<double>() -
+                       a["coefficients"][0]["estimate"].get<double>();
   EXPECT_NEAR(alpha_change, exact, 1e-5 * std::abs(exact));
   ASSERT_TRUE(figures.count("observations"));
   EXPECT_EQ(figures["observations"]["change"], "-60");
@@ -498,7 +476,8 @@ TEST_F(TrackRecordTest, CompareListsInputsAndTermsOnlyOneRunHas) {
   const std::string term = multi["coefficients"][2]["term"];
   const double estimate = multi["coefficients"][2]["estimate"];
 
-  for (const auto& [a, b] : std::vector<std::pair<std::string, std::string>>{{"1", "7"}, {"7", "1"}}) {
+  for (const auto& [a, b] :
+       std::vector<std::pair<std::string, std::string>>{{"1", "7"}, {"7", "1"}}) {
     SCOPED_TRACE("compare " + a + " " + b);
     const json cmp = json_at(ledger(), {"compare", a, b, "--format", "json"});
     ASSERT_TRUE(cmp.is_object());
@@ -526,10 +505,12 @@ TEST_F(TrackRecordTest, CompareListsInputsAndTermsOnlyOneRunHas) {
 
 // A column the newer version no longer has is a column whose periods were all removed.
 TEST_F(TrackRecordTest, DiffReportsAColumnTheNewVersionDropped) {
-  const auto both = scratch_.write("ff1.csv", "date,SMB,HML\n2020-01-31,0.01,0.02\n"
-                                              "2020-02-29,0.01,0.03\n2020-03-31,0.02,0.01\n");
-  const auto one = scratch_.write("ff2.csv", "date,SMB\n2020-01-31,0.01\n2020-02-29,0.01\n"
-                                             "2020-03-31,0.02\n");
+  const auto both = scratch_.write("ff1.csv",
+                                   "date,SMB,HML\n2020-01-31,0.01,0.02\n"
+                                   "2020-02-29,0.01,0.03\n2020-03-31,0.02,0.01\n");
+  const auto one = scratch_.write("ff2.csv",
+                                  "date,SMB\n2020-01-31,0.01\n2020-02-29,0.01\n"
+                                  "2020-03-31,0.02\n");
   ASSERT_EQ(at(ledger(), {"ingest", "factor", both.string(), "--name", "ff"}).exit_code, 0);
   ASSERT_EQ(at(ledger(), {"ingest", "factor", one.string(), "--name", "ff"}).exit_code, 0);
   const std::vector<std::string> dates{"2020-01-31", "2020-02-29", "2020-03-31"};
@@ -562,7 +543,8 @@ TEST_F(TrackRecordTest, ReproduceSaysIdenticalAndAMissingRunIsNotFound) {
     const CommandResult r = at(ledger(), {"reproduce", std::to_string(id)});
     EXPECT_EQ(r.exit_code, 0) << r.out << r.err;
     EXPECT_TRUE(contains(r.out, "(identical)")) << r.out;
-    EXPECT_TRUE(contains(r.out, "reproduced: every coefficient and statistic is identical")) << r.out;
+    EXPECT_TRUE(contains(r.out, "reproduced: every coefficient and statistic is identical"))
+        << r.out;
   }
   revise_benchmark(200, 1.01);
   const CommandResult pinned = at(ledger(), {"reproduce", "3"});

@@ -31,13 +31,14 @@
 namespace {
 
 namespace fs = std::filesystem;
-using alphatrail::testing::contains;
-using alphatrail::testing::lines_of;
-using alphatrail::testing::build_six_run_ledger;
 using alphatrail::testing::CommandResult;
+using alphatrail::testing::contains;
+using alphatrail::testing::copy_ledger;
+using alphatrail::testing::lines_of;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
+using alphatrail::testing::SixRunLedgerTest;
 using nlohmann::json;
 
 constexpr const char* kStrategies[] = {"trend-12m", "trend-3m",       "trend-6m",
@@ -47,13 +48,6 @@ CommandResult at(const std::string& ledger, const std::vector<std::string>& args
   std::vector<std::string> all{"--ledger", ledger};
   all.insert(all.end(), args.begin(), args.end());
   return run_alphatrail(all);
-}
-
-void copy_ledger(const fs::path& from, const fs::path& to) {
-  for (const char* suffix : {"-wal", "-shm"}) fs::remove(to.string() + suffix);
-  fs::copy_file(from, to, fs::copy_options::overwrite_existing);
-  const fs::path wal = from.string() + "-wal";
-  if (fs::exists(wal)) fs::copy_file(wal, to.string() + "-wal", fs::copy_options::overwrite_existing);
 }
 
 void checkpoint(const fs::path& ledger) {
@@ -129,59 +123,34 @@ std::string text_of(SQLite::Database& db, const std::string& sql) {
   return db.execAndGet(sql).getString();
 }
 
-
 // The six-run ledger, built once; every test works on its own copy.
-class VerifyLedgerTest : public ::testing::Test {
+class VerifyLedgerTest : public SixRunLedgerTest {
  protected:
-  static void SetUpTestSuite() {
-    dir_ = new ScratchDir();
-    problem_ = build_six_run_ledger(demo(), base());
-  }
-  static void TearDownTestSuite() {
-    delete dir_;
-    dir_ = nullptr;
-  }
-  static fs::path demo() { return *dir_ / "demo.db"; }
-  static fs::path base() { return *dir_ / "six.db"; }
-
-  void SetUp() override {
-    ASSERT_NE(dir_, nullptr);
-    ASSERT_EQ(problem_, "");
-    copy_ledger(base(), path());
-  }
   void TearDown() override {
     // The sanity check every test ends with: the untouched copy is sound.
     EXPECT_EQ(integrity(base()), "ok");
   }
-  fs::path path() const { return scratch_ / "ledger.db"; }
-  std::string ledger() const { return path().string(); }
 
   // Verify must report the alteration: exit 7 and a MISMATCH line for the object. The
   // altered copy is still a sound SQLite file.
   std::vector<std::string> expect_mismatch(const std::string& object, const std::string& problem) {
-    EXPECT_EQ(integrity(path()), "ok") << "the edit should leave a sound SQLite file";
+    EXPECT_EQ(integrity(ledger_path()), "ok") << "the edit should leave a sound SQLite file";
     const CommandResult r = at(ledger(), {"verify"});
     EXPECT_EQ(r.exit_code, 7) << r.out << r.err;
     const auto lines = mismatches(r);
     EXPECT_TRUE(names(lines, object, problem))
-        << "no MISMATCH " << object << " (" << problem << ") in\n" << r.out;
+        << "no MISMATCH " << object << " (" << problem << ") in\n"
+        << r.out;
     EXPECT_TRUE(contains(r.err, "mismatch")) << r.err;
     EXPECT_FALSE(contains(r.out, "everything checks out")) << r.out;
     return lines;
   }
-
-  static ScratchDir* dir_;
-  static std::string problem_;
-  ScratchDir scratch_;
 };
-
-ScratchDir* VerifyLedgerTest::dir_ = nullptr;
-std::string VerifyLedgerTest::problem_;
 
 // The demo as it comes (its re-runs included) and the six-run ledger both check out; the
 // report counts what is there and prints the last run's record hash as the chain head.
 TEST_F(VerifyLedgerTest, FreshDemoLedgerChecksOut) {
-  for (const fs::path& ledger_file : {demo(), path()}) {
+  for (const fs::path& ledger_file : {demo(), ledger_path()}) {
     SCOPED_TRACE(ledger_file.string());
     EXPECT_EQ(integrity(ledger_file), "ok");
     const CommandResult r = at(ledger_file.string(), {"verify"});
@@ -192,9 +161,11 @@ TEST_F(VerifyLedgerTest, FreshDemoLedgerChecksOut) {
     const std::int64_t versions = db.execAndGet("SELECT count(*) FROM series_versions").getInt64();
     const std::int64_t runs = db.execAndGet("SELECT count(*) FROM runs").getInt64();
     EXPECT_GE(runs, 6);
-    EXPECT_TRUE(contains(r.out, fmt::format("checked {} series versions and {} runs", versions, runs)))
+    EXPECT_TRUE(
+        contains(r.out, fmt::format("checked {} series versions and {} runs", versions, runs)))
         << r.out;
-    const std::string head = text_of(db, "SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
+    const std::string head =
+        text_of(db, "SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
     EXPECT_TRUE(contains(r.out, "chain head " + head)) << r.out;
   }
   EXPECT_EQ(at(ledger(), {"verify"}).out.find("checked 9 series versions and 6 runs"), 0u);
@@ -218,9 +189,11 @@ TEST_F(VerifyLedgerTest, EditedObservationIsAContentHashMismatch) {
   const std::string edited =
       json_text.substr(0, start) + fmt::format("{}", value + 0.0001) + json_text.substr(end);
   ASSERT_NE(edited, json_text);
-  tamper(path(), {"version_columns_no_update"},
-         {"UPDATE version_columns SET values_json = '" + edited + "' WHERE version_id = (SELECT "
-          "version_id FROM series_versions JOIN series USING (series_id) WHERE name = 'trend-6m')"});
+  tamper(
+      ledger_path(), {"version_columns_no_update"},
+      {"UPDATE version_columns SET values_json = '" + edited +
+       "' WHERE version_id = (SELECT "
+       "version_id FROM series_versions JOIN series USING (series_id) WHERE name = 'trend-6m')"});
   const auto lines = expect_mismatch("series trend-6m version 1", "content hash");
   EXPECT_EQ(lines.size(), 1u) << joined(lines);
 }
@@ -233,10 +206,12 @@ TEST_F(VerifyLedgerTest, EditedObservationWithRecomputedContentHashBreaksTheRuns
   std::int64_t run_id = 0;
   {
     SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
-    json_text = text_of(db, "SELECT values_json FROM version_columns c JOIN series_versions v USING "
-                            "(version_id) JOIN series s USING (series_id) WHERE s.name = 'carry-g10'");
-    column = text_of(db, "SELECT column_name FROM version_columns c JOIN series_versions v USING "
-                         "(version_id) JOIN series s USING (series_id) WHERE s.name = 'carry-g10'");
+    json_text = text_of(db,
+                        "SELECT values_json FROM version_columns c JOIN series_versions v USING "
+                        "(version_id) JOIN series s USING (series_id) WHERE s.name = 'carry-g10'");
+    column = text_of(db,
+                     "SELECT column_name FROM version_columns c JOIN series_versions v USING "
+                     "(version_id) JOIN series s USING (series_id) WHERE s.name = 'carry-g10'");
     run_id = db.execAndGet("SELECT run_id FROM runs WHERE strategy = 'carry-g10'").getInt64();
   }
   const std::size_t colon = json_text.find("\":", json_text.size() / 2);
@@ -244,18 +219,22 @@ TEST_F(VerifyLedgerTest, EditedObservationWithRecomputedContentHashBreaksTheRuns
   const std::string edited = json_text.substr(0, colon + 2) + "0.5" + json_text.substr(end);
   const std::string hash = alphatrail::ledger::content_hash(
       {"strategy", "decimal return", std::nullopt}, {{column, edited}});
-  tamper(path(), {"version_columns_no_update", "series_versions_no_update"},
-         {"UPDATE version_columns SET values_json = '" + edited + "' WHERE values_json = '" + json_text + "'",
-          "UPDATE series_versions SET content_hash = '" + hash + "' WHERE version_id = (SELECT "
-          "version_id FROM series_versions JOIN series USING (series_id) WHERE name = 'carry-g10')"});
+  tamper(ledger_path(), {"version_columns_no_update", "series_versions_no_update"},
+         {"UPDATE version_columns SET values_json = '" + edited + "' WHERE values_json = '" +
+              json_text + "'",
+          "UPDATE series_versions SET content_hash = '" + hash +
+              "' WHERE version_id = (SELECT "
+              "version_id FROM series_versions JOIN series USING (series_id) WHERE name = "
+              "'carry-g10')"});
   const auto lines = expect_mismatch(fmt::format("run {}", run_id), "inputs hash");
   EXPECT_FALSE(names(lines, "series carry-g10 version 1", "content hash"))
       << "the recomputed content hash should match: " << joined(lines);
 }
 
 TEST_F(VerifyLedgerTest, EditedCoefficientBreaksThatRunsRecordHash) {
-  tamper(path(), {"run_coefficients_no_update"},
-         {"UPDATE run_coefficients SET estimate = estimate * 1.01 WHERE run_id = 2 AND position = 2"});
+  tamper(
+      ledger_path(), {"run_coefficients_no_update"},
+      {"UPDATE run_coefficients SET estimate = estimate * 1.01 WHERE run_id = 2 AND position = 2"});
   const auto lines = expect_mismatch("run 2", "record does not match its record hash");
   EXPECT_EQ(lines.size(), 1u) << joined(lines);
 }
@@ -266,7 +245,7 @@ TEST_F(VerifyLedgerTest, EditedParameterBreaksInputsAndRecordHash) {
     ASSERT_TRUE(contains(text_of(db, "SELECT parameters_json FROM runs WHERE run_id = 4"),
                          "\"confidence\":0.95"));
   }
-  tamper(path(), {"runs_no_update"},
+  tamper(ledger_path(), {"runs_no_update"},
          {"UPDATE runs SET parameters_json = replace(parameters_json, '\"confidence\":0.95', "
           "'\"confidence\":0.9') WHERE run_id = 4"});
   const auto lines = expect_mismatch("run 4", "inputs hash");
@@ -275,15 +254,16 @@ TEST_F(VerifyLedgerTest, EditedParameterBreaksInputsAndRecordHash) {
 }
 
 TEST_F(VerifyLedgerTest, EditedHeadlineFigureBreaksThatRunsRecordHash) {
-  tamper(path(), {"runs_no_update"}, {"UPDATE runs SET alpha = alpha + 0.000001 WHERE run_id = 5"});
+  tamper(ledger_path(), {"runs_no_update"},
+         {"UPDATE runs SET alpha = alpha + 0.000001 WHERE run_id = 5"});
   const auto lines = expect_mismatch("run 5", "record does not match its record hash");
   EXPECT_EQ(lines.size(), 1u) << joined(lines);
 }
 
 TEST_F(VerifyLedgerTest, DeletedRunInTheMiddleIsAGapAndABrokenChain) {
-  tamper(path(), {"runs_no_delete", "run_inputs_no_delete", "run_coefficients_no_delete"},
-         {"DELETE FROM run_inputs WHERE run_id = 3", "DELETE FROM run_coefficients WHERE run_id = 3",
-          "DELETE FROM runs WHERE run_id = 3"});
+  tamper(ledger_path(), {"runs_no_delete", "run_inputs_no_delete", "run_coefficients_no_delete"},
+         {"DELETE FROM run_inputs WHERE run_id = 3",
+          "DELETE FROM run_coefficients WHERE run_id = 3", "DELETE FROM runs WHERE run_id = 3"});
   const auto lines = expect_mismatch("run 4", "not numbered without gaps: expected run 3");
   EXPECT_TRUE(names(lines, "run 4", "hash chain is broken")) << joined(lines);
 }
@@ -293,9 +273,9 @@ TEST_F(VerifyLedgerTest, DeletedRunInTheMiddleIsAGapAndABrokenChain) {
 TEST_F(VerifyLedgerTest, DeletedLastRunChangesTheChainHead) {
   const CommandResult before = at(ledger(), {"verify"});
   ASSERT_EQ(before.exit_code, 0) << before.out;
-  tamper(path(), {"runs_no_delete", "run_inputs_no_delete", "run_coefficients_no_delete"},
-         {"DELETE FROM run_inputs WHERE run_id = 6", "DELETE FROM run_coefficients WHERE run_id = 6",
-          "DELETE FROM runs WHERE run_id = 6"});
+  tamper(ledger_path(), {"runs_no_delete", "run_inputs_no_delete", "run_coefficients_no_delete"},
+         {"DELETE FROM run_inputs WHERE run_id = 6",
+          "DELETE FROM run_coefficients WHERE run_id = 6", "DELETE FROM runs WHERE run_id = 6"});
   const CommandResult after = at(ledger(), {"verify"});
   const auto head = [](const std::string& out) {
     const auto at = out.find("chain head ");
@@ -310,8 +290,10 @@ TEST_F(VerifyLedgerTest, ReorderedRunsBreakTheirRecordHashes) {
   std::vector<std::string> statements;
   for (const char* table : {"runs", "run_inputs", "run_coefficients"})
     for (const auto& [from, to] : std::vector<std::pair<int, int>>{{2, 1000}, {5, 2}, {1000, 5}})
-      statements.push_back(fmt::format("UPDATE {} SET run_id = {} WHERE run_id = {}", table, to, from));
-  tamper(path(), {"runs_no_update", "run_inputs_no_update", "run_coefficients_no_update"}, statements);
+      statements.push_back(
+          fmt::format("UPDATE {} SET run_id = {} WHERE run_id = {}", table, to, from));
+  tamper(ledger_path(), {"runs_no_update", "run_inputs_no_update", "run_coefficients_no_update"},
+         statements);
   {
     SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
     ASSERT_EQ(text_of(db, "SELECT strategy FROM runs WHERE run_id = 2"), "defensive-tilt");
@@ -323,8 +305,9 @@ TEST_F(VerifyLedgerTest, ReorderedRunsBreakTheirRecordHashes) {
 
 TEST_F(VerifyLedgerTest, EditedContentHashIsAMismatchOfTheVersionAndOfTheRunsUsingIt) {
   const std::string other = alphatrail::core::sha256_hex("not the observations");
-  tamper(path(), {"series_versions_no_update"},
-         {"UPDATE series_versions SET content_hash = '" + other + "' WHERE version_id = (SELECT "
+  tamper(ledger_path(), {"series_versions_no_update"},
+         {"UPDATE series_versions SET content_hash = '" + other +
+          "' WHERE version_id = (SELECT "
           "version_id FROM series_versions JOIN series USING (series_id) WHERE name = "
           "'alder-vale-composite')"});
   const auto lines = expect_mismatch("series alder-vale-composite version 1", "content hash");
@@ -335,7 +318,7 @@ TEST_F(VerifyLedgerTest, EditedContentHashIsAMismatchOfTheVersionAndOfTheRunsUsi
 
 // Pointing a run at another version of its input breaks its record and its inputs hash.
 TEST_F(VerifyLedgerTest, EditedRunInputIsDetected) {
-  tamper(path(), {"run_inputs_no_update"},
+  tamper(ledger_path(), {"run_inputs_no_update"},
          {"UPDATE run_inputs SET version_id = (SELECT version_id FROM series_versions JOIN series "
           "USING (series_id) WHERE name = 'trend-3m') WHERE run_id = 1 AND role = 'strategy'"});
   const auto lines = expect_mismatch("run 1", "record does not match");
@@ -350,9 +333,10 @@ TEST_F(VerifyLedgerTest, EditedVersionDescriptionIsDetected) {
   for (const std::string edit : {"frequency = 'quarterly'", "observations = observations - 1",
                                  "first_date = '1990-01-31'", "missing = missing + 3"}) {
     SCOPED_TRACE(edit);
-    copy_ledger(base(), path());
-    tamper(path(), {"series_versions_no_update"},
-           {"UPDATE series_versions SET " + edit + " WHERE version_id = (SELECT version_id FROM "
+    copy_ledger(base(), ledger_path());
+    tamper(ledger_path(), {"series_versions_no_update"},
+           {"UPDATE series_versions SET " + edit +
+            " WHERE version_id = (SELECT version_id FROM "
             "series_versions JOIN series USING (series_id) WHERE name = 'alder-vale-composite')"});
     if (edit.rfind("frequency", 0) == 0) {  // the premise: the edit changes what a run computes
       const CommandResult reproduce = at(ledger(), {"reproduce", "1"});
@@ -400,9 +384,9 @@ TEST_F(VerifyLedgerTest, GarbageBytesInTheFileFailWithoutACrash) {
   int mismatched = 0;
   for (std::int64_t page = 1; page <= pages; ++page) {
     SCOPED_TRACE(fmt::format("garbage over page {} of {}", page, pages));
-    copy_ledger(base(), path());
-    write_garbage_page(path(), page, page_size);
-    EXPECT_NE(integrity(path()), "ok");
+    copy_ledger(base(), ledger_path());
+    write_garbage_page(ledger_path(), page, page_size);
+    EXPECT_NE(integrity(ledger_path()), "ok");
     const CommandResult r = at(ledger(), {"verify"});
     EXPECT_TRUE(r.exit_code == 4 || r.exit_code == 7) << r.exit_code << "\n" << r.out << r.err;
     EXPECT_FALSE(contains(r.out, "everything checks out")) << r.out;
@@ -421,7 +405,9 @@ std::string escaped(const std::string& text) {
   std::string out;
   for (const char c : text) {
     const auto u = static_cast<unsigned char>(c);
-    out += u == '\n' ? std::string("\n") : u >= 0x20 && u < 0x7f ? std::string(1, c) : fmt::format("\\x{:02x}", u);
+    out += u == '\n'               ? std::string("\n")
+           : u >= 0x20 && u < 0x7f ? std::string(1, c)
+                                   : fmt::format("\\x{:02x}", u);
   }
   return out;
 }
@@ -432,7 +418,8 @@ void expect_one_line_per_finding(const CommandResult& r) {
       return static_cast<unsigned char>(c) >= 0x20 && static_cast<unsigned char>(c) < 0x7f;
     });
     EXPECT_TRUE(printable && (line.rfind("MISMATCH ", 0) == 0 || line.rfind("checked ", 0) == 0))
-        << "not a report line: '" << escaped(line) << "' in\n" << escaped(r.out);
+        << "not a report line: '" << escaped(line) << "' in\n"
+        << escaped(r.out);
   }
 }
 
@@ -444,8 +431,8 @@ TEST_F(VerifyLedgerTest, DamagedFileReportHasOneLinePerFinding) {
   const std::int64_t pages = static_cast<std::int64_t>(fs::file_size(base())) / page_size;
   int reports = 0;
   for (std::int64_t page = pages; page > pages / 2 && reports < 3; --page) {
-    copy_ledger(base(), path());
-    write_garbage_page(path(), page, page_size);
+    copy_ledger(base(), ledger_path());
+    write_garbage_page(ledger_path(), page, page_size);
     const CommandResult r = at(ledger(), {"verify"});
     if (r.exit_code != 7) continue;
     ++reports;
@@ -461,7 +448,7 @@ TEST_F(VerifyLedgerTest, StoredTextCannotForgeReportLines) {
   // 64 characters, as the CHECK constraint wants, with a line break and a forged finding.
   std::string forged = "0123\nMISMATCH run 1: forged\x01";
   forged += std::string(64 - forged.size(), 'f');
-  tamper(path(), {"runs_no_update"},
+  tamper(ledger_path(), {"runs_no_update"},
          {"UPDATE runs SET inputs_hash = '" + forged + "' WHERE run_id = 2"});
   const CommandResult r = at(ledger(), {"verify"});
   ASSERT_EQ(r.exit_code, 7) << r.out << r.err;
@@ -471,18 +458,19 @@ TEST_F(VerifyLedgerTest, StoredTextCannotForgeReportLines) {
 
 TEST_F(VerifyLedgerTest, DamagedHeaderOrTruncatedFileFailsWithoutACrash) {
   {
-    std::fstream f(path(), std::ios::in | std::ios::out | std::ios::binary);
+    std::fstream f(ledger_path(), std::ios::in | std::ios::out | std::ios::binary);
     f.write("garbage garbage garbage", 23);
   }
   const CommandResult header = at(ledger(), {"verify"});
   EXPECT_EQ(header.exit_code, 4) << header.out << header.err;
   EXPECT_TRUE(contains(header.err, "not an SQLite database")) << header.err;
 
-  copy_ledger(base(), path());
-  fs::resize_file(path(), fs::file_size(base()) / 2);
+  copy_ledger(base(), ledger_path());
+  fs::resize_file(ledger_path(), fs::file_size(base()) / 2);
   const CommandResult truncated = at(ledger(), {"verify"});
   EXPECT_TRUE(truncated.exit_code == 4 || truncated.exit_code == 7)
-      << truncated.exit_code << "\n" << truncated.out << truncated.err;
+      << truncated.exit_code << "\n"
+      << truncated.out << truncated.err;
   EXPECT_FALSE(contains(truncated.out, "everything checks out")) << truncated.out;
 }
 
@@ -500,20 +488,20 @@ class QueryLedgerTest : public VerifyLedgerTest {
   // Runs a statement that must be refused, and checks the file did not change at all.
   void expect_refused(const std::string& sql) {
     SCOPED_TRACE(sql);
-    checkpoint(path());  // through a separate connection: everything is in the main file
-    const std::string before = sha256_of_file(path());
+    checkpoint(ledger_path());  // through a separate connection: everything is in the main file
+    const std::string before = sha256_of_file(ledger_path());
     const CommandResult r = at(ledger(), {"query", sql});
     EXPECT_EQ(r.exit_code, 2) << r.out << r.err;
     EXPECT_TRUE(contains(r.err, "read-only")) << r.err;
     EXPECT_TRUE(contains(r.err, "nothing changed")) << r.err;
     EXPECT_TRUE(r.out.empty()) << r.out;
-    EXPECT_EQ(sha256_of_file(path()), before);
+    EXPECT_EQ(sha256_of_file(ledger_path()), before);
     const fs::path wal = ledger() + "-wal";
     EXPECT_TRUE(!fs::exists(wal) || fs::file_size(wal) == 0) << "frames left in the WAL";
     // And the content really is intact.
     EXPECT_EQ(query_json("SELECT count(*) AS n FROM runs")[0]["n"], 6);
     EXPECT_EQ(query_json("SELECT count(*) AS n FROM series")[0]["n"], 9);
-    EXPECT_EQ(sha256_of_file(path()), before) << "a read changed the file";
+    EXPECT_EQ(sha256_of_file(ledger_path()), before) << "a read changed the file";
   }
 };
 
@@ -546,7 +534,8 @@ TEST_F(QueryLedgerTest, LatestVersionsAndRunInputVersions) {
   const json latest = query_json("SELECT name, kind, version FROM latest_versions ORDER BY name");
   ASSERT_EQ(latest.size(), 9u) << latest.dump();
   EXPECT_EQ(latest[0], json({{"name", "alder-vale-bills"}, {"kind", "rate"}, {"version", 1}}));
-  EXPECT_EQ(latest[1], json({{"name", "alder-vale-composite"}, {"kind", "benchmark"}, {"version", 1}}));
+  EXPECT_EQ(latest[1],
+            json({{"name", "alder-vale-composite"}, {"kind", "benchmark"}, {"version", 1}}));
   EXPECT_EQ(latest[2], json({{"name", "brindle-styles"}, {"kind", "factor"}, {"version", 1}}));
   for (std::size_t i = 3; i < latest.size(); ++i) {
     EXPECT_EQ(latest[i]["kind"], "strategy");
@@ -567,7 +556,7 @@ TEST_F(QueryLedgerTest, LatestVersionsAndRunInputVersions) {
 
 TEST_F(QueryLedgerTest, ObservationsInJsonCsvAndTable) {
   // The first three index returns, computed here from the demo's CSV levels.
-  const auto levels = lines_of(read_file(*dir_ / "demo.db-data" / "alder-vale-composite.csv"));
+  const auto levels = lines_of(read_file(benchmark_csv()));
   ASSERT_GE(levels.size(), 5u);
   std::vector<std::pair<std::string, double>> expected;
   for (int i = 2; i <= 4; ++i) {
@@ -575,7 +564,8 @@ TEST_F(QueryLedgerTest, ObservationsInJsonCsvAndTable) {
     const auto before = levels[i - 1].find(',');
     expected.push_back({levels[i].substr(0, now),
                         std::strtod(levels[i].substr(now + 1).c_str(), nullptr) /
-                                std::strtod(levels[i - 1].substr(before + 1).c_str(), nullptr) - 1});
+                                std::strtod(levels[i - 1].substr(before + 1).c_str(), nullptr) -
+                            1});
   }
   const std::string sql =
       "SELECT date, value FROM observations WHERE series = 'alder-vale-composite' AND version = 1 "
@@ -621,7 +611,8 @@ TEST_F(QueryLedgerTest, ObservationsInJsonCsvAndTable) {
 TEST_F(QueryLedgerTest, NullsAndErrors) {
   const json nulls = query_json("SELECT NULL AS x, 1 AS y");
   EXPECT_EQ(nulls, json::parse(R"([{"x": null, "y": 1}])"));
-  const CommandResult csv = at(ledger(), {"query", "SELECT NULL AS x, 'a,b' AS y", "--format", "csv"});
+  const CommandResult csv =
+      at(ledger(), {"query", "SELECT NULL AS x, 'a,b' AS y", "--format", "csv"});
   EXPECT_EQ(csv.out, "x,y\n,\"a,b\"\n");
   const CommandResult table = at(ledger(), {"query", "SELECT NULL AS x"});
   EXPECT_TRUE(contains(table.out, "NULL")) << table.out;
@@ -631,7 +622,9 @@ TEST_F(QueryLedgerTest, NullsAndErrors) {
   EXPECT_TRUE(contains(bad.err, "no_such_table")) << bad.err;
 }
 
-TEST_F(QueryLedgerTest, DeleteIsRefusedAndTheFileIsUnchanged) { expect_refused("DELETE FROM runs"); }
+TEST_F(QueryLedgerTest, DeleteIsRefusedAndTheFileIsUnchanged) {
+  expect_refused("DELETE FROM runs");
+}
 
 TEST_F(QueryLedgerTest, CreateTableIsRefusedAndTheFileIsUnchanged) {
   expect_refused("CREATE TABLE x(a)");
@@ -650,11 +643,12 @@ TEST_F(QueryLedgerTest, OtherWritesAreRefusedAndTheFileIsUnchanged) {
 
 // Only the first statement of a text is run: a write after a read is never executed.
 TEST_F(QueryLedgerTest, SecondStatementIsNeverRun) {
-  checkpoint(path());
-  const std::string before = sha256_of_file(path());
-  const CommandResult r = at(ledger(), {"query", "SELECT 1 AS one; DROP TABLE runs", "--format", "json"});
+  checkpoint(ledger_path());
+  const std::string before = sha256_of_file(ledger_path());
+  const CommandResult r =
+      at(ledger(), {"query", "SELECT 1 AS one; DROP TABLE runs", "--format", "json"});
   EXPECT_NE(r.exit_code, 1) << r.err;
-  EXPECT_EQ(sha256_of_file(path()), before);
+  EXPECT_EQ(sha256_of_file(ledger_path()), before);
   EXPECT_EQ(query_json("SELECT count(*) AS n FROM runs")[0]["n"], 6);
 }
 

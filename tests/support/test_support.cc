@@ -174,6 +174,43 @@ std::string build_six_run_ledger(const std::filesystem::path& demo,
   return "";
 }
 
+void copy_ledger(const std::filesystem::path& from, const std::filesystem::path& to) {
+  namespace fs = std::filesystem;
+  for (const char* suffix : {"-wal", "-shm"}) fs::remove(to.string() + suffix);
+  fs::copy_file(from, to, fs::copy_options::overwrite_existing);
+  const fs::path wal = from.string() + "-wal";
+  if (fs::exists(wal))
+    fs::copy_file(wal, to.string() + "-wal", fs::copy_options::overwrite_existing);
+}
+
+void SixRunLedgerTest::SetUpTestSuite() {
+  dir_ = new ScratchDir();
+  problem_ = build_six_run_ledger(demo(), base());
+}
+
+void SixRunLedgerTest::TearDownTestSuite() {
+  delete dir_;
+  dir_ = nullptr;
+}
+
+void SixRunLedgerTest::SetUp() {
+  ASSERT_NE(dir_, nullptr);
+  ASSERT_EQ(problem_, "");
+  copy_ledger(base(), ledger_path());
+}
+
+std::filesystem::path SixRunLedgerTest::demo() {
+  return *dir_ / "demo.db";
+}
+
+std::filesystem::path SixRunLedgerTest::base() {
+  return *dir_ / "six.db";
+}
+
+std::filesystem::path SixRunLedgerTest::benchmark_csv() {
+  return *dir_ / "demo.db-data" / "alder-vale-composite.csv";
+}
+
 std::vector<std::vector<double>> read_number_rows(const std::filesystem::path& file,
                                                   const std::string& header) {
   std::istringstream in(read_file(file));

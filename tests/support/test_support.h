@@ -1,6 +1,8 @@
 // Helpers shared by the test suites: scratch folders, running the real binary, fixture paths.
 #pragma once
 
+#include <gtest/gtest.h>
+
 #include <filesystem>
 #include <string>
 #include <vector>
@@ -50,6 +52,30 @@ CommandResult run_program(const std::vector<std::string>& argv,
 // Returns an error text, empty on success.
 std::string build_six_run_ledger(const std::filesystem::path& demo,
                                  const std::filesystem::path& ledger);
+
+// Copies a ledger file and its write-ahead log over `to` (dropping to's old -wal and -shm).
+void copy_ledger(const std::filesystem::path& from, const std::filesystem::path& to);
+
+// Tests on the six-run ledger: built once per suite by build_six_run_ledger; each test works on
+// its own copy at ledger_path().
+class SixRunLedgerTest : public ::testing::Test {
+ protected:
+  static void SetUpTestSuite();
+  static void TearDownTestSuite();
+  void SetUp() override;
+
+  static std::filesystem::path demo();           // the demo ledger the six runs' files came from
+  static std::filesystem::path base();           // the six-run ledger, never modified
+  static std::filesystem::path benchmark_csv();  // the demo's benchmark levels file
+  std::filesystem::path ledger_path() const { return scratch_ / "ledger.db"; }
+  std::string ledger() const { return ledger_path().string(); }
+
+  ScratchDir scratch_;
+
+ private:
+  static inline ScratchDir* dir_ = nullptr;
+  static inline std::string problem_;
+};
 
 // Returns true when text holds part.
 bool contains(const std::string& text, const std::string& part);
