@@ -1,4 +1,4 @@
--- alphatrail ledger schema, current version (PRAGMA user_version = 4,
+-- alphatrail ledger schema, current version (PRAGMA user_version = 5,
 -- PRAGMA application_id = 0x4154524C, "ATRL").
 --
 -- This file is the reference for people who query a ledger with SQL. It is kept equal to
@@ -59,6 +59,19 @@ CREATE TABLE version_columns (
   UNIQUE (version_id, column_name)
 );
 
+-- A packed binary copy of a column's observations, kept only so that loading is fast: days as
+-- little-endian 32-bit day numbers (days since 1970-01-01), numbers as little-endian IEEE 754
+-- doubles (NaN for a missing value), the same n observations as values_json in the same
+-- order. values_json stays the canonical form that content_hash covers; `alphatrail verify`
+-- checks that every packed copy equals it. Columns stored before schema version 5 have no
+-- packed row. To read observations with SQL, use values_json or the observations view.
+CREATE TABLE packed_columns (
+  column_id INTEGER PRIMARY KEY REFERENCES version_columns (column_id),
+  days      BLOB NOT NULL,  -- n x 4 bytes
+  numbers   BLOB NOT NULL,  -- n x 8 bytes
+  CHECK (length(days) % 4 = 0 AND length(numbers) = 2 * length(days))
+);
+
 -- Every observation of every version: series name, kind, version number, column, date and
 -- value (NULL when missing). Filter on series and version for speed.
 CREATE VIEW observations AS
@@ -84,6 +97,10 @@ BEGIN SELECT RAISE(ABORT, 'series versions are never deleted: the ledger keeps e
 CREATE TRIGGER version_columns_no_update BEFORE UPDATE ON version_columns
 BEGIN SELECT RAISE(ABORT, 'observations are immutable: ingest a new version instead'); END;
 CREATE TRIGGER version_columns_no_delete BEFORE DELETE ON version_columns
+BEGIN SELECT RAISE(ABORT, 'observations are never deleted: the ledger keeps every revision'); END;
+CREATE TRIGGER packed_columns_no_update BEFORE UPDATE ON packed_columns
+BEGIN SELECT RAISE(ABORT, 'observations are immutable: ingest a new version instead'); END;
+CREATE TRIGGER packed_columns_no_delete BEFORE DELETE ON packed_columns
 BEGIN SELECT RAISE(ABORT, 'observations are never deleted: the ledger keeps every revision'); END;
 
 -- One row per evaluation: an immutable record of one strategy tested against a benchmark,

@@ -94,8 +94,10 @@ Aligned classify(Frequency f, const std::vector<std::int64_t>& keys,
   Aligned out;
   out.frequency = f;
   out.names = names;
-  out.columns.assign(columns.size(), {});
-  for (auto& c : out.columns) c.reserve(keys.size());
+  std::vector<std::int64_t> kept;
+  std::vector<std::vector<double>> kept_columns(columns.size());
+  kept.reserve(keys.size());
+  for (auto& c : kept_columns) c.reserve(keys.size());
 
   const std::int64_t lo =
       options.from ? period_key(f, *options.from) : std::numeric_limits<std::int64_t>::min();
@@ -138,8 +140,8 @@ Aligned classify(Frequency f, const std::vector<std::int64_t>& keys,
       continue;
     }
 
-    if (!out.keys.empty()) {
-      const std::int64_t prev = out.keys.back();
+    if (!kept.empty()) {
+      const std::int64_t prev = kept.back();
       std::int64_t count = 0;
       bool gap = false;
       if (f == Frequency::daily) {
@@ -157,10 +159,13 @@ Aligned classify(Frequency f, const std::vector<std::int64_t>& keys,
                                            period_label(f, prev), period_label(f, key))});
     }
     dropped_since_kept = 0;
-    out.keys.push_back(key);
-    for (std::size_t j = 0; j < columns.size(); ++j) out.columns[j].push_back((*columns[j])[i]);
+    kept.push_back(key);
+    for (std::size_t j = 0; j < columns.size(); ++j) kept_columns[j].push_back((*columns[j])[i]);
   }
   report.coverage = std::move(coverage);
+  out.keys = std::make_shared<const std::vector<std::int64_t>>(std::move(kept));
+  for (auto& c : kept_columns)
+    out.columns.push_back(std::make_shared<const std::vector<double>>(std::move(c)));
   return out;
 }
 
@@ -168,7 +173,7 @@ Aligned classify(Frequency f, const std::vector<std::int64_t>& keys,
 
 const std::vector<double>& Aligned::column(const std::string& name) const {
   for (std::size_t j = 0; j < names.size(); ++j)
-    if (names[j] == name) return columns[j];
+    if (names[j] == name) return *columns[j];
   throw Error(ExitCode::failure, fmt::format("aligned sample has no input named \"{}\"", name));
 }
 
@@ -215,9 +220,9 @@ CommonSample::CommonSample(const std::vector<NamedSeries>& shared, const AlignOp
   std::vector<const std::vector<double>*> columns;
   for (const auto& v : values_) columns.push_back(&v);
   shared_alone_ = classify(frequency_, keys_, names_, columns, coverage_, options_);
-  kept_positions_.reserve(shared_alone_.keys.size());
+  kept_positions_.reserve(shared_alone_.keys->size());
   std::size_t i = 0;
-  for (const std::int64_t key : shared_alone_.keys) {
+  for (const std::int64_t key : *shared_alone_.keys) {
     while (keys_[i] != key) ++i;
     kept_positions_.push_back(i);
   }
@@ -241,10 +246,11 @@ Aligned CommonSample::align(const NamedSeries& first) const {
     out.frequency = f;
     out.keys = shared_alone_.keys;
     out.names = std::move(names);
-    out.columns.reserve(1 + values_.size());
-    auto& own = out.columns.emplace_back();
+    std::vector<double> own;
     own.reserve(kept_positions_.size());
     for (const std::size_t i : kept_positions_) own.push_back(values[i]);
+    out.columns.reserve(1 + values_.size());
+    out.columns.push_back(std::make_shared<const std::vector<double>>(std::move(own)));
     out.columns.insert(out.columns.end(), shared_alone_.columns.begin(),
                        shared_alone_.columns.end());
     out.report = shared_alone_.report;

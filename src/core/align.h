@@ -19,6 +19,7 @@
 
 #include <cstdint>
 #include <map>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
@@ -65,11 +66,17 @@ struct AlignReport {
   std::vector<InputCoverage> coverage;  // one per input, in input order
 };
 
+// The kept periods and the columns are shared, read-only, between the strategies aligned on
+// one CommonSample: a thousand strategies on the same sample hold one copy of the benchmark,
+// the rate and the factors, not a thousand.
+using SharedKeys = std::shared_ptr<const std::vector<std::int64_t>>;
+using SharedColumn = std::shared_ptr<const std::vector<double>>;
+
 struct Aligned {
   Frequency frequency = Frequency::monthly;
-  std::vector<std::int64_t> keys;            // kept periods, ascending
-  std::vector<std::string> names;            // one per column, in input order
-  std::vector<std::vector<double>> columns;  // columns[j][i]: input j at keys[i], all finite
+  SharedKeys keys = std::make_shared<const std::vector<std::int64_t>>();  // kept, ascending
+  std::vector<std::string> names;     // one per column, in input order
+  std::vector<SharedColumn> columns;  // (*columns[j])[i]: input j at (*keys)[i], all finite
   AlignReport report;
 
   // Returns the column of an input by name; throws Error(ExitCode::failure) when unknown.
@@ -89,7 +96,7 @@ class CommonSample {
  public:
   explicit CommonSample(const std::vector<NamedSeries>& shared, const AlignOptions& options = {});
   // Aligns one series (its name heads the result's columns) against the shared inputs.
-  // Example: common.align({"momentum 12-1", monthly_returns}).keys
+  // Example: common.align({"momentum 12-1", monthly_returns}).keys->size()
   Aligned align(const NamedSeries& first) const;
 
  private:

@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
 #include <map>
 #include <numeric>
@@ -87,33 +88,48 @@ double correlation(const std::vector<double>& x, const std::vector<double>& y) {
   return sxy / std::sqrt(sxx * syy);
 }
 
-// Slope of y on x with an intercept over the periods where x > 0 (up) or x < 0 (down); NaN
-// below 3 such periods. Two passes (means, then cross products), no copies: it runs for every
-// strategy of a batch.
-double conditional_slope(const std::vector<double>& y, const std::vector<double>& x, bool up,
-                         int& count) {
-  const auto chosen = [up](double v) { return up ? v > 0 : v < 0; };
-  std::size_t n = 0;
-  double sx = 0;
-  double sy = 0;
-  for (std::size_t i = 0; i < x.size(); ++i)
-    if (chosen(x[i])) {
-      ++n;
-      sx += x[i];
-      sy += y[i];
-    }
-  count = static_cast<int>(n);
-  if (n < 3) return NAN;
-  const double mx = sx / static_cast<double>(n);
-  const double my = sy / static_cast<double>(n);
-  double sxy = 0;
-  double sxx = 0;
-  for (std::size_t i = 0; i < x.size(); ++i)
-    if (chosen(x[i])) {
-      sxy += (x[i] - mx) * (y[i] - my);
-      sxx += (x[i] - mx) * (x[i] - mx);
-    }
-  return sxx > 0 ? sxy / sxx : NAN;
+// Slopes of y on x with an intercept over the periods where x > 0 (up) and where x < 0
+// (down); NaN below 3 such periods. Two passes (means, then cross products) that weigh each
+// period by 0 or 1 rather than branching on its sign, which the processor cannot predict.
+struct MarketSplit {
+  double up_beta = NAN;
+  double down_beta = NAN;
+  int up_periods = 0;
+  int down_periods = 0;
+};
+
+MarketSplit market_split(const std::vector<double>& y, const std::vector<double>& x) {
+  double n_up = 0, sx_up = 0, sy_up = 0;
+  double n_down = 0, sx_down = 0, sy_down = 0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    const auto up = static_cast<double>(x[i] > 0);
+    const auto down = static_cast<double>(x[i] < 0);
+    n_up += up;
+    sx_up += up * x[i];
+    sy_up += up * y[i];
+    n_down += down;
+    sx_down += down * x[i];
+    sy_down += down * y[i];
+  }
+  const double mx_up = sx_up / n_up, my_up = sy_up / n_up;
+  const double mx_down = sx_down / n_down, my_down = sy_down / n_down;
+  double sxy_up = 0, sxx_up = 0, sxy_down = 0, sxx_down = 0;
+  for (std::size_t i = 0; i < x.size(); ++i) {
+    const auto up = static_cast<double>(x[i] > 0);
+    const auto down = static_cast<double>(x[i] < 0);
+    const double dx_up = up * (x[i] - mx_up);
+    const double dx_down = down * (x[i] - mx_down);
+    sxy_up += dx_up * (y[i] - my_up);
+    sxx_up += dx_up * (x[i] - mx_up);
+    sxy_down += dx_down * (y[i] - my_down);
+    sxx_down += dx_down * (x[i] - mx_down);
+  }
+  MarketSplit out;
+  out.up_periods = static_cast<int>(n_up);
+  out.down_periods = static_cast<int>(n_down);
+  if (n_up >= 3 && sxx_up > 0) out.up_beta = sxy_up / sxx_up;
+  if (n_down >= 3 && sxx_down > 0) out.down_beta = sxy_down / sxx_down;
+  return out;
 }
 
 std::string describe_rate(const RateInput& rate, const EvaluationSettings& s, Frequency f) {
@@ -229,7 +245,7 @@ struct Design {
 
 // Builds [1, r_m - r_f, factors...] and r_s - r_f from an aligned sample.
 Design build_design(const Aligned& a, const std::vector<std::string>& factor_names) {
-  const auto T = static_cast<Eigen::Index>(a.keys.size());
+  const auto T = static_cast<Eigen::Index>(a.keys->size());
   const auto k = static_cast<Eigen::Index>(2 + factor_names.size());
   Design d{Eigen::MatrixXd(T, k), Eigen::VectorXd(T)};
   const auto& s = a.column("strategy");
@@ -249,7 +265,7 @@ Design build_design(const Aligned& a, const std::vector<std::string>& factor_nam
 
 }  // namespace
 
-EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
+EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit, bool keep_series) const {
   EvaluationResult r;
   r.strategy = p.name;
   r.rate_tenor = rate_tenor_;
@@ -259,9 +275,10 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
 
   auto& sample = r.sample;
   sample.frequency = f;
-  sample.first = period_label(f, a.keys.front());
-  sample.last = period_label(f, a.keys.back());
-  sample.observations = static_cast<int>(a.keys.size());
+  const std::vector<std::int64_t>& keys = *a.keys;
+  sample.first = period_label(f, keys.front());
+  sample.last = period_label(f, keys.back());
+  sample.observations = static_cast<int>(keys.size());
   sample.dropped = a.report.dropped;
   sample.dropped_by_reason = a.report.dropped_by_reason;
   for (const auto& gap : a.report.gaps) sample.gaps.push_back(gap.text);
@@ -270,7 +287,7 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
   sample.preparation.push_back(
       fmt::format("aligned by {} on the periods where every input has a value: {} kept, {} dropped",
                   f == Frequency::daily ? "exact date" : fmt::format("calendar {}", period_noun(f)),
-                  a.keys.size(), a.report.dropped.size()));
+                  keys.size(), a.report.dropped.size()));
   sample.warnings = shared_warnings_;
   sample.warnings.insert(sample.warnings.end(), p.warnings.begin(), p.warnings.end());
   if (sample.observations < short_sample_threshold(f))
@@ -280,18 +297,16 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
         sample.observations, frequency_name(f), short_sample_threshold(f)));
   for (const auto& gap : sample.gaps) sample.warnings.push_back("gap inside the sample: " + gap);
 
-  r.keys = a.keys;
   const auto& s = a.column("strategy");
   const auto& m = a.column("benchmark");
   const auto& rf = a.column("rate");
-  const std::size_t T = a.keys.size();
-  r.strategy_excess.resize(T);
-  r.benchmark_excess.resize(T);
-  r.risk_free = rf;
+  const std::size_t T = keys.size();
+  std::vector<double> strategy_excess(T);
+  std::vector<double> benchmark_excess(T);
   std::vector<double> active(T);
   for (std::size_t t = 0; t < T; ++t) {
-    r.strategy_excess[t] = s[t] - rf[t];
-    r.benchmark_excess[t] = m[t] - rf[t];
+    strategy_excess[t] = s[t] - rf[t];
+    benchmark_excess[t] = m[t] - rf[t];
     active[t] = s[t] - m[t];
   }
 
@@ -302,18 +317,29 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit) const {
   const double root_p = std::sqrt(static_cast<double>(P));
   d.alpha_annualized = annualize(alpha, settings_.annualize, P);
   d.appraisal_ratio = alpha / fit.residual_std * root_p;
-  d.mean_excess_strategy = mean(r.strategy_excess);
-  d.mean_excess_benchmark = mean(r.benchmark_excess);
-  d.sharpe_strategy = d.mean_excess_strategy / stdev(r.strategy_excess) * root_p;
-  d.sharpe_benchmark = d.mean_excess_benchmark / stdev(r.benchmark_excess) * root_p;
+  d.mean_excess_strategy = mean(strategy_excess);
+  d.mean_excess_benchmark = mean(benchmark_excess);
+  d.sharpe_strategy = d.mean_excess_strategy / stdev(strategy_excess) * root_p;
+  d.sharpe_benchmark = d.mean_excess_benchmark / stdev(benchmark_excess) * root_p;
   d.treynor_ratio = d.mean_excess_strategy * P / beta;
   const double te = stdev(active);
   d.tracking_error = te * root_p;
   d.information_ratio = mean(active) / te * root_p;
-  d.correlation = correlation(r.strategy_excess, r.benchmark_excess);
-  d.up_market_beta = conditional_slope(r.strategy_excess, r.benchmark_excess, true, d.up_periods);
-  d.down_market_beta =
-      conditional_slope(r.strategy_excess, r.benchmark_excess, false, d.down_periods);
+  d.correlation = correlation(strategy_excess, benchmark_excess);
+  const MarketSplit split = market_split(strategy_excess, benchmark_excess);
+  d.up_market_beta = split.up_beta;
+  d.down_market_beta = split.down_beta;
+  d.up_periods = split.up_periods;
+  d.down_periods = split.down_periods;
+  if (keep_series) {
+    r.keys = keys;
+    r.strategy_excess = std::move(strategy_excess);
+    r.benchmark_excess = std::move(benchmark_excess);
+    r.risk_free = rf;
+  } else {
+    fit.residuals = {};
+    fit.fitted = {};
+  }
 
   r.fit = std::move(fit);
   r.annualize = settings_.annualize;
@@ -328,13 +354,13 @@ void Evaluator::add_rolling(EvaluationResult& r, const Aligned& a) const {
   r.rolling_auto_lags = c.kind == ErrorKind::newey_west && c.lags == -1;
   const Design d = build_design(a, factor_names_);
   r.rolling =
-      rolling_fits(d.X, d.y, term_names_, a.keys, frequency_,
+      rolling_fits(d.X, d.y, term_names_, *a.keys, frequency_,
                    {N, c, settings_.confidence, settings_.annualize, periods_per_year(frequency_)});
   auto& warnings = r.sample.warnings;
   if (r.rolling.empty())
     warnings.push_back(fmt::format(
         "rolling estimates: the sample has {} periods, fewer than the window of {}; no window",
-        a.keys.size(), N));
+        a.keys->size(), N));
   std::size_t failed = 0;
   const RollingWindow* first_failed = nullptr;
   for (const auto& w : r.rolling)
@@ -346,26 +372,12 @@ void Evaluator::add_rolling(EvaluationResult& r, const Aligned& a) const {
         failed, r.rolling.size(), first_failed->end, first_failed->problem));
 }
 
-namespace {
-
-// Frees the per-period series of a result that only charts and comparisons need.
-void drop_series(EvaluationResult& r) {
-  r.keys = {};
-  r.strategy_excess = {};
-  r.benchmark_excess = {};
-  r.risk_free = {};
-  r.fit.residuals = {};
-  r.fit.fitted = {};
-}
-
-}  // namespace
-
 EvaluationResult Evaluator::evaluate(const ReturnInput& strategy) const {
   Prepared p = prepare(strategy);
   if (!p.error.empty()) throw Error(static_cast<ExitCode>(p.error_code), p.error);
   const Design d = build_design(p.aligned, factor_names_);
   OlsResult fit = fit_ols(d.X, d.y, term_names_, true, settings_.covariance, settings_.confidence);
-  return finish(std::move(p), std::move(fit));
+  return finish(std::move(p), std::move(fit), true);
 }
 
 std::vector<Evaluator::Outcome> Evaluator::evaluate_many(const std::vector<ReturnInput>& strategies,
@@ -390,19 +402,24 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
                       prepared[i] = prepare(strategies[begin + i]);
                   });
 
-  // Strategies whose kept periods are the same share a design matrix.
-  std::map<std::vector<std::int64_t>, std::vector<std::size_t>> groups;
+  // Strategies whose kept periods are the same share a design matrix. Those aligned on the
+  // common sample alone share its very key list, so most matches are a pointer comparison.
+  std::vector<std::pair<SharedKeys, std::vector<std::size_t>>> groups;
   for (std::size_t i = begin; i < end; ++i) {
     if (!prepared[i - begin].error.empty()) {
       outcomes[i].error = prepared[i - begin].error;
       outcomes[i].error_code = prepared[i - begin].error_code;
       continue;
     }
-    groups[prepared[i - begin].aligned.keys].push_back(i);
+    const SharedKeys& keys = prepared[i - begin].aligned.keys;
+    auto group = std::find_if(groups.begin(), groups.end(), [&](const auto& g) {
+      return g.first == keys || *g.first == *keys;
+    });
+    if (group == groups.end()) group = groups.insert(groups.end(), {keys, {}});
+    group->second.push_back(i);
   }
   const auto finish_member = [&](std::size_t i, OlsResult&& fit) {
-    outcomes[i].result = finish(std::move(prepared[i - begin]), std::move(fit));
-    if (!keep_series) drop_series(*outcomes[i].result);
+    outcomes[i].result = finish(std::move(prepared[i - begin]), std::move(fit), keep_series);
   };
   for (auto& [keys, members] : groups) {
     const Design d = build_design(prepared[members.front() - begin].aligned, factor_names_);

@@ -147,7 +147,8 @@ class Evaluator {
  private:
   struct Prepared;  // one strategy aligned on the shared sample
   Prepared prepare(const ReturnInput& strategy) const;
-  EvaluationResult finish(Prepared&& prepared, OlsResult&& fit) const;
+  // keep_series = false leaves out the per-period series (see evaluate_many).
+  EvaluationResult finish(Prepared&& prepared, OlsResult&& fit, bool keep_series) const;
   // Fills the rolling windows of a result and warns about windows it could not estimate.
   void add_rolling(EvaluationResult& result, const Aligned& aligned) const;
   void evaluate_block(const std::vector<ReturnInput>& strategies, std::size_t begin,

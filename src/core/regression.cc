@@ -195,6 +195,15 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
   return d;
 }
 
+// Scratch vectors and matrices of one fit, reused from column to column so that a batch
+// does not allocate (and fault in fresh pages for) a T x k temporary per column.
+struct Workspace {
+  Eigen::VectorXd f;       // solve_refined: y - r - X beta
+  Eigen::VectorXd factor;  // robust_meat: e_t times the leverage factor
+  Eigen::MatrixXd u;       // robust_meat: scores, T x k
+  Eigen::MatrixXd v;       // robust_meat: Bartlett-weighted lagged scores, T x k
+};
+
 // Solves min ||y - X beta|| with the QR and refines the solution on the augmented system
 // [I X; X' 0][r; beta] = [y; 0] (Bjorck 1967), computing its residuals in long double from
 // the unscaled data. The first pass is the plain QR solution; the refinement restores the
@@ -203,12 +212,13 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
 // the design is refused as too ill-conditioned. A well-conditioned design takes one
 // refinement pass.
 void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& beta,
-                   Eigen::VectorXd& r) {
+                   Eigen::VectorXd& r, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
   const auto& perm = d.qr.colsPermutation();
   beta = Eigen::VectorXd::Zero(d.k);
   r = Eigen::VectorXd::Zero(d.n);
-  Eigen::VectorXd f = y;                            // pass 0: f = y - r - X beta = y
+  Eigen::VectorXd& f = ws.f;
+  f = y;                                            // pass 0: f = y - r - X beta = y
   Eigen::VectorXd gs = Eigen::VectorXd::Zero(d.k);  // pass 0: g = -X' r = 0
   std::vector<long double> g(static_cast<std::size_t>(d.k));
   double correction = std::numeric_limits<double>::infinity();
@@ -254,8 +264,10 @@ void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& b
 // Returns the robust "meat" Q' S Q in the orthogonal basis from the scores u_t = q_t e_t c_t
 // (c_t = 1, or the HC2/HC3 leverage factor): sum u_t u_t', plus for Newey-West the Bartlett-
 // weighted autocovariances sum_l w_l (G_l + G_l'), G_l = sum_{t>l} u_t u_{t-l}'.
-Eigen::MatrixXd robust_meat(const Design& d, const Eigen::VectorXd& e, ErrorKind kind, int lags) {
-  Eigen::VectorXd factor = e;
+Eigen::MatrixXd robust_meat(const Design& d, const Eigen::VectorXd& e, ErrorKind kind, int lags,
+                            Workspace& ws) {
+  Eigen::VectorXd& factor = ws.factor;
+  factor = e;
   if (kind == ErrorKind::hc2 || kind == ErrorKind::hc3) {
     for (int t = 0; t < d.n; ++t) {
       const double room = 1 - d.leverage(t);
@@ -267,11 +279,13 @@ Eigen::MatrixXd robust_meat(const Design& d, const Eigen::VectorXd& e, ErrorKind
       factor(t) = kind == ErrorKind::hc2 ? e(t) / std::sqrt(room) : e(t) / room;
     }
   }
-  const Eigen::MatrixXd u = d.q.array().colwise() * factor.array();
+  Eigen::MatrixXd& u = ws.u;
+  u = d.q.array().colwise() * factor.array();
   Eigen::MatrixXd meat = u.transpose() * u;
   if (lags == 0) return meat;
   // sum_l w_l G_l = U' V with v_t = sum_l w_l u_{t-l}: one product instead of one per lag.
-  Eigen::MatrixXd v = Eigen::MatrixXd::Zero(d.n, d.k);
+  Eigen::MatrixXd& v = ws.v;
+  v.setZero(d.n, d.k);
   for (int l = 1; l <= lags; ++l) {
     const double w = 1.0 - static_cast<double>(l) / (lags + 1);
     v.bottomRows(d.n - l) += w * u.topRows(d.n - l);
@@ -294,7 +308,7 @@ int resolve_lags(const CovarianceOptions& opts, int n) {
 
 // Fits one response on a factorized design; the single code path of fit_ols and fit_ols_many.
 OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const CovarianceOptions& opts,
-                     double confidence, const std::string& what) {
+                     double confidence, const std::string& what, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
   if (y.size() != d.n) {
     throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
@@ -317,7 +331,7 @@ OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const Covariance
   res.condition_number = d.condition_number;
   res.lags = resolve_lags(opts, d.n);
 
-  solve_refined(d, y, res.beta, res.residuals);
+  solve_refined(d, y, res.beta, res.residuals, ws);
   res.fitted = X * res.beta;
 
   res.rss = res.residuals.squaredNorm();
@@ -341,7 +355,9 @@ OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const Covariance
     } else if (std::isinf(res.f_stat)) {
       res.f_p_value = 0;
     } else {
-      boost::math::fisher_f_distribution<double> f(q_tested, dfd);
+      using DoublePolicy =
+          boost::math::policies::policy<boost::math::policies::promote_double<false>>;
+      boost::math::fisher_f_distribution<double, DoublePolicy> f(q_tested, dfd);
       res.f_p_value = boost::math::cdf(boost::math::complement(f, std::max(0.0, res.f_stat)));
     }
   } else {
@@ -358,7 +374,7 @@ OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const Covariance
     case ErrorKind::hc3:
     case ErrorKind::newey_west: {
       const ErrorKind weights = opts.kind == ErrorKind::hc1 ? ErrorKind::hc0 : opts.kind;
-      const Eigen::MatrixXd meat = robust_meat(d, res.residuals, weights, res.lags);
+      const Eigen::MatrixXd meat = robust_meat(d, res.residuals, weights, res.lags, ws);
       Eigen::MatrixXd v = d.a * meat * d.a.transpose();
       res.covariance = 0.5 * (v + v.transpose());
       if (opts.kind == ErrorKind::hc1 ||
@@ -429,7 +445,8 @@ OlsResult fit_ols(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
                                        " design rows; pass one response per row");
   }
   const Design d = factorize(X, names, has_intercept);
-  return fit_column(d, y, opts, confidence, "the response");
+  Workspace ws;
+  return fit_column(d, y, opts, confidence, "the response", ws);
 }
 
 std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::MatrixXd& Y,
@@ -447,11 +464,13 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
   std::vector<std::exception_ptr> failures(static_cast<std::size_t>(m));
 
   auto run_range = [&](Eigen::Index begin, Eigen::Index end) {
+    Workspace ws;
+    Eigen::VectorXd y;
     for (Eigen::Index j = begin; j < end; ++j) {
       try {
-        const Eigen::VectorXd y = Y.col(j);
+        y = Y.col(j);
         results[static_cast<std::size_t>(j)] =
-            fit_column(d, y, opts, confidence, "response column " + std::to_string(j + 1));
+            fit_column(d, y, opts, confidence, "response column " + std::to_string(j + 1), ws);
       } catch (...) {
         failures[static_cast<std::size_t>(j)] = std::current_exception();
       }

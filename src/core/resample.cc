@@ -122,6 +122,8 @@ Resampled compound_returns(const DatedSeries& returns, Frequency target, Frequen
   out.report.last_date = dates.back();
 
   PeriodSeries& s = out.series;
+  s.keys.reserve(dates.size());
+  s.values.reserve(dates.size());
   // Compounded as R <- R + r + R r, i.e. (1 + R)(1 + r) - 1, which keeps a single return exact
   // and loses fewer digits than prod(1 + r) - 1 for small returns.
   double compounded = 0.0;

@@ -3,9 +3,14 @@
 #include <fmt/compile.h>
 #include <fmt/format.h>
 
+#include <algorithm>
+#include <bit>
 #include <charconv>
 #include <cmath>
+#include <cstdint>
 #include <cstring>
+#include <functional>
+#include <limits>
 #include <optional>
 
 #include "core/error.h"
@@ -51,7 +56,84 @@ std::optional<core::Day> read_date(const char* p) {
                           name, at));
 }
 
+// Copies n little-endian words of T from bytes into out; a plain copy on little-endian hosts.
+template <typename T, typename Word>
+void read_little_endian(const char* bytes, std::size_t n, T* out) {
+  static_assert(sizeof(T) == sizeof(Word));
+  if (n == 0) return;  // memcpy must not see the null pointers of empty buffers
+  if constexpr (std::endian::native == std::endian::little) {
+    std::memcpy(out, bytes, n * sizeof(T));
+  } else {
+    for (std::size_t i = 0; i < n; ++i) {
+      Word w = 0;
+      for (std::size_t b = 0; b < sizeof(Word); ++b)
+        w |= static_cast<Word>(static_cast<unsigned char>(bytes[i * sizeof(Word) + b])) << (8 * b);
+      std::memcpy(out + i, &w, sizeof w);
+    }
+  }
+}
+
+// Writes w's bytes in little-endian order at p and returns the position after them.
+template <typename Word>
+char* write_little_endian(char* p, Word w) {
+  if constexpr (std::endian::native == std::endian::little) {
+    std::memcpy(p, &w, sizeof w);
+  } else {
+    for (std::size_t b = 0; b < sizeof(Word); ++b) p[b] = static_cast<char>(w >> (8 * b));
+  }
+  return p + sizeof w;
+}
+
+[[noreturn]] void corrupted_packing(const std::string& name, const std::string& problem) {
+  throw Error(ExitCode::ledger,
+              fmt::format("the packed copy of column '{}' is corrupted: {}; run `alphatrail "
+                          "verify` and restore the ledger from a copy",
+                          name, problem));
+}
+
 }  // namespace
+
+PackedColumn encode_packed(const ColumnData& column) {
+  const std::size_t n = column.dates.size();
+  PackedColumn packed{std::string(4 * n, '\0'), std::string(8 * n, '\0')};
+  char* d = packed.days.data();
+  char* v = packed.numbers.data();
+  for (std::size_t i = 0; i < n; ++i) {
+    d = write_little_endian(d, static_cast<std::uint32_t>(column.dates[i]));
+    // One NaN for every missing value, the one decode_values_json gives, so that a packed copy
+    // is a function of the JSON and verify can compare bytes.
+    const double x =
+        std::isnan(column.values[i]) ? std::numeric_limits<double>::quiet_NaN() : column.values[i];
+    v = write_little_endian(v, std::bit_cast<std::uint64_t>(x));
+  }
+  return packed;
+}
+
+ColumnData decode_packed(const std::string& name, std::string_view days, std::string_view numbers) {
+  if (days.size() % 4 != 0 || numbers.size() != 2 * days.size())
+    corrupted_packing(name, fmt::format("{} bytes of days and {} bytes of numbers (expected 4 "
+                                        "and 8 bytes an observation)",
+                                        days.size(), numbers.size()));
+  const std::size_t n = days.size() / 4;
+  ColumnData column{name, std::vector<core::Day>(n), std::vector<double>(n)};
+  read_little_endian<core::Day, std::uint32_t>(days.data(), n, column.dates.data());
+  read_little_endian<double, std::uint64_t>(numbers.data(), n, column.values.data());
+  // Dates ascending, unique and within the JSON's years, as decode_values_json guarantees to
+  // everything downstream (date arithmetic overflows far outside them).
+  const auto out_of_order =
+      std::adjacent_find(column.dates.begin(), column.dates.end(), std::greater_equal<>());
+  if (out_of_order != column.dates.end())
+    corrupted_packing(name, fmt::format("its dates are not ascending at observation {}",
+                                        out_of_order - column.dates.begin() + 2));
+  if (n > 0 && (column.dates.front() < kFirstStoredDay || column.dates.back() > kLastStoredDay)) {
+    const bool early = column.dates.front() < kFirstStoredDay;
+    corrupted_packing(
+        name, fmt::format("observation {} has day number {}, outside 0000-01-01 .. "
+                          "9999-12-31",
+                          early ? 1 : n, early ? column.dates.front() : column.dates.back()));
+  }
+  return column;
+}
 
 std::string encode_values_json(const ColumnData& column) {
   // Written into a buffer sized for the longest entry: ',"YYYY-MM-DD":' plus at most 24

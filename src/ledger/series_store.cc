@@ -25,6 +25,7 @@ namespace {
 
 struct Prepared {
   std::vector<EncodedColumn> columns;
+  std::vector<PackedColumn> packed;  // the same columns, packed for loading
   std::string hash;
   std::vector<core::Day> all_dates;  // union over columns, ascending
   std::int64_t missing = 0;
@@ -33,8 +34,10 @@ struct Prepared {
 Prepared prepare(const NewVersion& v) {
   Prepared p;
   p.columns.reserve(v.columns.size());
+  p.packed.reserve(v.columns.size());
   for (const auto& c : v.columns) {
     p.columns.push_back({c.name, encode_values_json(c)});
+    p.packed.push_back(encode_packed(c));
     p.missing +=
         std::count_if(c.values.begin(), c.values.end(), [](double x) { return std::isnan(x); });
     p.all_dates.insert(p.all_dates.end(), c.dates.begin(), c.dates.end());
@@ -71,6 +74,16 @@ class PreparedPipeline {
     if (failure_) std::rethrow_exception(failure_);
     return slots_[i];
   }
+
+  // Frees version i's encoding once it is stored: the encodings of a wide file take about
+  // three times the file's size, and holding them all to the end sets the ingest's peak.
+  void release(std::size_t i) {
+    Prepared stored;
+    {
+      std::lock_guard lock(mutex_);
+      std::swap(stored, slots_[i]);
+    }
+  }  // freed here, outside the lock
 
  private:
   void work() {
@@ -183,6 +196,8 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
   SQLite::Statement add_column(db,
                                "INSERT INTO version_columns (version_id, position, column_name, "
                                "values_json) VALUES (?, ?, ?, ?)");
+  SQLite::Statement add_packed(
+      db, "INSERT INTO packed_columns (column_id, days, numbers) VALUES (?, ?, ?)");
 
   std::vector<StoreOutcome> outcomes;
   outcomes.reserve(versions.size());
@@ -210,6 +225,7 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
           outcome.version -= 1;
           outcome.unchanged = true;
           outcomes.push_back(outcome);
+          prepared.release(i);
           continue;
         }
       }
@@ -260,8 +276,15 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
       add_column.bind(3, p.columns[c].name);
       add_column.bindNoCopy(4, p.columns[c].values_json);
       add_column.exec();
+      const PackedColumn& packed = p.packed[c];
+      add_packed.reset();
+      add_packed.bind(1, db.getLastInsertRowid());
+      add_packed.bindNoCopy(2, packed.days.data(), static_cast<int>(packed.days.size()));
+      add_packed.bindNoCopy(3, packed.numbers.data(), static_cast<int>(packed.numbers.size()));
+      add_packed.exec();
     }
     outcomes.push_back(outcome);
+    prepared.release(i);
   }
   return outcomes;
 }
@@ -296,14 +319,17 @@ std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name
 
 std::vector<LoadedVersion> load_versions(Ledger& ledger,
                                          const std::vector<VersionRequest>& requests) {
-  // Reading is SQLite's and serial; decoding the stored text is pure. The caller reads while
-  // the other workers decode what has been read, then decodes the rest with them.
+  // Reading is SQLite's and serial. A column with a packed copy is unpacked by the reader as
+  // it reads (a copy of the bytes, cheaper than handing them over); a column stored before
+  // the packed copies existed is decoded from its JSON text by the other workers while the
+  // caller reads on, and the caller then decodes the rest with them.
   std::vector<LoadedVersion> loaded(requests.size());
   struct Pending {
     std::size_t version;
     std::string name;
-    std::string text;
+    std::string text;  // JSON to decode, when the column has no packed copy
     ColumnData column;
+    bool decoded = false;
   };
   std::deque<Pending> pending;  // push_back keeps references to earlier items valid
   std::size_t next = 0;         // the first item no worker has taken yet
@@ -318,6 +344,7 @@ std::vector<LoadedVersion> load_versions(Ledger& ledger,
       if (next >= pending.size()) return;
       Pending& item = pending[next++];
       lock.unlock();
+      if (item.decoded) continue;
       item.column = decode_values_json(item.name, item.text);
       std::string().swap(item.text);  // keep the peak low
     }
@@ -354,18 +381,33 @@ std::vector<LoadedVersion> load_versions(Ledger& ledger,
         }
         loaded[r].info = read_version_info(*q);
       }
+      // values_json is only read (SQLite fetches a column lazily) when there is no packed copy.
       auto cols = ledger.statement(
-          "SELECT column_name, values_json FROM version_columns WHERE version_id = ? ORDER BY "
-          "position");
+          "SELECT c.column_name, p.days, p.numbers, CASE WHEN p.column_id IS NULL THEN "
+          "c.values_json END FROM version_columns c LEFT JOIN packed_columns p ON p.column_id = "
+          "c.column_id WHERE c.version_id = ? ORDER BY c.position");
       cols->bind(1, loaded[r].info.version_id);
       while (cols->executeStep()) {
-        const auto* text = static_cast<const char*>(cols->getColumn(1).getText());
-        const auto size = static_cast<std::size_t>(cols->getColumn(1).getBytes());
+        Pending item{r, cols->getColumn(0).getString(), {}, {}};
+        if (const SQLite::Column days = cols->getColumn(1); !days.isNull()) {
+          const SQLite::Column numbers = cols->getColumn(2);
+          item.column = decode_packed(
+              item.name,
+              {static_cast<const char*>(days.getBlob()), static_cast<std::size_t>(days.getBytes())},
+              {static_cast<const char*>(numbers.getBlob()),
+               static_cast<std::size_t>(numbers.getBytes())});
+          item.decoded = true;
+        } else {
+          const SQLite::Column json = cols->getColumn(3);
+          item.text.assign(static_cast<const char*>(json.getText()),
+                           static_cast<std::size_t>(json.getBytes()));
+        }
+        const bool to_decode = !item.decoded;
         {
           std::lock_guard lock(mutex);
-          pending.push_back({r, cols->getColumn(0).getString(), std::string(text, size), {}});
+          pending.push_back(std::move(item));
         }
-        arrived.notify_one();
+        if (to_decode) arrived.notify_one();
       }
     }
   };

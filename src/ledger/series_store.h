@@ -38,8 +38,9 @@ struct StoreOutcome {
   std::string content_hash;
 };
 
-// Stores each version whose content differs from its series' latest version. Must run
-// inside Ledger::write_transaction. Throws Error(bad_input) when a name exists as another kind.
+// Stores each version whose content differs from its series' latest version, every column
+// as its canonical JSON and a packed copy. Must run inside Ledger::write_transaction. Throws
+// Error(bad_input) when a name exists as another kind.
 std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion> versions,
                                          const SourceInfo& source);
 
@@ -86,8 +87,9 @@ struct VersionRequest {
   std::string name;
   std::optional<int> version;  // nullopt: the latest
 };
-// Loads many versions at once, decoding their observations on all cores; the same result as
-// load_version on each, in request order.
+// Loads many versions at once: each column from its packed copy, or, when it has none
+// (stored before schema version 5), from its JSON decoded on all cores. The same result as
+// load_version on each, in request order; throws Error(ledger) for a corrupted column.
 std::vector<LoadedVersion> load_versions(Ledger& ledger,
                                          const std::vector<VersionRequest>& requests);
 

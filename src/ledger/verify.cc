@@ -4,7 +4,12 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <bit>
 #include <cmath>
+#include <cstdint>
+#include <limits>
+#include <optional>
+#include <string_view>
 
 #include "core/dates.h"
 #include "core/error.h"
@@ -15,6 +20,56 @@ namespace alphatrail::ledger {
 
 namespace {
 
+// Reads the little-endian word of type Word at byte `at` of bytes.
+template <typename Word>
+Word word_at(std::string_view bytes, std::size_t at) {
+  Word w = 0;
+  for (std::size_t b = 0; b < sizeof(Word); ++b)
+    w |= static_cast<Word>(static_cast<unsigned char>(bytes[at + b])) << (8 * b);
+  return w;
+}
+
+// Shows a day read from a packed copy, which may lie outside the years a date can be written.
+std::string shown_day(core::Day day) {
+  if (day < kFirstStoredDay || day > kLastStoredDay) return fmt::format("day number {}", day);
+  return core::format_date(day);
+}
+
+// Shows a value as the JSON writes it, or a NaN other than the one that stands for null.
+std::string shown_value(double x) {
+  if (!std::isnan(x)) return fmt::format("{}", x);
+  const auto bits = std::bit_cast<std::uint64_t>(x);
+  return bits == std::bit_cast<std::uint64_t>(std::numeric_limits<double>::quiet_NaN())
+             ? std::string("null")
+             : fmt::format("NaN {:#018x}", bits);
+}
+
+// Returns what differs between a column's packed copy and its decoded JSON, nullopt when they
+// are equal byte for byte (dates, every bit of every value, the one NaN where JSON has null).
+std::optional<std::string> packed_mismatch(const ColumnData& column, std::string_view days,
+                                           std::string_view numbers) {
+  const PackedColumn expected = encode_packed(column);
+  if (days == expected.days && numbers == expected.numbers) return std::nullopt;
+  const std::size_t n = column.dates.size();
+  if (days.size() != expected.days.size() || numbers.size() != expected.numbers.size())
+    return fmt::format(
+        "holds {} bytes of days and {} bytes of numbers, not the {} and {} of its "
+        "{} observations",
+        days.size(), numbers.size(), expected.days.size(), expected.numbers.size(), n);
+  for (std::size_t i = 0; i < n; ++i) {
+    const auto day = static_cast<core::Day>(word_at<std::uint32_t>(days, 4 * i));
+    if (day != column.dates[i])
+      return fmt::format("observation {} is dated {} in values_json but {} in the packed copy",
+                         i + 1, core::format_date(column.dates[i]), shown_day(day));
+    const auto bits = word_at<std::uint64_t>(numbers, 8 * i);
+    if (bits != word_at<std::uint64_t>(expected.numbers, 8 * i))
+      return fmt::format("the value of {} is {} in values_json but {} in the packed copy",
+                         core::format_date(column.dates[i]), shown_value(column.values[i]),
+                         shown_value(std::bit_cast<double>(bits)));
+  }
+  return std::nullopt;  // not reached: equal sizes and equal words are equal bytes
+}
+
 void verify_versions(Ledger& ledger, VerifyReport& report) {
   SQLite::Statement versions(ledger.db(),
                              "SELECT v.version_id, s.name, s.kind, v.version, v.unit, v.quote, "
@@ -22,8 +77,9 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
                              "v.last_date, v.observations, v.missing FROM series_versions v JOIN "
                              "series s ON s.series_id = v.series_id ORDER BY v.version_id");
   SQLite::Statement columns(ledger.db(),
-                            "SELECT column_name, values_json FROM version_columns WHERE "
-                            "version_id = ? ORDER BY position");
+                            "SELECT c.column_name, c.values_json, p.days, p.numbers FROM "
+                            "version_columns c LEFT JOIN packed_columns p ON p.column_id = "
+                            "c.column_id WHERE c.version_id = ? ORDER BY c.position");
   while (versions.executeStep()) {
     ++report.versions_checked;
     const std::string object = fmt::format(
@@ -43,6 +99,19 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
         dates.insert(dates.end(), column.dates.begin(), column.dates.end());
         missing += std::count_if(column.values.begin(), column.values.end(),
                                  [](double v) { return std::isnan(v); });
+        // The packed copy is what loading reads: it must say exactly what the hashed JSON says.
+        if (const SQLite::Column days = columns.getColumn(2); !days.isNull()) {
+          const SQLite::Column numbers = columns.getColumn(3);
+          const auto bytes = [](const SQLite::Column& c) {
+            return std::string_view(static_cast<const char*>(c.getBlob()),
+                                    static_cast<std::size_t>(c.getBytes()));
+          };
+          if (const auto problem = packed_mismatch(column, bytes(days), bytes(numbers)))
+            report.problems.push_back(
+                {object, fmt::format("the packed copy of column '{}' does not match its "
+                                     "values_json: {}",
+                                     column.name, *problem)});
+        }
       } catch (const Error& e) {
         report.problems.push_back(
             {object, fmt::format("column '{}' is malformed", encoded.back().name)});

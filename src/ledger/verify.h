@@ -1,6 +1,7 @@
 // Verification of a ledger: every version's content hash recomputed from its stored
-// observations, every run's inputs hash and record hash, the hash chain over all runs, and
-// SQLite's own integrity check. Read-only.
+// observations, every packed copy of a column compared with the column's JSON, every run's
+// inputs hash and record hash, the hash chain over all runs, and SQLite's own integrity
+// check. Read-only.
 #pragma once
 
 #include <cstdint>

@@ -15,15 +15,19 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <cmath>
 #include <cstdint>
 #include <cstdlib>
+#include <cstring>
 #include <filesystem>
 #include <fstream>
+#include <limits>
 #include <nlohmann/json.hpp>
 #include <sstream>
 #include <string>
 #include <vector>
 
+#include "core/dates.h"
 #include "core/sha256.h"
 #include "ledger/content.h"
 #include "support/test_support.h"
@@ -96,11 +100,13 @@ std::string joined(const std::vector<std::string>& lines) {
 
 // Runs statements on the ledger the way a tamperer would: the guarding triggers dropped, the
 // rows edited, the triggers put back exactly as they were, all in one transaction. Each
-// statement must change at least one row, so that the edit really happened.
+// statement must change at least one row, so that the edit really happened. With
+// ignore_checks the edit may also break the tables' CHECK constraints.
 void tamper(const fs::path& ledger, const std::vector<std::string>& triggers,
-            const std::vector<std::string>& statements) {
+            const std::vector<std::string>& statements, bool ignore_checks = false) {
   SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
   db.exec("PRAGMA foreign_keys = OFF");
+  if (ignore_checks) db.exec("PRAGMA ignore_check_constraints = ON");
   std::vector<std::string> trigger_sql;
   for (const auto& t : triggers) {
     SQLite::Statement q(db, "SELECT sql FROM sqlite_master WHERE type = 'trigger' AND name = ?");
@@ -195,7 +201,165 @@ TEST_F(VerifyLedgerTest, EditedObservationIsAContentHashMismatch) {
        "' WHERE version_id = (SELECT "
        "version_id FROM series_versions JOIN series USING (series_id) WHERE name = 'trend-6m')"});
   const auto lines = expect_mismatch("series trend-6m version 1", "content hash");
+  // The packed copy still holds the original observations, and says so.
+  EXPECT_TRUE(names(lines, "series trend-6m version 1",
+                    fmt::format("the packed copy of column 'trend-6m' does not match its "
+                                "values_json: the value of {} is {} in values_json but {} in "
+                                "the packed copy",
+                                json_text.substr(colon - 10, 10), value + 0.0001, value)))
+      << joined(lines);
+  EXPECT_EQ(lines.size(), 2u) << joined(lines);
+}
+
+// --- the packed copies of the observations, which loading reads instead of the JSON ---------
+
+// The packed copy of trend-6m's one column as hex digits, and the decoded JSON beside it.
+struct PackedTrend6m {
+  std::string days_hex;
+  std::string numbers_hex;
+  alphatrail::ledger::ColumnData column;
+};
+
+PackedTrend6m read_packed_trend_6m(const std::string& ledger) {
+  SQLite::Database db(ledger, SQLite::OPEN_READONLY);
+  SQLite::Statement q(db,
+                      "SELECT hex(p.days), hex(p.numbers), c.values_json FROM packed_columns p "
+                      "JOIN version_columns c USING (column_id) JOIN series_versions v USING "
+                      "(version_id) JOIN series s USING (series_id) WHERE s.name = 'trend-6m'");
+  if (!q.executeStep()) return {};
+  return {q.getColumn(0).getString(), q.getColumn(1).getString(),
+          alphatrail::ledger::decode_values_json("trend-6m", q.getColumn(2).getString())};
+}
+
+// The little-endian bytes of a double as the upper-case hex digits SQLite's hex() gives.
+std::string hex_of(double x) {
+  std::uint64_t b = 0;
+  std::memcpy(&b, &x, sizeof b);
+  std::string out;
+  for (int i = 0; i < 8; ++i) out += fmt::format("{:02X}", (b >> (8 * i)) & 0xff);
+  return out;
+}
+
+const std::string kTrend6mColumn =
+    "(SELECT column_id FROM version_columns JOIN series_versions USING (version_id) JOIN series "
+    "USING (series_id) WHERE name = 'trend-6m')";
+
+TEST_F(VerifyLedgerTest, EditedPackedValueIsAMismatchOfThatColumn) {
+  const PackedTrend6m before = read_packed_trend_6m(ledger());
+  const std::size_t n = before.column.values.size();
+  ASSERT_GT(n, 10u);
+  ASSERT_EQ(before.numbers_hex.size(), 16 * n);
+  ASSERT_EQ(before.numbers_hex.substr(16 * 9, 16), hex_of(before.column.values[9]));
+  const double value = before.column.values[9];
+  ASSERT_TRUE(std::isfinite(value));
+  std::string edited = before.numbers_hex;
+  edited.replace(16 * 9, 16, hex_of(value + 0.0001));
+  tamper(ledger_path(), {"packed_columns_no_update"},
+         {"UPDATE packed_columns SET numbers = x'" + edited +
+          "' WHERE column_id = " + kTrend6mColumn});
+  // The premise: loading reads the packed copy, so the edit changes what the run computes.
+  const CommandResult reproduce = at(ledger(), {"reproduce", "3"});
+  EXPECT_EQ(reproduce.exit_code, 7) << reproduce.out << reproduce.err;
+
+  const auto lines = expect_mismatch(
+      "series trend-6m version 1",
+      fmt::format("the packed copy of column 'trend-6m' does not match its values_json: the "
+                  "value of {} is {} in values_json but {} in the packed copy",
+                  alphatrail::core::format_date(before.column.dates[9]), value, value + 0.0001));
+  // The content hash covers the JSON only, which is intact: this is the one finding.
   EXPECT_EQ(lines.size(), 1u) << joined(lines);
+}
+
+TEST_F(VerifyLedgerTest, EditedPackedDateOrMissingValueIsAMismatch) {
+  const PackedTrend6m before = read_packed_trend_6m(ledger());
+  ASSERT_GT(before.column.dates.size(), 5u);
+  // The fifth date one day later.
+  std::string days = before.days_hex;
+  const std::uint32_t moved = static_cast<std::uint32_t>(before.column.dates[4] + 1);
+  std::string moved_hex;
+  for (int i = 0; i < 4; ++i) moved_hex += fmt::format("{:02X}", (moved >> (8 * i)) & 0xff);
+  days.replace(8 * 4, 8, moved_hex);
+  tamper(ledger_path(), {"packed_columns_no_update"},
+         {"UPDATE packed_columns SET days = x'" + days + "' WHERE column_id = " + kTrend6mColumn});
+  auto lines = expect_mismatch(
+      "series trend-6m version 1",
+      fmt::format("observation 5 is dated {} in values_json but {} in the packed copy",
+                  alphatrail::core::format_date(before.column.dates[4]),
+                  alphatrail::core::format_date(before.column.dates[4] + 1)));
+  EXPECT_EQ(lines.size(), 1u) << joined(lines);
+
+  // A value made missing (NaN) in the packed copy only.
+  ASSERT_TRUE(std::isfinite(before.column.values[2]));
+  copy_ledger(base(), ledger_path());
+  std::string numbers = before.numbers_hex;
+  numbers.replace(16 * 2, 16, hex_of(std::numeric_limits<double>::quiet_NaN()));
+  tamper(ledger_path(), {"packed_columns_no_update"},
+         {"UPDATE packed_columns SET numbers = x'" + numbers +
+          "' WHERE column_id = " + kTrend6mColumn});
+  lines = expect_mismatch(
+      "series trend-6m version 1",
+      fmt::format("the value of {} is {} in values_json but null in the "
+                  "packed copy",
+                  alphatrail::core::format_date(before.column.dates[2]), before.column.values[2]));
+  EXPECT_EQ(lines.size(), 1u) << joined(lines);
+
+  // Any NaN but the one the packed form writes for null is a different value.
+  copy_ledger(base(), ledger_path());
+  numbers = before.numbers_hex;
+  numbers.replace(16 * 3, 16, "010000000000F87F");
+  tamper(ledger_path(), {"packed_columns_no_update"},
+         {"UPDATE packed_columns SET numbers = x'" + numbers +
+          "' WHERE column_id = " + kTrend6mColumn});
+  lines = expect_mismatch(
+      "series trend-6m version 1",
+      fmt::format("the value of {} is {} in values_json but NaN "
+                  "0x7ff8000000000001 in the packed copy",
+                  alphatrail::core::format_date(before.column.dates[3]), before.column.values[3]));
+  EXPECT_EQ(lines.size(), 1u) << joined(lines);
+}
+
+TEST_F(VerifyLedgerTest, PackedCopyOfTheWrongLengthIsAMismatchAndRefusedByLoading) {
+  const std::size_t n = read_packed_trend_6m(ledger()).column.dates.size();
+  ASSERT_GT(n, 1u);
+  // One observation fewer in the days than in the numbers: only possible around the CHECK.
+  tamper(ledger_path(), {"packed_columns_no_update"},
+         {"UPDATE packed_columns SET days = substr(days, 1, length(days) - 4) WHERE column_id = " +
+          kTrend6mColumn},
+         true);
+  const auto lines = expect_mismatch(
+      "series trend-6m version 1",
+      fmt::format("the packed copy of column 'trend-6m' does not match its values_json: holds {} "
+                  "bytes of days and {} bytes of numbers, not the {} and {} of its {} "
+                  "observations",
+                  4 * (n - 1), 8 * n, 4 * n, 8 * n, n));
+  EXPECT_EQ(lines.size(), 1u) << joined(lines);
+
+  // Loading refuses it as a damaged ledger rather than reading past its end.
+  const CommandResult reproduce = at(ledger(), {"reproduce", "3"});
+  EXPECT_EQ(reproduce.exit_code, 4) << reproduce.out << reproduce.err;
+  EXPECT_TRUE(contains(reproduce.err,
+                       fmt::format("the packed copy of column 'trend-6m' is corrupted: {} bytes "
+                                   "of days and {} bytes of numbers",
+                                   4 * (n - 1), 8 * n)))
+      << reproduce.err;
+}
+
+// A ledger whose columns have no packed copies (stored before schema version 5) loads from the
+// JSON: every run still reproduces bit for bit and verify finds nothing.
+TEST_F(VerifyLedgerTest, ColumnsWithoutPackedCopiesLoadFromTheirJson) {
+  {
+    SQLite::Database db(ledger(), SQLite::OPEN_READONLY);
+    ASSERT_EQ(db.execAndGet("SELECT count(*) FROM packed_columns").getInt(),
+              db.execAndGet("SELECT count(*) FROM version_columns").getInt());
+  }
+  tamper(ledger_path(), {"packed_columns_no_delete"}, {"DELETE FROM packed_columns"});
+  for (int run = 1; run <= 6; ++run) {
+    const CommandResult r = at(ledger(), {"reproduce", std::to_string(run)});
+    EXPECT_EQ(r.exit_code, 0) << "run " << run << ": " << r.out << r.err;
+  }
+  const CommandResult r = at(ledger(), {"verify"});
+  EXPECT_EQ(r.exit_code, 0) << r.out << r.err;
+  EXPECT_TRUE(contains(r.out, "everything checks out")) << r.out;
 }
 
 // A tamperer who also recomputes the version's content hash is caught by the runs that used

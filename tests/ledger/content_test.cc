@@ -173,6 +173,191 @@ TEST(ValuesJson, RejectsDatesOutOfOrderOrRepeated) {
   expect_malformed(R"({"2021-01-31":0.1,"2021-01-31":0.2})");
 }
 
+// --- packed form ----------------------------------------------------------------------------
+
+std::string hex(const std::string& bytes) {
+  std::string out;
+  for (const char c : bytes) {
+    constexpr const char* kDigits = "0123456789abcdef";
+    const auto u = static_cast<unsigned char>(c);
+    out += kDigits[u >> 4];
+    out += kDigits[u & 15];
+  }
+  return out;
+}
+
+TEST(PackedColumn, WritesLittleEndianDayNumbersAndDoubles) {
+  // 2021-01-31 is day 18658 = 0x48e2 (51 years of 365 days, 13 leap days, 30 days);
+  // 0.1 is 0x3fb999999999999a and -0.0 is the sign bit alone (IEEE 754 binary64).
+  const auto c = column("a", {day(2021, 1, 31), day(1969, 12, 31)}, {0.1, -0.0});
+  const auto packed = ledger::encode_packed(c);
+  EXPECT_EQ(hex(packed.days), "e2480000ffffffff");
+  EXPECT_EQ(hex(packed.numbers), "9a9999999999b93f0000000000000080");
+}
+
+TEST(PackedColumn, WritesEveryMissingValueAsTheNaNJsonDecodesTo) {
+  // Missing values may reach the store as any NaN; the packed copy holds one NaN so that it
+  // is a function of the JSON text. 0x7ff8000000000000 is the quiet NaN.
+  double negative_payload = 0;
+  const std::uint64_t b = 0xfff0000000000123u;
+  std::memcpy(&negative_payload, &b, sizeof b);
+  ASSERT_TRUE(std::isnan(negative_payload));
+  const auto c = column("m", {day(2021, 1, 31), day(2021, 2, 28)}, {negative_payload, -kNaN});
+  EXPECT_EQ(hex(ledger::encode_packed(c).numbers), "000000000000f87f000000000000f87f");
+  const auto from_json = ledger::decode_values_json("m", ledger::encode_values_json(c));
+  EXPECT_EQ(bits(from_json.values[0]), 0x7ff8000000000000u);
+}
+
+TEST(PackedColumn, RoundTripsAsTheJsonDoesBitForBit) {
+  // Negative zero, the smallest subnormals, the boundary between subnormal and normal, the
+  // largest finite doubles, values without a short decimal form, random bit patterns, and
+  // the first and last dates the JSON form can write.
+  std::vector<double> values{-0.0,
+                             0.0,
+                             5e-324,
+                             -5e-324,
+                             2.2250738585072009e-308,  // the largest subnormal
+                             2.2250738585072014e-308,  // the smallest normal
+                             std::numeric_limits<double>::max(),
+                             std::numeric_limits<double>::lowest(),
+                             0.1 + 0.2,
+                             1.0 / 3,
+                             kNaN,
+                             -1e-300};
+  std::mt19937_64 random(20260101);
+  while (values.size() < 3000) {
+    const std::uint64_t b = random();
+    double x = 0;
+    std::memcpy(&x, &b, sizeof x);
+    values.push_back(std::isfinite(x) ? x : kNaN);
+  }
+  std::vector<core::Day> dates{day(0, 1, 1)};
+  for (std::size_t i = 1; i + 1 < values.size(); ++i)
+    dates.push_back(day(1900, 1, 1) + static_cast<int>(i) * 11);
+  dates.push_back(day(9999, 12, 31));
+  const auto original = column("r", dates, values);
+
+  const auto packed = ledger::encode_packed(original);
+  ASSERT_EQ(packed.days.size(), 4 * values.size());
+  ASSERT_EQ(packed.numbers.size(), 8 * values.size());
+  const auto unpacked = ledger::decode_packed("r", packed.days, packed.numbers);
+  const auto from_json = ledger::decode_values_json("r", ledger::encode_values_json(original));
+  EXPECT_EQ(unpacked.name, "r");
+  EXPECT_EQ(unpacked.dates, original.dates);
+  EXPECT_EQ(unpacked.dates, from_json.dates);
+  ASSERT_EQ(unpacked.values.size(), values.size());
+  ASSERT_EQ(from_json.values.size(), values.size());
+  int missing = 0;
+  for (std::size_t i = 0; i < values.size(); ++i) {
+    ASSERT_EQ(bits(unpacked.values[i]), bits(from_json.values[i])) << "value " << i;
+    if (std::isnan(values[i]))
+      ++missing;
+    else
+      ASSERT_EQ(bits(unpacked.values[i]), bits(values[i])) << "value " << i << ": " << values[i];
+  }
+  EXPECT_GT(missing, 1);  // the random patterns held NaNs and infinities too
+  EXPECT_EQ(bits(unpacked.values[0]), 0x8000000000000000u);  // negative zero kept
+  EXPECT_EQ(core::format_date(unpacked.dates.front()), "0000-01-01");
+  EXPECT_EQ(core::format_date(unpacked.dates.back()), "9999-12-31");
+  // Packing the JSON's decoding gives the same bytes: the packed copy is a function of the JSON.
+  const auto repacked = ledger::encode_packed(from_json);
+  EXPECT_EQ(repacked.days, packed.days);
+  EXPECT_EQ(repacked.numbers, packed.numbers);
+}
+
+TEST(PackedColumn, StoredDaysAreTheYearsJsonCanWrite) {
+  EXPECT_EQ(ledger::kFirstStoredDay, day(0, 1, 1));
+  EXPECT_EQ(ledger::kLastStoredDay, day(9999, 12, 31));
+  EXPECT_EQ(core::format_date(ledger::kFirstStoredDay), "0000-01-01");
+  EXPECT_EQ(core::format_date(ledger::kLastStoredDay), "9999-12-31");
+}
+
+TEST(PackedColumn, WritesAnyDayNumberInTwosComplement) {
+  const std::vector<core::Day> dates{
+      std::numeric_limits<core::Day>::min(), -719528, -1, 0, 1, 2932896,
+      std::numeric_limits<core::Day>::max()};
+  const auto packed =
+      ledger::encode_packed(column("d", dates, std::vector<double>(dates.size(), 1.5)));
+  EXPECT_EQ(hex(packed.days),
+            "00000080"    // INT32_MIN
+            "5805f5ff"    // -719528, 0000-01-01
+            "ffffffff"    // -1
+            "00000000"    // 0, 1970-01-01
+            "01000000"    // 1
+            "a0c02c00"    // 2932896, 9999-12-31
+            "ffffff7f");  // INT32_MAX
+}
+
+TEST(PackedColumn, RoundTripsAnEmptyColumn) {
+  const auto packed = ledger::encode_packed(column("e", {}, {}));
+  EXPECT_TRUE(packed.days.empty());
+  EXPECT_TRUE(packed.numbers.empty());
+  const auto c = ledger::decode_packed("e", "", "");
+  EXPECT_EQ(c.name, "e");
+  EXPECT_TRUE(c.dates.empty());
+  EXPECT_TRUE(c.values.empty());
+}
+
+// Expects unpacking to fail with a ledger error naming the column and the problem.
+void expect_corrupted(const std::string& days, const std::string& numbers,
+                      const std::string& problem) {
+  try {
+    const auto c = ledger::decode_packed("col-y", days, numbers);
+    ADD_FAILURE() << "accepted " << days.size() << " bytes of days and " << numbers.size()
+                  << " of numbers (" << c.dates.size() << " dates)";
+  } catch (const Error& e) {
+    EXPECT_EQ(e.code(), ExitCode::ledger);
+    const std::string what = e.what();
+    EXPECT_NE(what.find("the packed copy of column 'col-y' is corrupted: " + problem),
+              std::string::npos)
+        << what;
+    EXPECT_NE(what.find("alphatrail verify"), std::string::npos) << what;
+  }
+}
+
+TEST(PackedColumn, RejectsSizesThatDisagree) {
+  const auto packed = ledger::encode_packed(
+      column("col-y", {day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}, {0.1, kNaN, 0.2}));
+  ASSERT_EQ(packed.days.size(), 12u);
+  expect_corrupted(packed.days.substr(0, 11), packed.numbers,
+                   "11 bytes of days and 24 bytes of numbers");
+  expect_corrupted(packed.days.substr(0, 8), packed.numbers,
+                   "8 bytes of days and 24 bytes of numbers");
+  expect_corrupted(packed.days, packed.numbers.substr(0, 23),
+                   "12 bytes of days and 23 bytes of numbers");
+  expect_corrupted(packed.days, packed.numbers + packed.numbers.substr(0, 8),
+                   "12 bytes of days and 32 bytes of numbers");
+  expect_corrupted("", packed.numbers, "0 bytes of days and 24 bytes of numbers");
+}
+
+TEST(PackedColumn, RejectsDatesOutOfOrderOrRepeated) {
+  const auto descending = ledger::encode_packed(
+      column("col-y", {day(2021, 1, 31), day(2021, 3, 31), day(2021, 2, 28)}, {0.1, 0.2, 0.3}));
+  expect_corrupted(descending.days, descending.numbers,
+                   "its dates are not ascending at observation 3");
+  const auto repeated =
+      ledger::encode_packed(column("col-y", {day(2021, 1, 31), day(2021, 1, 31)}, {0.1, 0.2}));
+  expect_corrupted(repeated.days, repeated.numbers, "its dates are not ascending at observation 2");
+}
+
+TEST(PackedColumn, RejectsDaysBeyondTheStoredYears) {
+  // Date arithmetic on such days would overflow; the JSON cannot hold them either.
+  const auto early = ledger::encode_packed(
+      column("col-y", {ledger::kFirstStoredDay - 1, day(2021, 1, 31)}, {0.1, 0.2}));
+  expect_corrupted(early.days, early.numbers,
+                   "observation 1 has day number -719529, outside 0000-01-01 .. 9999-12-31");
+  const auto late = ledger::encode_packed(
+      column("col-y", {day(2021, 1, 31), day(2021, 2, 28), std::numeric_limits<core::Day>::max()},
+             {0.1, 0.2, 0.3}));
+  expect_corrupted(late.days, late.numbers,
+                   "observation 3 has day number 2147483647, outside 0000-01-01 .. 9999-12-31");
+  // The edges themselves are stored days.
+  const auto edges = ledger::encode_packed(
+      column("col-y", {ledger::kFirstStoredDay, ledger::kLastStoredDay}, {0.1, 0.2}));
+  EXPECT_EQ(ledger::decode_packed("col-y", edges.days, edges.numbers).dates,
+            (std::vector<core::Day>{ledger::kFirstStoredDay, ledger::kLastStoredDay}));
+}
+
 // --- content hash ---------------------------------------------------------------------------
 
 struct Content {

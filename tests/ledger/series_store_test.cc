@@ -9,6 +9,7 @@
 #include <cmath>
 #include <cstdint>
 #include <cstring>
+#include <filesystem>
 #include <limits>
 #include <regex>
 #include <sstream>
@@ -25,6 +26,7 @@ namespace core = alphatrail::core;
 using alphatrail::Error;
 using alphatrail::ExitCode;
 using alphatrail::testing::ScratchDir;
+using alphatrail::testing::source_path;
 
 const double kNaN = std::numeric_limits<double>::quiet_NaN();
 
@@ -361,6 +363,234 @@ TEST_F(SeriesStore, LoadsManyVersionsAsLoadVersionDoes) {
     EXPECT_EQ(e.code(), ExitCode::not_found);
     EXPECT_NE(std::string(e.what()).find("no series named 'missing'"), std::string::npos);
   }
+}
+
+}  // namespace
+
+namespace {
+
+// --- the packed copy ------------------------------------------------------------------------
+
+// Expects two loads to hold the same columns, every value bit for bit (NaN bits included).
+void expect_same_columns(const ledger::LoadedVersion& a, const ledger::LoadedVersion& b) {
+  ASSERT_EQ(a.columns.size(), b.columns.size());
+  for (std::size_t c = 0; c < a.columns.size(); ++c) {
+    SCOPED_TRACE(a.columns[c].name);
+    EXPECT_EQ(a.columns[c].name, b.columns[c].name);
+    EXPECT_EQ(a.columns[c].dates, b.columns[c].dates);
+    ASSERT_EQ(a.columns[c].values.size(), b.columns[c].values.size());
+    for (std::size_t t = 0; t < a.columns[c].values.size(); ++t)
+      EXPECT_EQ(bits(a.columns[c].values[t]), bits(b.columns[c].values[t])) << t;
+  }
+}
+
+// Values whose decimal and binary forms are easy to get wrong.
+const std::vector<double> kAwkward{0.1,
+                                   -0.0,
+                                   5e-324,
+                                   -5e-324,
+                                   2.2250738585072009e-308,
+                                   kNaN,
+                                   1e21,
+                                   0.1 + 0.2,
+                                   std::numeric_limits<double>::max(),
+                                   -1e-300,
+                                   1.0 / 3};
+
+ledger::NewVersion awkward_set() {
+  ledger::NewVersion set;
+  set.name = "awkward";
+  set.meta = {"factor", "decimal return", std::nullopt};
+  set.input_unit = "decimal";
+  const auto d = month_ends(static_cast<int>(kAwkward.size()));
+  set.columns.push_back({"first", d, kAwkward});
+  set.columns.push_back({"second", {d[0], d[3], d[5]}, {kNaN, -0.0, 0.25}});
+  return set;
+}
+
+// Runs SQL on the test's own connection with the guarding triggers of packed_columns dropped.
+void without_packed_triggers(ledger::Ledger& l, const std::string& sql) {
+  l.db().exec("DROP TRIGGER packed_columns_no_update");
+  l.db().exec("DROP TRIGGER packed_columns_no_delete");
+  ASSERT_GE(l.db().exec(sql), 1) << sql;
+}
+
+TEST_F(SeriesStore, IngestWritesAPackedCopyOfEveryColumn) {
+  const auto set = awkward_set();
+  store({set});
+  store({returns("fund", {0.01, kNaN})});
+  EXPECT_EQ(rows("packed_columns"), 3);
+  SQLite::Statement q(ledger_.db(),
+                      "SELECT c.column_name, p.days, p.numbers FROM version_columns c JOIN "
+                      "packed_columns p ON p.column_id = c.column_id ORDER BY c.column_id");
+  std::vector<ledger::ColumnData> expected = set.columns;
+  expected.push_back(returns("fund", {0.01, kNaN}).columns[0]);
+  for (const auto& c : expected) {
+    ASSERT_TRUE(q.executeStep());
+    EXPECT_EQ(q.getColumn(0).getString(), c.name);
+    const auto packed = ledger::encode_packed(c);
+    ASSERT_EQ(q.getColumn(1).getBytes(), static_cast<int>(4 * c.dates.size()));
+    ASSERT_EQ(q.getColumn(2).getBytes(), static_cast<int>(8 * c.dates.size()));
+    EXPECT_TRUE(q.getColumn(1).isBlob());
+    EXPECT_EQ(std::memcmp(q.getColumn(1).getBlob(), packed.days.data(), packed.days.size()), 0);
+    EXPECT_EQ(std::memcmp(q.getColumn(2).getBlob(), packed.numbers.data(), packed.numbers.size()),
+              0);
+  }
+  EXPECT_FALSE(q.executeStep());
+  // Unchanged content writes no packed row either.
+  store({returns("fund", {0.01, kNaN})});
+  EXPECT_EQ(rows("packed_columns"), 3);
+}
+
+TEST_F(SeriesStore, LoadReadsThePackedCopyWhenThereIsOne) {
+  // Loading must not parse the JSON when a packed copy exists: an edited packed value shows.
+  store({returns("fund", {0.01, 0.02, 0.03})});
+  without_packed_triggers(ledger_,
+                          "UPDATE packed_columns SET numbers = x'"
+                          "7b14ae47e17a843f"
+                          "7b14ae47e17a943f"
+                          "0000000000000840'");  // 0.01, 0.02, 3
+  const auto loaded = ledger::load_version(ledger_, "fund");
+  ASSERT_EQ(loaded.columns.size(), 1u);
+  EXPECT_EQ(loaded.columns[0].values, (std::vector<double>{0.01, 0.02, 3.0}));
+}
+
+TEST_F(SeriesStore, LoadsTheSameWithAndWithoutThePackedCopy) {
+  std::vector<ledger::NewVersion> batch{awkward_set()};
+  for (int i = 0; i < 40; ++i)
+    batch.push_back(returns(fmt::format("s{}", i), {i * 1e-4, kNaN, -0.0, 5e-324 * i}));
+  store(batch);
+  std::vector<ledger::VersionRequest> wanted{{"awkward", std::nullopt}};
+  for (int i = 0; i < 40; ++i) wanted.push_back({fmt::format("s{}", i), std::nullopt});
+  const auto packed = ledger::load_versions(ledger_, wanted);
+
+  // The packed copies read back what was stored, bit for bit.
+  ASSERT_EQ(packed[0].columns.size(), 2u);
+  EXPECT_EQ(packed[0].columns[0].dates, month_ends(static_cast<int>(kAwkward.size())));
+  for (std::size_t t = 0; t < kAwkward.size(); ++t)
+    EXPECT_EQ(bits(packed[0].columns[0].values[t]),
+              bits(std::isnan(kAwkward[t]) ? kNaN : kAwkward[t]))
+        << t;
+  EXPECT_EQ(bits(packed[0].columns[1].values[1]), 0x8000000000000000u);
+
+  // As a ledger from before schema version 5 has them: half of the columns without a packed
+  // copy, then none. Loading falls back to the JSON and gives the same data.
+  without_packed_triggers(ledger_, "DELETE FROM packed_columns WHERE column_id % 2 = 0");
+  const auto mixed = ledger::load_versions(ledger_, wanted);
+  ASSERT_EQ(rows("packed_columns"), 21);
+  ledger_.db().exec("DELETE FROM packed_columns");
+  ASSERT_EQ(rows("packed_columns"), 0);
+  const auto from_json = ledger::load_versions(ledger_, wanted);
+  ASSERT_EQ(mixed.size(), packed.size());
+  ASSERT_EQ(from_json.size(), packed.size());
+  for (std::size_t r = 0; r < packed.size(); ++r) {
+    SCOPED_TRACE(wanted[r].name);
+    EXPECT_EQ(from_json[r].info.name, wanted[r].name);
+    expect_same_columns(packed[r], from_json[r]);
+    expect_same_columns(mixed[r], from_json[r]);
+  }
+}
+
+TEST_F(SeriesStore, CorruptedPackedCopyIsALedgerErrorNamingTheColumn) {
+  store({returns("fund", {0.01, 0.02, 0.03})});
+  const auto expect_corrupted = [&](const std::string& problem) {
+    try {
+      const auto loaded = ledger::load_version(ledger_, "fund");
+      ADD_FAILURE() << "loaded a corrupted packed copy: " << loaded.columns[0].values.size()
+                    << " values";
+    } catch (const Error& e) {
+      EXPECT_EQ(e.code(), ExitCode::ledger);
+      EXPECT_NE(
+          std::string(e.what()).find("the packed copy of column 'fund' is corrupted: " + problem),
+          std::string::npos)
+          << e.what();
+    }
+  };
+  // The table's CHECK keeps the sizes consistent; only a file edited around it breaks them.
+  ledger_.db().exec("PRAGMA ignore_check_constraints = ON");
+  without_packed_triggers(ledger_, "UPDATE packed_columns SET days = substr(days, 1, 8)");
+  expect_corrupted("8 bytes of days and 24 bytes of numbers");
+  ledger_.db().exec("UPDATE packed_columns SET days = x'e2480000e2480000e2480000'");
+  expect_corrupted("its dates are not ascending at observation 2");
+}
+
+TEST_F(SeriesStore, PackedCopiesAreImmutableAndSizeChecked) {
+  store({returns("fund", {0.01, 0.02})});
+  const auto error = [&](const std::string& sql) {
+    try {
+      ledger_.db().exec(sql);
+    } catch (const SQLite::Exception& e) {
+      return std::string(e.what());
+    }
+    return std::string("(no error)");
+  };
+  EXPECT_EQ(error("UPDATE packed_columns SET numbers = numbers"),
+            "observations are immutable: ingest a new version instead");
+  EXPECT_EQ(error("DELETE FROM packed_columns"),
+            "observations are never deleted: the ledger keeps every revision");
+  const std::int64_t column_id =
+      ledger_.db().execAndGet("SELECT column_id FROM version_columns").getInt64();
+  ledger_.db().exec("DROP TRIGGER packed_columns_no_delete");
+  ledger_.db().exec("DELETE FROM packed_columns");
+  EXPECT_NE(
+      error(fmt::format("INSERT INTO packed_columns VALUES ({}, x'00000000', x'00')", column_id))
+          .find("CHECK constraint failed"),
+      std::string::npos);
+  EXPECT_NE(error("INSERT INTO packed_columns VALUES (999, x'00000000', x'0000000000000000')")
+                .find("FOREIGN KEY constraint failed"),
+            std::string::npos);
+  EXPECT_EQ(rows("packed_columns"), 0);
+}
+
+// Ledgers from before schema version 5 are upgraded with no packed copies: their columns load
+// from their JSON, and what is ingested afterwards gets packed copies.
+TEST(PackedUpgrade, VersionOneLedgerLoadsItsColumnsFromTheirJson) {
+  ScratchDir dir;
+  const auto path = dir / "v1.db";
+  std::filesystem::copy_file(source_path("fixtures/ledgers/v1.db"), path);
+  std::ostringstream notices;
+  auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
+  ASSERT_EQ(l.schema_version(), 5);
+  EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 0);
+  const auto old = ledger::load_version(l, "fund-one");
+  ASSERT_EQ(old.columns.size(), 1u);
+  EXPECT_EQ(old.columns[0].dates,
+            (std::vector<core::Day>{day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}));
+  EXPECT_EQ(old.columns[0].values, (std::vector<double>{0.01, -0.005, 0.012}));
+
+  l.write_transaction([&] {
+    ledger::store_versions(l, {returns("fund-one", {0.01, -0.005, 0.012, 0.002})},
+                           {"more.csv", std::string(64, 'b'), ""});
+  });
+  EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 1);
+  const auto both = ledger::load_versions(l, {{"fund-one", 1}, {"fund-one", 2}});
+  EXPECT_EQ(both[0].columns[0].values, (std::vector<double>{0.01, -0.005, 0.012}));
+  EXPECT_EQ(both[1].columns[0].values, (std::vector<double>{0.01, -0.005, 0.012, 0.002}));
+}
+
+TEST(PackedUpgrade, VersionFourLedgerKeepsItsColumnsReadable) {
+  // A version 4 ledger made from a current one: the packed table taken away as if it had
+  // never existed. Opening upgrades it to 5 with an empty packed table.
+  ScratchDir dir;
+  const auto path = dir / "v4.db";
+  std::ostringstream notices;
+  ledger::LoadedVersion before;
+  {
+    auto l = ledger::Ledger::open(path, ledger::OpenMode::create, notices);
+    l.write_transaction([&] {
+      ledger::store_versions(l, {awkward_set()}, {"set.csv", std::string(64, 'c'), ""});
+    });
+    before = ledger::load_version(l, "awkward");
+    l.db().exec("DROP TABLE packed_columns");
+    l.db().exec("PRAGMA user_version = 4");
+  }
+  auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
+  EXPECT_NE(notices.str().find("from schema version 4 to 5"), std::string::npos) << notices.str();
+  EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 0);
+  const auto after = ledger::load_version(l, "awkward");
+  expect_same_columns(before, after);
+  EXPECT_EQ(bits(after.columns[1].values[1]), 0x8000000000000000u);
+  EXPECT_TRUE(std::isnan(after.columns[0].values[5]));
 }
 
 }  // namespace
