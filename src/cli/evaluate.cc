@@ -12,6 +12,7 @@
 
 #include "core/error.h"
 #include "core/evaluation.h"
+#include "core/parallel.h"
 #include "ledger/run_store.h"
 #include "ledger/series_store.h"
 #include "report/reports.h"
@@ -381,16 +382,40 @@ std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<Pendin
                                       bool progress) {
   std::vector<std::int64_t> run_ids;
   ledger.write_transaction([&] {
-    for (auto& p : pending) {
-      ledger::NewRun& run = p.run;
-      const core::ReadingContext context{
-          run.study, run.study.empty() ? 0 : ledger::count_study_runs(ledger, run.study) + 1,
-          ledger::count_strategy_runs(ledger, run.strategy) + 1};
-      run.reading = core::compose_reading(p.result, p.settings, context);
-      run.result = &p.result;
-      run_ids.push_back(ledger::store_run(ledger, run));
-      if (progress && pending.size() > 1) draw_progress(run_ids.size(), pending.size());
+    // Each run is one more trial of its study and of its strategy: count what the ledger
+    // holds once, then the runs of this batch in order.
+    std::vector<core::ReadingContext> contexts;
+    contexts.reserve(pending.size());
+    std::map<std::string, int> study_runs;
+    std::map<std::string, int> strategy_runs;
+    for (const auto& p : pending) {
+      const auto counted = [&](std::map<std::string, int>& counts, const std::string& name,
+                               int (*count)(ledger::Ledger&, const std::string&)) {
+        auto [it, fresh] = counts.try_emplace(name, 0);
+        if (fresh) it->second = count(ledger, name);
+        return ++it->second;
+      };
+      const int study =
+          p.run.study.empty() ? 0 : counted(study_runs, p.run.study, ledger::count_study_runs);
+      contexts.push_back({p.run.study, study,
+                          counted(strategy_runs, p.run.strategy, ledger::count_strategy_runs)});
     }
+    core::parallel_ranges(pending.size(), core::worker_count(pending.size(), 16),
+                          [&](std::size_t first, std::size_t last) {
+                            for (std::size_t i = first; i < last; ++i) {
+                              PendingRun& p = pending[i];
+                              p.run.reading =
+                                  core::compose_reading(p.result, p.settings, contexts[i]);
+                              p.run.result = &p.result;
+                            }
+                          });
+    std::vector<const ledger::NewRun*> runs;
+    runs.reserve(pending.size());
+    for (const auto& p : pending) runs.push_back(&p.run);
+    std::function<void(std::size_t)> on_stored;
+    if (progress && pending.size() > 1)
+      on_stored = [&](std::size_t done) { draw_progress(done, pending.size()); };
+    run_ids = ledger::store_runs(ledger, runs, on_stored);
   });
   return run_ids;
 }

@@ -61,70 +61,69 @@ Resampled resample(const ReturnInput& input, const std::string& role, Frequency 
   return r;
 }
 
-double mean(const std::vector<double>& x) {
-  return x.empty() ? NAN : std::accumulate(x.begin(), x.end(), 0.0) / static_cast<double>(x.size());
-}
-
-// Sample standard deviation (T - 1 in the denominator).
-double stdev(const std::vector<double>& x) {
-  if (x.size() < 2) return NAN;
-  const double m = mean(x);
-  double ss = 0;
-  for (double v : x) ss += (v - m) * (v - m);
-  return std::sqrt(ss / static_cast<double>(x.size() - 1));
-}
-
-double correlation(const std::vector<double>& x, const std::vector<double>& y) {
-  const double mx = mean(x);
-  const double my = mean(y);
-  double sxy = 0;
-  double sxx = 0;
-  double syy = 0;
-  for (std::size_t i = 0; i < x.size(); ++i) {
-    sxy += (x[i] - mx) * (y[i] - my);
-    sxx += (x[i] - mx) * (x[i] - mx);
-    syy += (y[i] - my) * (y[i] - my);
-  }
-  return sxy / std::sqrt(sxx * syy);
-}
-
-// Slopes of y on x with an intercept over the periods where x > 0 (up) and where x < 0
-// (down); NaN below 3 such periods. Two passes (means, then cross products) that weigh each
-// period by 0 or 1 rather than branching on its sign, which the processor cannot predict.
-struct MarketSplit {
-  double up_beta = NAN;
-  double down_beta = NAN;
-  int up_periods = 0;
-  int down_periods = 0;
+// Sample statistics of a strategy's returns s against the benchmark's m over the aligned
+// periods, with y = s - rf and x = m - rf the excess returns and a = s - m the active return.
+// Two fused passes, means first and then centered sums, so each figure is computed the
+// textbook two-pass way without a copy of any series; it runs for every strategy of a batch.
+struct PairStatistics {
+  double mean_y = NAN, sd_y = NAN;  // sample standard deviations (T - 1 in the denominator)
+  double mean_x = NAN, sd_x = NAN;
+  double mean_a = NAN, sd_a = NAN;
+  double correlation = NAN;  // of y and x
+  // Slopes of y on x with an intercept over the periods where x > 0 (up) and where x < 0
+  // (down); NaN below 3 such periods.
+  double up_beta = NAN, down_beta = NAN;
+  int up_periods = 0, down_periods = 0;
 };
 
-MarketSplit market_split(const std::vector<double>& y, const std::vector<double>& x) {
-  double n_up = 0, sx_up = 0, sy_up = 0;
-  double n_down = 0, sx_down = 0, sy_down = 0;
-  for (std::size_t i = 0; i < x.size(); ++i) {
-    const auto up = static_cast<double>(x[i] > 0);
-    const auto down = static_cast<double>(x[i] < 0);
+PairStatistics pair_statistics(const std::vector<double>& s, const std::vector<double>& m,
+                               const std::vector<double>& rf) {
+  PairStatistics out;
+  const std::size_t T = s.size();
+  if (T < 2) return out;
+  // Each period is weighed by 0 or 1 for the up and down slopes rather than branched on,
+  // since the sign of the market's excess return is what a processor cannot predict.
+  double sy = 0, sx = 0, sa = 0;
+  double n_up = 0, sx_up = 0, sy_up = 0, n_down = 0, sx_down = 0, sy_down = 0;
+  for (std::size_t t = 0; t < T; ++t) {
+    const double y = s[t] - rf[t], x = m[t] - rf[t];
+    sy += y;
+    sx += x;
+    sa += s[t] - m[t];
+    const auto up = static_cast<double>(x > 0), down = static_cast<double>(x < 0);
     n_up += up;
-    sx_up += up * x[i];
-    sy_up += up * y[i];
+    sx_up += up * x;
+    sy_up += up * y;
     n_down += down;
-    sx_down += down * x[i];
-    sy_down += down * y[i];
+    sx_down += down * x;
+    sy_down += down * y;
   }
+  const auto n = static_cast<double>(T);
+  out.mean_y = sy / n;
+  out.mean_x = sx / n;
+  out.mean_a = sa / n;
   const double mx_up = sx_up / n_up, my_up = sy_up / n_up;
   const double mx_down = sx_down / n_down, my_down = sy_down / n_down;
+  double syy = 0, sxx = 0, sxy = 0, saa = 0;
   double sxy_up = 0, sxx_up = 0, sxy_down = 0, sxx_down = 0;
-  for (std::size_t i = 0; i < x.size(); ++i) {
-    const auto up = static_cast<double>(x[i] > 0);
-    const auto down = static_cast<double>(x[i] < 0);
-    const double dx_up = up * (x[i] - mx_up);
-    const double dx_down = down * (x[i] - mx_down);
-    sxy_up += dx_up * (y[i] - my_up);
-    sxx_up += dx_up * (x[i] - mx_up);
-    sxy_down += dx_down * (y[i] - my_down);
-    sxx_down += dx_down * (x[i] - mx_down);
+  for (std::size_t t = 0; t < T; ++t) {
+    const double y = s[t] - rf[t], x = m[t] - rf[t];
+    const double dy = y - out.mean_y, dx = x - out.mean_x, da = (s[t] - m[t]) - out.mean_a;
+    syy += dy * dy;
+    sxx += dx * dx;
+    sxy += dx * dy;
+    saa += da * da;
+    const auto up = static_cast<double>(x > 0), down = static_cast<double>(x < 0);
+    const double dx_up = up * (x - mx_up), dx_down = down * (x - mx_down);
+    sxy_up += dx_up * (y - my_up);
+    sxx_up += dx_up * (x - mx_up);
+    sxy_down += dx_down * (y - my_down);
+    sxx_down += dx_down * (x - mx_down);
   }
-  MarketSplit out;
+  out.sd_y = std::sqrt(syy / (n - 1));
+  out.sd_x = std::sqrt(sxx / (n - 1));
+  out.sd_a = std::sqrt(saa / (n - 1));
+  out.correlation = sxy / std::sqrt(sxx * syy);
   out.up_periods = static_cast<int>(n_up);
   out.down_periods = static_cast<int>(n_down);
   if (n_up >= 3 && sxx_up > 0) out.up_beta = sxy_up / sxx_up;
@@ -300,15 +299,7 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit, bool keep_seri
   const auto& s = a.column("strategy");
   const auto& m = a.column("benchmark");
   const auto& rf = a.column("rate");
-  const std::size_t T = keys.size();
-  std::vector<double> strategy_excess(T);
-  std::vector<double> benchmark_excess(T);
-  std::vector<double> active(T);
-  for (std::size_t t = 0; t < T; ++t) {
-    strategy_excess[t] = s[t] - rf[t];
-    benchmark_excess[t] = m[t] - rf[t];
-    active[t] = s[t] - m[t];
-  }
+  const PairStatistics st = pair_statistics(s, m, rf);
 
   auto& d = r.derived;
   d.periods_per_year = P;
@@ -317,24 +308,27 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit, bool keep_seri
   const double root_p = std::sqrt(static_cast<double>(P));
   d.alpha_annualized = annualize(alpha, settings_.annualize, P);
   d.appraisal_ratio = alpha / fit.residual_std * root_p;
-  d.mean_excess_strategy = mean(strategy_excess);
-  d.mean_excess_benchmark = mean(benchmark_excess);
-  d.sharpe_strategy = d.mean_excess_strategy / stdev(strategy_excess) * root_p;
-  d.sharpe_benchmark = d.mean_excess_benchmark / stdev(benchmark_excess) * root_p;
-  d.treynor_ratio = d.mean_excess_strategy * P / beta;
-  const double te = stdev(active);
-  d.tracking_error = te * root_p;
-  d.information_ratio = mean(active) / te * root_p;
-  d.correlation = correlation(strategy_excess, benchmark_excess);
-  const MarketSplit split = market_split(strategy_excess, benchmark_excess);
-  d.up_market_beta = split.up_beta;
-  d.down_market_beta = split.down_beta;
-  d.up_periods = split.up_periods;
-  d.down_periods = split.down_periods;
+  d.mean_excess_strategy = st.mean_y;
+  d.mean_excess_benchmark = st.mean_x;
+  d.sharpe_strategy = st.mean_y / st.sd_y * root_p;
+  d.sharpe_benchmark = st.mean_x / st.sd_x * root_p;
+  d.treynor_ratio = st.mean_y * P / beta;
+  d.tracking_error = st.sd_a * root_p;
+  d.information_ratio = st.mean_a / st.sd_a * root_p;
+  d.correlation = st.correlation;
+  d.up_market_beta = st.up_beta;
+  d.down_market_beta = st.down_beta;
+  d.up_periods = st.up_periods;
+  d.down_periods = st.down_periods;
   if (keep_series) {
+    const std::size_t T = keys.size();
     r.keys = keys;
-    r.strategy_excess = std::move(strategy_excess);
-    r.benchmark_excess = std::move(benchmark_excess);
+    r.strategy_excess.resize(T);
+    r.benchmark_excess.resize(T);
+    for (std::size_t t = 0; t < T; ++t) {
+      r.strategy_excess[t] = s[t] - rf[t];
+      r.benchmark_excess[t] = m[t] - rf[t];
+    }
     r.risk_free = rf;
   } else {
     fit.residuals = {};
@@ -412,9 +406,8 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
       continue;
     }
     const SharedKeys& keys = prepared[i - begin].aligned.keys;
-    auto group = std::find_if(groups.begin(), groups.end(), [&](const auto& g) {
-      return g.first == keys || *g.first == *keys;
-    });
+    auto group = std::find_if(groups.begin(), groups.end(),
+                              [&](const auto& g) { return g.first == keys || *g.first == *keys; });
     if (group == groups.end()) group = groups.insert(groups.end(), {keys, {}});
     group->second.push_back(i);
   }

@@ -1,11 +1,13 @@
 #include "core/regression.h"
 
 #include <algorithm>
+#include <array>
 #include <boost/math/distributions/fisher_f.hpp>
 #include <cmath>
 #include <cstdio>
 #include <exception>
 #include <limits>
+#include <type_traits>
 
 #include "core/error.h"
 #include "core/parallel.h"
@@ -26,6 +28,11 @@ constexpr double condition_limit = 1e10;
 // Refinement of the least-squares solution: at most this many passes after the first solve;
 // stop once a correction is this small or stops shrinking; refuse when the last correction
 // is larger than trusted_correction of the solution (fewer than about 9 digits settled).
+// A design whose column-scaled condition number is at most refine_above is solved by the QR
+// alone: Householder QR is backward stable, so its solution is off by about
+// (cond + cond^2 |r| / (|X| |beta|)) 1e-16 relative, 12 digits or more at cond 100 (Golub &
+// Van Loan, Matrix Computations, 4th ed., section 5.3.7). Above it the solution is refined.
+constexpr double refine_above = 100;
 constexpr int max_refinements = 6;
 constexpr double settled_correction = 1e-12;
 constexpr double trusted_correction = 1e-9;
@@ -198,10 +205,8 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
 // Scratch vectors and matrices of one fit, reused from column to column so that a batch
 // does not allocate (and fault in fresh pages for) a T x k temporary per column.
 struct Workspace {
-  Eigen::VectorXd f;       // solve_refined: y - r - X beta
-  Eigen::VectorXd factor;  // robust_meat: e_t times the leverage factor
-  Eigen::MatrixXd u;       // robust_meat: scores, T x k
-  Eigen::MatrixXd v;       // robust_meat: Bartlett-weighted lagged scores, T x k
+  Eigen::VectorXd f;           // solve_refined: y - r - X beta
+  std::vector<double> scores;  // robust_meat: T x k, row-major
 };
 
 // Solves min ||y - X beta|| with the QR and refines the solution on the augmented system
@@ -209,8 +214,8 @@ struct Workspace {
 // the unscaled data. The first pass is the plain QR solution; the refinement restores the
 // digits that the plain solve loses on ill-conditioned or large-residual problems (NIST
 // Wampler5) and shows whether the answer can be trusted: when the corrections do not settle,
-// the design is refused as too ill-conditioned. A well-conditioned design takes one
-// refinement pass.
+// the design is refused as too ill-conditioned. A well-conditioned design (condition number
+// up to refine_above) needs no refinement; a moderately conditioned one takes one pass.
 void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& beta,
                    Eigen::VectorXd& r, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
@@ -249,7 +254,10 @@ void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& b
     const double size = (perm.transpose() * beta.cwiseProduct(d.scale)).norm();
     const double previous = correction;
     correction = size > 0 ? w.norm() / size : 0.0;
-    if (pass == 0) continue;
+    if (pass == 0) {
+      if (d.condition_number <= refine_above) return;
+      continue;
+    }
     if (correction <= settled_correction || correction > 0.5 * previous) break;
   }
   if (!(correction <= trusted_correction)) {
@@ -262,36 +270,93 @@ void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& b
 }
 
 // Returns the robust "meat" Q' S Q in the orthogonal basis from the scores u_t = q_t e_t c_t
-// (c_t = 1, or the HC2/HC3 leverage factor): sum u_t u_t', plus for Newey-West the Bartlett-
-// weighted autocovariances sum_l w_l (G_l + G_l'), G_l = sum_{t>l} u_t u_{t-l}'.
+// (c_t = 1, or the HC2/HC3 leverage factor): sum u_t u_t', plus for Newey-West with L lags the
+// Bartlett-weighted autocovariances sum_l w_l (G_l + G_l'), G_l = sum_{t>l} u_t u_{t-l}',
+// w_l = 1 - l / (L + 1).
+//
+// It is computed as (1 / (L + 1)) sum_m b_m b_m', where b_m sums the scores of the window of
+// L + 1 periods m .. m + L, for every window that holds a period of the sample (m = -L ..
+// T - 1, cut at the ends): periods t and s share L + 1 - |t - s| windows, so each pair enters
+// with its Bartlett weight (the Bartlett kernel is the self-convolution of a uniform window;
+// common practice). That is 2 k + k (k + 1) / 2 operations a period instead of (L + 2) k + k^2,
+// and a sum of outer products, positive semi-definite as the estimator must be. The window
+// sum is carried from one window to the next (the period entering added, the one leaving
+// subtracted) and summed afresh every 64 windows, so rounding cannot build up.
+// The window loop of robust_meat: adds the upper triangle of sum_m b_m b_m' to sum (k x k,
+// row-major). u holds the n x k scores row-major after lags + 1 rows of zeros and before lags
+// more, so every window is lags + 1 rows and its change from one window to the next is the
+// row entering minus the row leaving, with no case for the ends. K is k known at compile
+// time, which keeps the window and the sums in registers, or 0 for any k.
+template <int K>
+void add_window_products(const double* u, int n, int k, int lags, double* sum) {
+  using Window = std::conditional_t<(K > 0), std::array<double, K>, std::vector<double>>;
+  using Outer = std::conditional_t<(K > 0), std::array<double, K * K>, std::vector<double>>;
+  Window window{};
+  Outer outer{};
+  if constexpr (K > 0) {
+    k = K;
+  } else {
+    window.assign(static_cast<std::size_t>(k), 0.0);
+    outer.assign(static_cast<std::size_t>(k) * k, 0.0);
+  }
+  const auto row = [&](int t) { return u + static_cast<std::size_t>(t + lags + 1) * k; };
+  for (int m = -lags; m < n; ++m) {
+    if ((m + lags) % 64 == 0) {  // afresh now and then, so rounding cannot build up
+      for (int j = 0; j < k; ++j) window[j] = 0.0;
+      for (int t = m; t <= m + lags; ++t)
+        for (int j = 0; j < k; ++j) window[j] += row(t)[j];
+    } else {
+      const double* entering = row(m + lags);
+      const double* leaving = row(m - 1);
+      for (int j = 0; j < k; ++j) window[j] += entering[j] - leaving[j];
+    }
+    // The whole square rather than a triangle: a row is one multiple of the window, which
+    // vectorizes without shuffling.
+    for (int i = 0; i < k; ++i)
+      for (int j = 0; j < k; ++j) outer[i * k + j] += window[i] * window[j];
+  }
+  for (int i = 0; i < k * k; ++i) sum[i] += outer[i];
+}
+
 Eigen::MatrixXd robust_meat(const Design& d, const Eigen::VectorXd& e, ErrorKind kind, int lags,
                             Workspace& ws) {
-  Eigen::VectorXd& factor = ws.factor;
-  factor = e;
-  if (kind == ErrorKind::hc2 || kind == ErrorKind::hc3) {
-    for (int t = 0; t < d.n; ++t) {
-      const double room = 1 - d.leverage(t);
-      if (!(room > 1e-12)) {
-        estimation_error("observation " + std::to_string(t + 1) +
-                         " has leverage 1, so HC2 and HC3 errors are undefined; use hc1 or "
-                         "newey-west errors, or drop that observation");
+  const int n = d.n;
+  const int k = d.k;
+  // Row-major, so the k scores of a period are together, between rows of zeros (see
+  // add_window_products).
+  std::vector<double>& u = ws.scores;
+  u.assign(static_cast<std::size_t>(n + 2 * lags + 1) * k, 0.0);
+  for (int j = 0; j < k; ++j) {
+    for (int t = 0; t < n; ++t) {
+      double factor = e(t);
+      if (kind == ErrorKind::hc2 || kind == ErrorKind::hc3) {
+        const double room = 1 - d.leverage(t);
+        if (!(room > 1e-12)) {
+          estimation_error("observation " + std::to_string(t + 1) +
+                           " has leverage 1, so HC2 and HC3 errors are undefined; use hc1 or "
+                           "newey-west errors, or drop that observation");
+        }
+        factor = kind == ErrorKind::hc2 ? e(t) / std::sqrt(room) : e(t) / room;
       }
-      factor(t) = kind == ErrorKind::hc2 ? e(t) / std::sqrt(room) : e(t) / room;
+      u[static_cast<std::size_t>(t + lags + 1) * k + j] = d.q(t, j) * factor;
     }
   }
-  Eigen::MatrixXd& u = ws.u;
-  u = d.q.array().colwise() * factor.array();
-  Eigen::MatrixXd meat = u.transpose() * u;
-  if (lags == 0) return meat;
-  // sum_l w_l G_l = U' V with v_t = sum_l w_l u_{t-l}: one product instead of one per lag.
-  Eigen::MatrixXd& v = ws.v;
-  v.setZero(d.n, d.k);
-  for (int l = 1; l <= lags; ++l) {
-    const double w = 1.0 - static_cast<double>(l) / (lags + 1);
-    v.bottomRows(d.n - l) += w * u.topRows(d.n - l);
+  std::vector<double> sum(static_cast<std::size_t>(k) * k, 0.0);
+  switch (k) {
+    case 1: add_window_products<1>(u.data(), n, k, lags, sum.data()); break;
+    case 2: add_window_products<2>(u.data(), n, k, lags, sum.data()); break;
+    case 3: add_window_products<3>(u.data(), n, k, lags, sum.data()); break;
+    case 4: add_window_products<4>(u.data(), n, k, lags, sum.data()); break;
+    case 5: add_window_products<5>(u.data(), n, k, lags, sum.data()); break;
+    case 6: add_window_products<6>(u.data(), n, k, lags, sum.data()); break;
+    case 7: add_window_products<7>(u.data(), n, k, lags, sum.data()); break;
+    case 8: add_window_products<8>(u.data(), n, k, lags, sum.data()); break;
+    default: add_window_products<0>(u.data(), n, k, lags, sum.data()); break;
   }
-  const Eigen::MatrixXd g = u.transpose() * v;
-  meat += g + g.transpose();
+  Eigen::MatrixXd meat(k, k);
+  for (int i = 0; i < k; ++i)
+    for (int j = i; j < k; ++j)
+      meat(i, j) = meat(j, i) = sum[static_cast<std::size_t>(i) * k + j] / (lags + 1);
   return meat;
 }
 
@@ -307,8 +372,10 @@ int resolve_lags(const CovarianceOptions& opts, int n) {
 }
 
 // Fits one response on a factorized design; the single code path of fit_ols and fit_ols_many.
+// `crit` is the Student t quantile at 0.5 + confidence / 2 with T - k degrees of freedom, the
+// same for every column of a design.
 OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const CovarianceOptions& opts,
-                     double confidence, const std::string& what, Workspace& ws) {
+                     double confidence, double crit, const std::string& what, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
   if (y.size() != d.n) {
     throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
@@ -386,7 +453,6 @@ OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const Covariance
     }
   }
 
-  const double crit = student_t_quantile(0.5 + confidence / 2, dfd);
   res.coefficients.resize(static_cast<std::size_t>(d.k));
   for (int j = 0; j < d.k; ++j) {
     Coefficient& c = res.coefficients[static_cast<std::size_t>(j)];
@@ -399,6 +465,10 @@ OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const Covariance
     c.ci_high = c.estimate + crit * c.std_error;
   }
   return res;
+}
+
+double critical_value(const Design& d, double confidence) {
+  return student_t_quantile(0.5 + confidence / 2, d.n - d.k);
 }
 
 void check_confidence(double confidence) {
@@ -446,7 +516,7 @@ OlsResult fit_ols(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
   }
   const Design d = factorize(X, names, has_intercept);
   Workspace ws;
-  return fit_column(d, y, opts, confidence, "the response", ws);
+  return fit_column(d, y, opts, confidence, critical_value(d, confidence), "the response", ws);
 }
 
 std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::MatrixXd& Y,
@@ -459,6 +529,7 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
                                        " design rows; pass one row per period");
   }
   const Design d = factorize(X, names, has_intercept);
+  const double crit = critical_value(d, confidence);
   const Eigen::Index m = Y.cols();
   std::vector<OlsResult> results(static_cast<std::size_t>(m));
   std::vector<std::exception_ptr> failures(static_cast<std::size_t>(m));
@@ -469,8 +540,8 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
     for (Eigen::Index j = begin; j < end; ++j) {
       try {
         y = Y.col(j);
-        results[static_cast<std::size_t>(j)] =
-            fit_column(d, y, opts, confidence, "response column " + std::to_string(j + 1), ws);
+        results[static_cast<std::size_t>(j)] = fit_column(
+            d, y, opts, confidence, crit, "response column " + std::to_string(j + 1), ws);
       } catch (...) {
         failures[static_cast<std::size_t>(j)] = std::current_exception();
       }

@@ -124,6 +124,16 @@ Resampled compound_returns(const DatedSeries& returns, Frequency target, Frequen
   PeriodSeries& s = out.series;
   s.keys.reserve(dates.size());
   s.values.reserve(dates.size());
+  if (target == Frequency::daily) {
+    // Daily returns evaluated daily: each date is its own period, nothing to compound (the
+    // loop below would give 0 + r + 0 r, which is r but for the sign of a zero), and validate
+    // has checked the dates ascend.
+    s.keys.assign(dates.begin(), dates.end());
+    for (const double r : returns.values) s.values.push_back(std::isnan(r) ? NAN : r + 0.0);
+    for (std::size_t i = 0; i < s.keys.size(); ++i)
+      if (std::isnan(s.values[i])) out.report.missing.push_back(s.keys[i]);
+    return out;
+  }
   // Compounded as R <- R + r + R r, i.e. (1 + R)(1 + r) - 1, which keeps a single return exact
   // and loses fewer digits than prod(1 + r) - 1 for small returns.
   double compounded = 0.0;

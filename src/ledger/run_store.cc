@@ -4,8 +4,10 @@
 #include <fmt/format.h>
 
 #include <cmath>
+#include <tuple>
 
 #include "core/error.h"
+#include "core/parallel.h"
 #include "core/sha256.h"
 #include "ledger/series_store.h"
 #include "version.h"
@@ -165,46 +167,42 @@ ordered_json result_json(const core::EvaluationResult& r, const std::vector<std:
           {"rolling", rolling_json(r)}};
 }
 
-std::string canonical_run_record(const RunRow& r) {
-  std::string text = fmt::format(
+namespace {
+
+// The canonical record of a row in two parts, the text before and after the previous run's
+// record hash, so that a batch builds them in parallel and only chains them in order.
+std::pair<std::string, std::string> canonical_record_parts(const RunRow& r) {
+  std::string before = fmt::format(
       "alphatrail run v1\nrun_id: {}\ncreated_at: {}\nengine_version: {}\nstrategy: {}\n"
       "benchmark: {}\nrate: {}\nfactors: {}\nstudy: {}\nnote: {}\nrevises_run_id: {}\n"
       "parameters: {}\ninputs_hash: {}\nsample: {} {} {} {} {}\nerrors: {} {}\n"
-      "headline: {} {} {} {} {} {} {} {}\nresult: {}\nprevious: {}\n",
+      "headline: {} {} {} {} {} {} {} {}\nresult: {}\nprevious: ",
       r.run_id, r.created_at, r.engine_version, r.strategy, r.benchmark, r.rate,
       canonical_optional(r.factors), canonical_optional(r.study), canonical_optional(r.note),
       canonical_optional(r.revises_run_id), r.parameters_json, r.inputs_hash, r.frequency,
       r.first_period, r.last_period, r.observations, r.dropped_periods, r.errors, r.lags,
       canonical_double(r.alpha), canonical_double(r.alpha_std_error), canonical_double(r.alpha_t),
       canonical_double(r.alpha_p), canonical_double(r.alpha_annualized), canonical_double(r.beta),
-      canonical_double(r.beta_t), canonical_double(r.r_squared), r.result_json,
-      r.previous_record_hash);
+      canonical_double(r.beta_t), canonical_double(r.r_squared), r.result_json);
+  std::string after = "\n";
   for (const auto& in : r.inputs)
-    text += fmt::format("input: {} {} {} {}\n", in.role, in.position, in.version_id, in.columns);
+    after += fmt::format("input: {} {} {} {}\n", in.role, in.position, in.version_id, in.columns);
   for (const auto& c : r.coefficients)
-    text += fmt::format("coefficient: {} {} {} {} {} {} {}\n", c.term, canonical_double(c.estimate),
-                        canonical_double(c.std_error), canonical_double(c.t_stat),
-                        canonical_double(c.p_value), canonical_double(c.ci_low),
-                        canonical_double(c.ci_high));
-  return text;
+    after += fmt::format("coefficient: {} {} {} {} {} {} {}\n", c.term,
+                         canonical_double(c.estimate), canonical_double(c.std_error),
+                         canonical_double(c.t_stat), canonical_double(c.p_value),
+                         canonical_double(c.ci_low), canonical_double(c.ci_high));
+  return {std::move(before), std::move(after)};
 }
 
-std::string chain_hash(const std::string& previous_record_hash, const std::string& record) {
-  return core::sha256_hex(previous_record_hash + "\n" + record);
-}
-
-std::int64_t store_run(Ledger& ledger, const NewRun& run) {
+// A run's row with every field but the two hashes; pure, so a batch drafts on all cores.
+RunRow draft_row(const NewRun& run, std::int64_t run_id, const std::string& created_at) {
   const core::EvaluationResult& r = *run.result;
   const auto& alpha = r.fit.coefficients.at(0);
   const auto& beta = r.fit.coefficients.at(1);
-
   RunRow row;
-  {
-    auto next = ledger.statement("SELECT coalesce(max(run_id), 0) + 1 FROM runs");
-    next->executeStep();
-    row.run_id = next->getColumn(0).getInt64();
-  }
-  row.created_at = utc_now();
+  row.run_id = run_id;
+  row.created_at = created_at;
   row.engine_version = kEngineVersion;
   row.strategy = run.strategy;
   row.benchmark = run.benchmark;
@@ -231,16 +229,15 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   row.beta_t = beta.t_stat;
   row.r_squared = r.fit.r_squared;
   row.result_json = result_json(r, run.reading).dump();
-  {
-    auto last = ledger.statement("SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
-    row.previous_record_hash = last->executeStep() ? last->getColumn(0).getString() : kGenesisHash;
-  }
   for (const auto& in : run.inputs)
     row.inputs.push_back(
         {in.role, in.position, in.version_id, fmt::format("{}", fmt::join(in.columns, ","))});
   row.coefficients = r.fit.coefficients;
-  row.record_hash = chain_hash(row.previous_record_hash, canonical_run_record(row));
+  return row;
+}
 
+// Inserts a complete row with its inputs and coefficients.
+void insert_row(Ledger& ledger, const RunRow& row) {
   auto insert = ledger.statement(
       "INSERT INTO runs (run_id, created_at, engine_version, strategy, benchmark, rate, factors, "
       "study, note, revises_run_id, parameters_json, inputs_hash, frequency, first_period, "
@@ -251,17 +248,17 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   int i = 1;
   const auto bind_optional = [&](const std::optional<std::string>& v) {
     if (v)
-      insert->bind(i, *v);
+      insert->bindNoCopy(i, *v);
     else
       insert->bind(i);
     ++i;
   };
   insert->bind(i++, row.run_id);
-  insert->bind(i++, row.created_at);
-  insert->bind(i++, row.engine_version);
-  insert->bind(i++, row.strategy);
-  insert->bind(i++, row.benchmark);
-  insert->bind(i++, row.rate);
+  insert->bindNoCopy(i++, row.created_at);
+  insert->bindNoCopy(i++, row.engine_version);
+  insert->bindNoCopy(i++, row.strategy);
+  insert->bindNoCopy(i++, row.benchmark);
+  insert->bindNoCopy(i++, row.rate);
   bind_optional(row.factors);
   bind_optional(row.study);
   bind_optional(row.note);
@@ -269,21 +266,21 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
     insert->bind(i++, *row.revises_run_id);
   else
     insert->bind(i++);
-  insert->bind(i++, row.parameters_json);
-  insert->bind(i++, row.inputs_hash);
-  insert->bind(i++, row.frequency);
-  insert->bind(i++, row.first_period);
-  insert->bind(i++, row.last_period);
+  insert->bindNoCopy(i++, row.parameters_json);
+  insert->bindNoCopy(i++, row.inputs_hash);
+  insert->bindNoCopy(i++, row.frequency);
+  insert->bindNoCopy(i++, row.first_period);
+  insert->bindNoCopy(i++, row.last_period);
   insert->bind(i++, row.observations);
   insert->bind(i++, row.dropped_periods);
-  insert->bind(i++, row.errors);
+  insert->bindNoCopy(i++, row.errors);
   insert->bind(i++, row.lags);
   for (double v : {row.alpha, row.alpha_std_error, row.alpha_t, row.alpha_p, row.alpha_annualized,
                    row.beta, row.beta_t, row.r_squared})
     bind_double(*insert, i++, v);
-  insert->bind(i++, row.result_json);
-  insert->bind(i++, row.previous_record_hash);
-  insert->bind(i++, row.record_hash);
+  insert->bindNoCopy(i++, row.result_json);
+  insert->bindNoCopy(i++, row.previous_record_hash);
+  insert->bindNoCopy(i++, row.record_hash);
   insert->exec();
 
   auto add_input = ledger.statement(
@@ -292,10 +289,10 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
   for (const auto& in : row.inputs) {
     add_input->reset();
     add_input->bind(1, row.run_id);
-    add_input->bind(2, in.role);
+    add_input->bindNoCopy(2, in.role);
     add_input->bind(3, in.position);
     add_input->bind(4, in.version_id);
-    add_input->bind(5, in.columns);
+    add_input->bindNoCopy(5, in.columns);
     add_input->exec();
   }
   auto add_coefficient = ledger.statement(
@@ -306,13 +303,73 @@ std::int64_t store_run(Ledger& ledger, const NewRun& run) {
     add_coefficient->reset();
     add_coefficient->bind(1, row.run_id);
     add_coefficient->bind(2, static_cast<int>(c + 1));
-    add_coefficient->bind(3, co.term);
+    add_coefficient->bindNoCopy(3, co.term);
     int k = 4;
     for (double v : {co.estimate, co.std_error, co.t_stat, co.p_value, co.ci_low, co.ci_high})
       bind_double(*add_coefficient, k++, v);
     add_coefficient->exec();
   }
-  return row.run_id;
+}
+
+}  // namespace
+
+std::string canonical_run_record(const RunRow& r) {
+  const auto [before, after] = canonical_record_parts(r);
+  return before + r.previous_record_hash + after;
+}
+
+std::string chain_hash(const std::string& previous_record_hash, const std::string& record) {
+  return core::sha256_hex(previous_record_hash + "\n" + record);
+}
+
+std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const NewRun*>& runs,
+                                     const std::function<void(std::size_t)>& on_stored) {
+  std::int64_t last_id = 0;
+  std::string previous = kGenesisHash;
+  {
+    auto head =
+        ledger.statement("SELECT run_id, record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
+    if (head->executeStep()) {
+      last_id = head->getColumn(0).getInt64();
+      previous = head->getColumn(1).getString();
+    }
+  }
+  const std::string created_at = utc_now();  // one transaction, one time of recording
+
+  struct Draft {
+    RunRow row;
+    std::string before;  // canonical record up to the previous run's hash
+    std::string after;   // and from it on
+  };
+  std::vector<Draft> drafts(runs.size());
+  core::parallel_ranges(
+      runs.size(), core::worker_count(runs.size(), 16), [&](std::size_t first, std::size_t last) {
+        for (std::size_t i = first; i < last; ++i) {
+          Draft& d = drafts[i];
+          d.row = draft_row(*runs[i], last_id + 1 + static_cast<std::int64_t>(i), created_at);
+          std::tie(d.before, d.after) = canonical_record_parts(d.row);
+        }
+      });
+
+  // Chained in order: each record hash covers the one before (chain_hash of the full record).
+  std::vector<std::int64_t> ids;
+  ids.reserve(runs.size());
+  for (Draft& d : drafts) {
+    d.row.previous_record_hash = previous;
+    core::Sha256 h;
+    h.update(previous);
+    h.update("\n");
+    h.update(d.before);
+    h.update(previous);
+    h.update(d.after);
+    d.row.record_hash = h.hex();
+    insert_row(ledger, d.row);
+    previous = d.row.record_hash;
+    ids.push_back(d.row.run_id);
+    if (on_stored) on_stored(ids.size());
+    d = Draft{};  // the row's text is in the ledger now
+  }
+  return ids;
 }
 
 std::optional<RunRow> read_run_row(Ledger& ledger, std::int64_t run_id) {

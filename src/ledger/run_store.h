@@ -6,6 +6,7 @@
 #pragma once
 
 #include <cstdint>
+#include <functional>
 #include <nlohmann/json.hpp>
 #include <optional>
 #include <string>
@@ -56,8 +57,11 @@ struct NewRun {
 nlohmann::ordered_json result_json(const core::EvaluationResult& result,
                                    const std::vector<std::string>& reading);
 
-// Records a run; must run inside Ledger::write_transaction. Returns its run id.
-std::int64_t store_run(Ledger& ledger, const NewRun& run);
+// Records runs in order, each chained to the one before, all with one time of recording;
+// must run inside Ledger::write_transaction. Builds the rows on all cores, then inserts them
+// one by one, calling on_stored(number stored so far) after each. Returns their run ids.
+std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const NewRun*>& runs,
+                                     const std::function<void(std::size_t)>& on_stored = {});
 
 // Returns how many runs a study has (0 for an empty study name).
 int count_study_runs(Ledger& ledger, const std::string& study);

@@ -501,10 +501,8 @@ TEST(EvaluationSample, MissingBenchmarkMonthIsDroppedAndReported) {
 // The reading of beta (GUIDE.md section 2, facts of the trade: beta > 1 moves with the market
 // more strongly, 0 < beta < 1 less strongly). A strategy equal to the benchmark has beta 1:
 // it moves one for one with the market, neither more nor less strongly, so a sentence that
-// prints "Beta is 1.00" must not call it either.
-// KNOWN FAILURE (src/core/evaluation.cc compose_reading, the `if (beta > 1) ... else if
-// (beta > 0)` branches): beta 1 and values that print as 1.00 fall into "less strongly" (or
-// "more strongly" for 1 + 1 ulp).
+// prints "Beta is 1.00" must not call it either (a bug once: beta 1 and values that print as
+// 1.00 fell into "less strongly", or "more strongly" for 1 + 1 ulp).
 TEST(EvaluationReading, BetaOfOneIsReadAsOneForOne) {
   const World w = make_world(48);
   const Evaluator ev(w.shared, Frequency::monthly, settings_with(RateBasis::compound));

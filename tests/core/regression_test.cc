@@ -1,5 +1,8 @@
 // Unit tests of the regression engine and Student's t: handbook values, facts of the trade,
 // the refusals, and the identities between the covariance kinds and the batch entry point.
+#include "core/regression.h"
+
+#include <fmt/format.h>
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -9,7 +12,6 @@
 #include <vector>
 
 #include "core/error.h"
-#include "core/regression.h"
 #include "core/student_t.h"
 
 namespace alphatrail::core {
@@ -37,7 +39,8 @@ Sample make_sample(int T, int strategies, unsigned seed) {
   for (int j = 0; j < strategies; ++j) {
     double e = 0;
     for (int t = 0; t < T; ++t) {
-      e = 0.3 * e + 0.004 * (1 + 20 * std::fabs(s.X(t, 1))) * normal(rng);  // AR(1), heteroskedastic
+      e = 0.3 * e +
+          0.004 * (1 + 20 * std::fabs(s.X(t, 1))) * normal(rng);  // AR(1), heteroskedastic
       s.Y(t, j) = 0.0001 * j + (0.5 + 0.01 * j) * s.X(t, 1) + 0.3 * s.X(t, 2) - 0.1 * s.X(t, 3) + e;
     }
   }
@@ -85,7 +88,8 @@ TEST(StudentT, TwoSidedPValueInvertsTheQuantile) {
 }
 
 // Newey & West (1994) pilot rule floor(4 (T/100)^(2/9)); values computed by hand:
-// T=100: 4; T=240: 4 * 1.2148 = 4.86 -> 4; T=360: 4 * 1.3293 = 5.32 -> 5; T=5000: 4 * 2.3853 = 9.54 -> 9.
+// T=100: 4; T=240: 4 * 1.2148 = 4.86 -> 4; T=360: 4 * 1.3293 = 5.32 -> 5; T=5000: 4 * 2.3853 = 9.54
+// -> 9.
 TEST(Regression, AutoNeweyWestLagRule) {
   EXPECT_EQ(auto_newey_west_lags(100), 4);
   EXPECT_EQ(auto_newey_west_lags(240), 4);
@@ -158,20 +162,23 @@ TEST(Regression, RefusesRankDeficientDesignNamingTheColumns) {
   X = s.X;
   X.col(3) = X.col(1) - 0.5 * X.col(2);
   message = estimation_message([&] { fit_ols(X, s.Y.col(0), four_names, true, {}); });
-  EXPECT_NE(message.find("regressors 'market', 'f1' and 'f2' are collinear (rank 3 of 4)"), std::string::npos)
+  EXPECT_NE(message.find("regressors 'market', 'f1' and 'f2' are collinear (rank 3 of 4)"),
+            std::string::npos)
       << message;
 
   X = s.X;
   X.col(2).setConstant(0.01);
   message = estimation_message([&] { fit_ols(X, s.Y.col(0), four_names, true, {}); });
-  EXPECT_NE(message.find("regressor 'f1' is constant, which duplicates the intercept 'alpha'; drop it"),
-            std::string::npos)
+  EXPECT_NE(
+      message.find("regressor 'f1' is constant, which duplicates the intercept 'alpha'; drop it"),
+      std::string::npos)
       << message;
 
   X = s.X;
   X.col(3).setZero();
   message = estimation_message([&] { fit_ols(X, s.Y.col(0), four_names, true, {}); });
-  EXPECT_NE(message.find("regressor 'f2' is zero in every observation; drop it"), std::string::npos) << message;
+  EXPECT_NE(message.find("regressor 'f2' is zero in every observation; drop it"), std::string::npos)
+      << message;
 
   // The batch entry point refuses the same way.
   X = s.X;
@@ -188,8 +195,10 @@ TEST(Regression, RefusesIllConditionedDesign) {
   // f2 is f1 up to a relative wobble of 1e-11: independent in double precision, but far
   // beyond what double precision can separate reliably.
   for (Eigen::Index t = 0; t < X.rows(); ++t) X(t, 3) = X(t, 2) * (1 + 1e-11 * normal(rng));
-  const std::string message = estimation_message([&] { fit_ols(X, s.Y.col(0), four_names, true, {}); });
-  EXPECT_NE(message.find("design is too ill-conditioned (condition number"), std::string::npos) << message;
+  const std::string message =
+      estimation_message([&] { fit_ols(X, s.Y.col(0), four_names, true, {}); });
+  EXPECT_NE(message.find("design is too ill-conditioned (condition number"), std::string::npos)
+      << message;
   EXPECT_NE(message.find("rescale or drop regressors"), std::string::npos) << message;
 }
 
@@ -198,7 +207,9 @@ TEST(Regression, RefusesTooShortSample) {
   X << 1, 0.1, 1, 0.2, 1, 0.4;
   Eigen::VectorXd y(3);
   y << 0.1, 0.3, 0.2;
-  const std::string message = estimation_message([&] { fit_ols(X, y, {"alpha", "beta"}, true, {}); });
+  const std::string message = estimation_message([&] {
+    fit_ols(X, y, {"alpha", "beta"}, true, {});
+  });
   EXPECT_EQ(message, "sample too short: 3 observations for 2 coefficients; need at least 4");
 }
 
@@ -212,11 +223,13 @@ TEST(Regression, RefusesNonFiniteDataAndBadLags) {
   Eigen::MatrixXd X = s.X;
   X(2, 1) = std::numeric_limits<double>::infinity();
   message = estimation_message([&] { fit_ols(X, s.Y.col(0), four_names, true, {}); });
-  EXPECT_NE(message.find("regressor 'market' has a non-finite value at observation 3"), std::string::npos)
+  EXPECT_NE(message.find("regressor 'market' has a non-finite value at observation 3"),
+            std::string::npos)
       << message;
 
-  message = estimation_message(
-      [&] { fit_ols(s.X, s.Y.col(0), four_names, true, {ErrorKind::newey_west, 40, false}); });
+  message = estimation_message([&] {
+    fit_ols(s.X, s.Y.col(0), four_names, true, {ErrorKind::newey_west, 40, false});
+  });
   EXPECT_NE(message.find("Newey-West lag 40 is out of range"), std::string::npos) << message;
 }
 
@@ -228,7 +241,8 @@ TEST(Regression, RefusesHc2AndHc3AtLeverageOne) {
   X.col(3).setZero();
   X(17, 3) = 1;
   for (ErrorKind kind : {ErrorKind::hc2, ErrorKind::hc3}) {
-    const std::string message = estimation_message([&] { fit_ols(X, s.Y.col(0), four_names, true, {kind}); });
+    const std::string message =
+        estimation_message([&] { fit_ols(X, s.Y.col(0), four_names, true, {kind}); });
     EXPECT_NE(message.find("observation 18 has leverage 1"), std::string::npos) << message;
   }
   EXPECT_NO_THROW(fit_ols(X, s.Y.col(0), four_names, true, {ErrorKind::hc1}));
@@ -273,6 +287,54 @@ TEST(Regression, NeweyWestIdentities) {
   EXPECT_EQ(nw.f_stat, hc0.f_stat);
 }
 
+// The Newey-West covariance written out as GUIDE.md section 2 states it (Newey & West 1987):
+// V = (X'X)^-1 S (X'X)^-1, S = sum e_t^2 x_t x_t' + sum_l w_l sum_{t>l} e_t e_{t-l}
+// (x_t x_{t-l}' + x_{t-l} x_t'), w_l = 1 - l/(L+1). The engine sums the scores over windows
+// instead; both must agree for any number of regressors (k up to 8 and beyond take different
+// code) and any lag, including lags past the 64 windows after which the window sum restarts.
+Eigen::MatrixXd newey_west_by_lag_sums(const Eigen::MatrixXd& X, const Eigen::VectorXd& e, int L) {
+  const Eigen::Index T = X.rows();
+  Eigen::MatrixXd S = Eigen::MatrixXd::Zero(X.cols(), X.cols());
+  for (Eigen::Index t = 0; t < T; ++t) S += e(t) * e(t) * X.row(t).transpose() * X.row(t);
+  for (int l = 1; l <= L; ++l) {
+    const double w = 1.0 - static_cast<double>(l) / (L + 1);
+    for (Eigen::Index t = l; t < T; ++t) {
+      const Eigen::MatrixXd g = e(t) * e(t - l) * X.row(t).transpose() * X.row(t - l);
+      S += w * (g + g.transpose());
+    }
+  }
+  const Eigen::MatrixXd bread =
+      (X.transpose() * X).ldlt().solve(Eigen::MatrixXd::Identity(X.cols(), X.cols()));
+  return bread * S * bread;
+}
+
+TEST(Regression, NeweyWestEqualsTheLagSumsOfItsDefinition) {
+  std::mt19937_64 rng(41);
+  std::normal_distribution<double> normal(0.0, 1.0);
+  for (const int k : {1, 4, 10}) {
+    const int T = 260;
+    Eigen::MatrixXd X(T, k);
+    Eigen::VectorXd y(T);
+    double e = 0;
+    for (int t = 0; t < T; ++t) {
+      X(t, 0) = 1;
+      for (int j = 1; j < k; ++j) X(t, j) = 0.01 * normal(rng) + 0.002 * j;
+      e = 0.5 * e + 0.01 * normal(rng);  // autocorrelated errors
+      y(t) = 0.001 + (k > 1 ? 0.8 * X(t, 1) : 0.0) + e;
+    }
+    std::vector<std::string> names;
+    for (int j = 0; j < k; ++j) names.push_back(fmt::format("x{}", j));
+    for (const int L : {0, 1, 7, 70, 150, T - 1}) {
+      SCOPED_TRACE("k " + std::to_string(k) + ", lags " + std::to_string(L));
+      const OlsResult fit = fit_ols(X, y, names, true, {ErrorKind::newey_west, L, false});
+      const Eigen::MatrixXd want = newey_west_by_lag_sums(X, fit.residuals, L);
+      for (int i = 0; i < k; ++i)
+        for (int j = 0; j < k; ++j)
+          EXPECT_NEAR(fit.covariance(i, j), want(i, j), 1e-11 * std::sqrt(want(i, i) * want(j, j)));
+    }
+  }
+}
+
 void expect_identical(const OlsResult& a, const OlsResult& b) {
   ASSERT_EQ(a.coefficients.size(), b.coefficients.size());
   for (std::size_t j = 0; j < a.coefficients.size(); ++j) {
@@ -310,11 +372,13 @@ TEST(Regression, BatchEqualsSingleFitsBitForBit) {
   for (ErrorKind kind : {ErrorKind::classic, ErrorKind::hc3, ErrorKind::newey_west}) {
     const CovarianceOptions opts{kind, -1, true};
     for (int threads : {1, 2, 3}) {
-      const std::vector<OlsResult> batch = fit_ols_many(s.X, s.Y, four_names, true, opts, 0.9, threads);
+      const std::vector<OlsResult> batch =
+          fit_ols_many(s.X, s.Y, four_names, true, opts, 0.9, threads);
       ASSERT_EQ(batch.size(), 70u);
       for (Eigen::Index j = 0; j < s.Y.cols(); ++j) {
         SCOPED_TRACE("strategy " + std::to_string(j) + ", threads " + std::to_string(threads));
-        expect_identical(batch[static_cast<std::size_t>(j)], fit_ols(s.X, s.Y.col(j), four_names, true, opts, 0.9));
+        expect_identical(batch[static_cast<std::size_t>(j)],
+                         fit_ols(s.X, s.Y.col(j), four_names, true, opts, 0.9));
       }
     }
   }
@@ -344,8 +408,8 @@ TEST(Regression, IntervalsUseStudentT) {
 }
 
 TEST(Regression, NamesErrorKinds) {
-  for (ErrorKind kind : {ErrorKind::classic, ErrorKind::hc0, ErrorKind::hc1, ErrorKind::hc2, ErrorKind::hc3,
-                         ErrorKind::newey_west}) {
+  for (ErrorKind kind : {ErrorKind::classic, ErrorKind::hc0, ErrorKind::hc1, ErrorKind::hc2,
+                         ErrorKind::hc3, ErrorKind::newey_west}) {
     EXPECT_EQ(parse_error_kind(error_kind_name(kind)), kind);
   }
   EXPECT_STREQ(error_kind_name(ErrorKind::newey_west), "newey-west");
