@@ -10,6 +10,7 @@
 #include "cli/evaluate.h"
 #include "cli/output.h"
 #include "core/error.h"
+#include "core/timings.h"
 
 namespace alphatrail::cli {
 
@@ -21,6 +22,7 @@ void run_evaluate_command(const EvaluateRequest& request, Format format,
                                      ledger::OpenMode::existing, std::cerr);
   const auto runs = evaluate_and_record(ledger, request, isatty(2) != 0);
   print_runs(std::cout, ledger, runs, format);
+  core::mark_phase("evaluate: printed");
 }
 
 }  // namespace

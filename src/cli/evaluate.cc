@@ -5,7 +5,9 @@
 #include <fnmatch.h>
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
+#include <cstdio>
 #include <iostream>
 #include <map>
 #include <set>
@@ -13,6 +15,7 @@
 #include "core/error.h"
 #include "core/evaluation.h"
 #include "core/parallel.h"
+#include "core/timings.h"
 #include "ledger/run_store.h"
 #include "ledger/series_store.h"
 #include "report/reports.h"
@@ -161,7 +164,10 @@ void draw_progress(std::size_t done, std::size_t total) {
 
 }  // namespace
 
-std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateRequest& rq) {
+namespace {
+
+std::vector<PendingRun> evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq) {
+  core::mark_phase("evaluate: start");
   core::EvaluationSettings settings;
   settings.covariance.kind = *core::parse_error_kind(rq.errors);
   if (rq.lags != "auto") {
@@ -221,7 +227,9 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
   std::vector<ledger::VersionRequest> wanted;
   wanted.reserve(strategy_names.size());
   for (const auto& name : strategy_names) wanted.push_back({name, pinned(rq, name)});
+  core::mark_phase("evaluate: shared inputs loaded");
   std::vector<ledger::LoadedVersion> strategies = ledger::load_versions(ledger, wanted);
+  core::mark_phase("evaluate: strategies loaded");
 
   const auto detected = [](const ledger::VersionInfo& info, const std::string& what) {
     if (!info.frequency)
@@ -333,6 +341,7 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
         failures.push_back(fmt::format("{}: {}", inputs[j].name, outcomes[j].error));
     }
   }
+  core::mark_phase("evaluate: regressions done");
   if (!failures.empty())
     throw Error(ExitCode::estimation,
                 fmt::format("{} of {} strategies cannot be evaluated, so no run was recorded "
@@ -378,6 +387,15 @@ std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateR
   return pending;
 }
 
+}  // namespace
+
+std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateRequest& rq) {
+  // Every input from one snapshot of the ledger, read under one lock.
+  std::vector<PendingRun> pending;
+  ledger.read_transaction([&] { pending = evaluate_in_snapshot(ledger, rq); });
+  return pending;
+}
+
 std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<PendingRun>& pending,
                                       bool progress) {
   std::vector<std::int64_t> run_ids;
@@ -400,6 +418,7 @@ std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<Pendin
       contexts.push_back({p.run.study, study,
                           counted(strategy_runs, p.run.strategy, ledger::count_strategy_runs)});
     }
+    core::mark_phase("record: trials counted");
     core::parallel_ranges(pending.size(), core::worker_count(pending.size(), 16),
                           [&](std::size_t first, std::size_t last) {
                             for (std::size_t i = first; i < last; ++i) {
@@ -409,6 +428,7 @@ std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<Pendin
                               p.run.result = &p.result;
                             }
                           });
+    core::mark_phase("record: readings written");
     std::vector<const ledger::NewRun*> runs;
     runs.reserve(pending.size());
     for (const auto& p : pending) runs.push_back(&p.run);
@@ -416,6 +436,7 @@ std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<Pendin
     if (progress && pending.size() > 1)
       on_stored = [&](std::size_t done) { draw_progress(done, pending.size()); };
     run_ids = ledger::store_runs(ledger, runs, on_stored);
+    core::mark_phase("record: runs inserted");
   });
   return run_ids;
 }
@@ -423,7 +444,9 @@ std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<Pendin
 std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const EvaluateRequest& rq,
                                               bool progress) {
   auto pending = evaluate_request(ledger, rq);
-  return record_runs(ledger, pending, progress);
+  auto ids = record_runs(ledger, pending, progress);
+  core::mark_phase("record: committed");
+  return ids;
 }
 
 namespace {

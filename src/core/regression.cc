@@ -326,20 +326,20 @@ Eigen::MatrixXd robust_meat(const Design& d, const Eigen::VectorXd& e, ErrorKind
   // add_window_products).
   std::vector<double>& u = ws.scores;
   u.assign(static_cast<std::size_t>(n + 2 * lags + 1) * k, 0.0);
-  for (int j = 0; j < k; ++j) {
-    for (int t = 0; t < n; ++t) {
-      double factor = e(t);
-      if (kind == ErrorKind::hc2 || kind == ErrorKind::hc3) {
-        const double room = 1 - d.leverage(t);
-        if (!(room > 1e-12)) {
-          estimation_error("observation " + std::to_string(t + 1) +
-                           " has leverage 1, so HC2 and HC3 errors are undefined; use hc1 or "
-                           "newey-west errors, or drop that observation");
-        }
-        factor = kind == ErrorKind::hc2 ? e(t) / std::sqrt(room) : e(t) / room;
+  const bool leverage_weighted = kind == ErrorKind::hc2 || kind == ErrorKind::hc3;
+  for (int t = 0; t < n; ++t) {
+    double factor = e(t);
+    if (leverage_weighted) {
+      const double room = 1 - d.leverage(t);
+      if (!(room > 1e-12)) {
+        estimation_error("observation " + std::to_string(t + 1) +
+                         " has leverage 1, so HC2 and HC3 errors are undefined; use hc1 or "
+                         "newey-west errors, or drop that observation");
       }
-      u[static_cast<std::size_t>(t + lags + 1) * k + j] = d.q(t, j) * factor;
+      factor = kind == ErrorKind::hc2 ? e(t) / std::sqrt(room) : e(t) / room;
     }
+    double* scores = u.data() + static_cast<std::size_t>(t + lags + 1) * k;
+    for (int j = 0; j < k; ++j) scores[j] = d.q(t, j) * factor;
   }
   std::vector<double> sum(static_cast<std::size_t>(k) * k, 0.0);
   switch (k) {

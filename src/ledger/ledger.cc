@@ -175,6 +175,20 @@ void Ledger::write_transaction(const std::function<void()>& work) {
   }
 }
 
+void Ledger::read_transaction(const std::function<void()>& work) {
+  db_->exec("BEGIN");
+  try {
+    work();
+  } catch (...) {
+    try {
+      db_->exec("ROLLBACK");
+    } catch (...) {  // the transaction may already be gone; the original error matters
+    }
+    throw;
+  }
+  db_->exec("COMMIT");
+}
+
 namespace {
 
 // Strips "--" comments and folds white space so that formatting does not count.

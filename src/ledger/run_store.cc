@@ -9,6 +9,7 @@
 #include "core/error.h"
 #include "core/parallel.h"
 #include "core/sha256.h"
+#include "core/timings.h"
 #include "ledger/series_store.h"
 #include "version.h"
 
@@ -351,6 +352,7 @@ std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const New
         }
       });
 
+  core::mark_phase("record: rows drafted");
   // Chained in order: each record hash covers the one before (chain_hash of the full record).
   std::vector<std::int64_t> ids;
   ids.reserve(runs.size());
