@@ -26,8 +26,8 @@ namespace fs = std::filesystem;
 namespace ledger = alphatrail::ledger;
 using alphatrail::Error;
 using alphatrail::ExitCode;
-using alphatrail::testing::contains;
 using alphatrail::testing::CommandResult;
+using alphatrail::testing::contains;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
@@ -37,7 +37,9 @@ SQLite::Database memory_db() {
   return SQLite::Database(":memory:", SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
 }
 
-std::string reference_schema_sql() { return read_file(source_path("schema/ledger.sql")); }
+std::string reference_schema_sql() {
+  return read_file(source_path("schema/ledger.sql"));
+}
 
 // Runs SQL and returns SQLite's error message, or "(no error)".
 std::string sql_error(SQLite::Database& db, const std::string& sql) {
@@ -74,11 +76,11 @@ TEST(Migrations, FromZeroEqualTheReferenceSchema) {
   const std::string fingerprint = ledger::schema_fingerprint(migrated);
   EXPECT_EQ(fingerprint, ledger::schema_fingerprint(reference));
   // The fingerprint covers every kind of object, so the comparison means something.
-  for (const char* part : {"table series on series:", "table series_versions on series_versions:",
-                           "table version_columns on version_columns:",
-                           "view observations on observations:",
-                           "trigger series_versions_in_sequence on series_versions:",
-                           "trigger version_columns_no_delete on version_columns:"})
+  for (const char* part :
+       {"table series on series:", "table series_versions on series_versions:",
+        "table version_columns on version_columns:", "view observations on observations:",
+        "trigger series_versions_in_sequence on series_versions:",
+        "trigger version_columns_no_delete on version_columns:"})
     EXPECT_TRUE(contains(fingerprint, part)) << part << "\n" << fingerprint;
   EXPECT_FALSE(contains(fingerprint, "--")) << "comments must not count";
 }
@@ -128,7 +130,8 @@ TEST(Migrations, FilesAreNumberedInOrder) {
   ASSERT_EQ(static_cast<int>(migrations.size()), ledger::current_schema_version());
   for (std::size_t i = 0; i < migrations.size(); ++i) {
     std::smatch m;
-    ASSERT_TRUE(std::regex_match(migrations[i].file, m, std::regex(R"((\d{4})_[a-z]+(_[a-z]+)+\.sql)")))
+    ASSERT_TRUE(
+        std::regex_match(migrations[i].file, m, std::regex(R"((\d{4})_[a-z]+(_[a-z]+)+\.sql)")))
         << migrations[i].file;
     EXPECT_EQ(std::stoi(m[1].str()), static_cast<int>(i) + 1) << migrations[i].file;
     EXPECT_EQ(migrations[i].sql, read_file(source_path("migrations/" + migrations[i].file)));
@@ -243,8 +246,9 @@ TEST(LedgerOpen, ReadOnlyRefusesWrites) {
   std::ostringstream notices;
   { ledger::Ledger::open(path, ledger::OpenMode::create, notices); }
   auto l = ledger::Ledger::open(path, ledger::OpenMode::read_only, notices);
-  EXPECT_NE(sql_error(l.db(), "INSERT INTO series (name, kind, created_at) VALUES ('x', "
-                              "'strategy', '2021-01-01T00:00:00.000Z')"),
+  EXPECT_NE(sql_error(l.db(),
+                      "INSERT INTO series (name, kind, created_at) VALUES ('x', "
+                      "'strategy', '2021-01-01T00:00:00.000Z')"),
             "(no error)");
   EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM series").getInt(), 0);
 }
@@ -257,8 +261,8 @@ TEST(LedgerOpen, NewerLedgerIsRefused) {
     auto l = ledger::Ledger::open(path, ledger::OpenMode::create, notices);
     l.db().exec("PRAGMA user_version = 999");
   }
-  for (auto mode : {ledger::OpenMode::create, ledger::OpenMode::existing,
-                    ledger::OpenMode::read_only}) {
+  for (auto mode :
+       {ledger::OpenMode::create, ledger::OpenMode::existing, ledger::OpenMode::read_only}) {
     try {
       ledger::Ledger::open(path, mode, notices);
       ADD_FAILURE() << "opened a ledger newer than the binary";
@@ -279,13 +283,13 @@ TEST(LedgerOpen, OlderLedgerIsUpgradedAndSaysSo) {
   auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
   EXPECT_EQ(l.schema_version(), ledger::current_schema_version());
   if (ledger::current_schema_version() > 1)
-    EXPECT_TRUE(contains(notices.str(), "upgraded ledger " + path.string() +
-                                            " from schema version 1 to "))
+    EXPECT_TRUE(
+        contains(notices.str(), "upgraded ledger " + path.string() + " from schema version 1 to "))
         << notices.str();
   else
     EXPECT_EQ(notices.str(), "");
-  EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM observations WHERE series = 'fund-one'").getInt(),
-            3);
+  EXPECT_EQ(
+      l.db().execAndGet("SELECT count(*) FROM observations WHERE series = 'fund-one'").getInt(), 3);
 }
 
 TEST(LedgerPath, OptionThenEnvironmentThenDefault) {
@@ -299,7 +303,10 @@ TEST(LedgerPath, OptionThenEnvironmentThenDefault) {
   EXPECT_EQ(ledger::resolve_ledger_path("x.db"), fs::path("x.db"));
   setenv("ALPHATRAIL_LEDGER", "", 1);
   EXPECT_EQ(ledger::resolve_ledger_path(""), fs::path("alphatrail.db"));
-  if (saved) setenv("ALPHATRAIL_LEDGER", saved_value.c_str(), 1); else unsetenv("ALPHATRAIL_LEDGER");
+  if (saved)
+    setenv("ALPHATRAIL_LEDGER", saved_value.c_str(), 1);
+  else
+    unsetenv("ALPHATRAIL_LEDGER");
 }
 
 TEST(LedgerPath, BusyTimeoutFromTheEnvironment) {
@@ -315,8 +322,10 @@ TEST(LedgerPath, BusyTimeoutFromTheEnvironment) {
     setenv("ALPHATRAIL_BUSY_TIMEOUT_MS", bad, 1);
     EXPECT_EQ(ledger::busy_timeout_ms(), 10000) << bad;
   }
-  if (saved) setenv("ALPHATRAIL_BUSY_TIMEOUT_MS", saved_value.c_str(), 1);
-  else unsetenv("ALPHATRAIL_BUSY_TIMEOUT_MS");
+  if (saved)
+    setenv("ALPHATRAIL_BUSY_TIMEOUT_MS", saved_value.c_str(), 1);
+  else
+    unsetenv("ALPHATRAIL_BUSY_TIMEOUT_MS");
 }
 
 // --- transactions and immutability --------------------------------------------------------
@@ -333,13 +342,14 @@ class LedgerRows : public ::testing::Test {
   // Inserts a version row of series 1 (fund-one) with the given number.
   std::string insert_version(int series_id, int version) {
     return sql_error(
-        db(), "INSERT INTO series_versions (series_id, version, content_hash, unit, input_unit, "
-              "first_date, last_date, observations, missing, source_file, source_sha256, "
-              "ingested_at, ingested_by) VALUES (" +
-                  std::to_string(series_id) + ", " + std::to_string(version) +
-                  ", printf('%064d', 0), 'decimal return', 'decimal', '2021-01-31', "
-                  "'2021-01-31', 1, 0, 'f.csv', printf('%064d', 0), "
-                  "'2021-01-01T00:00:00.000Z', 'me')");
+        db(),
+        "INSERT INTO series_versions (series_id, version, content_hash, unit, input_unit, "
+        "first_date, last_date, observations, missing, source_file, source_sha256, "
+        "ingested_at, ingested_by) VALUES (" +
+            std::to_string(series_id) + ", " + std::to_string(version) +
+            ", printf('%064d', 0), 'decimal return', 'decimal', '2021-01-31', "
+            "'2021-01-31', 1, 0, 'f.csv', printf('%064d', 0), "
+            "'2021-01-01T00:00:00.000Z', 'me')");
   }
 
   ScratchDir dir_;
@@ -354,7 +364,8 @@ TEST_F(LedgerRows, UpdatesAndDeletesAbortWithTheTriggerMessage) {
     const char* message;
   };
   for (const Case& c : std::vector<Case>{
-           {"UPDATE series SET name = 'renamed'", "series are immutable: ingest a new version instead"},
+           {"UPDATE series SET name = 'renamed'",
+            "series are immutable: ingest a new version instead"},
            {"DELETE FROM series", "series are never deleted: the ledger keeps every revision"},
            {"UPDATE series_versions SET note = 'edited'",
             "series versions are immutable: ingest a new version instead"},
@@ -380,8 +391,9 @@ TEST_F(LedgerRows, VersionNumbersHaveNoGaps) {
   EXPECT_EQ(db().execAndGet("SELECT count(*) FROM series_versions").getInt(), 1);
   EXPECT_EQ(insert_version(1, 2), "(no error)");
 
-  db().exec("INSERT INTO series (name, kind, created_at) VALUES ('fresh', 'benchmark', "
-            "'2021-01-01T00:00:00.000Z')");
+  db().exec(
+      "INSERT INTO series (name, kind, created_at) VALUES ('fresh', 'benchmark', "
+      "'2021-01-01T00:00:00.000Z')");
   const int fresh = static_cast<int>(db().getLastInsertRowid());
   EXPECT_EQ(insert_version(fresh, 2), gap);  // a new series starts at 1
   EXPECT_EQ(insert_version(fresh, 1), "(no error)");
@@ -392,22 +404,26 @@ TEST_F(LedgerRows, VersionNumbersHaveNoGaps) {
 }
 
 TEST_F(LedgerRows, ChecksRejectMalformedRows) {
-  EXPECT_TRUE(contains(sql_error(db(), "INSERT INTO series (name, kind, created_at) VALUES "
-                                       "('b', 'bond', '2021-01-01T00:00:00.000Z')"),
+  EXPECT_TRUE(contains(sql_error(db(),
+                                 "INSERT INTO series (name, kind, created_at) VALUES "
+                                 "('b', 'bond', '2021-01-01T00:00:00.000Z')"),
                        "CHECK constraint failed"));
-  EXPECT_TRUE(contains(sql_error(db(), "INSERT INTO series (name, kind, created_at) VALUES "
-                                       "('fund-one', 'strategy', '2021-01-01T00:00:00.000Z')"),
+  EXPECT_TRUE(contains(sql_error(db(),
+                                 "INSERT INTO series (name, kind, created_at) VALUES "
+                                 "('fund-one', 'strategy', '2021-01-01T00:00:00.000Z')"),
                        "UNIQUE constraint failed"));
-  EXPECT_TRUE(contains(sql_error(db(), "INSERT INTO version_columns (version_id, position, "
-                                       "column_name, values_json) VALUES (99, 1, 'x', '{}')"),
+  EXPECT_TRUE(contains(sql_error(db(),
+                                 "INSERT INTO version_columns (version_id, position, "
+                                 "column_name, values_json) VALUES (99, 1, 'x', '{}')"),
                        "FOREIGN KEY constraint failed"));
 }
 
 TEST_F(LedgerRows, WriteTransactionIsAllOrNothing) {
   const std::string before = dump_rows(db());
   EXPECT_THROW(ledger_->write_transaction([&] {
-    db().exec("INSERT INTO series (name, kind, created_at) VALUES ('half', 'strategy', "
-              "'2021-01-01T00:00:00.000Z')");
+    db().exec(
+        "INSERT INTO series (name, kind, created_at) VALUES ('half', 'strategy', "
+        "'2021-01-01T00:00:00.000Z')");
     throw std::runtime_error("stop half way");
   }),
                std::runtime_error);
@@ -415,19 +431,42 @@ TEST_F(LedgerRows, WriteTransactionIsAllOrNothing) {
 
   // A failing statement (a trigger) rolls back the statements before it too.
   EXPECT_THROW(ledger_->write_transaction([&] {
-    db().exec("INSERT INTO series (name, kind, created_at) VALUES ('half', 'strategy', "
-              "'2021-01-01T00:00:00.000Z')");
+    db().exec(
+        "INSERT INTO series (name, kind, created_at) VALUES ('half', 'strategy', "
+        "'2021-01-01T00:00:00.000Z')");
     db().exec("DELETE FROM series");
   }),
                SQLite::Exception);
   EXPECT_EQ(dump_rows(db()), before);
 
   ledger_->write_transaction([&] {
-    db().exec("INSERT INTO series (name, kind, created_at) VALUES ('whole', 'strategy', "
-              "'2021-01-01T00:00:00.000Z')");
+    db().exec(
+        "INSERT INTO series (name, kind, created_at) VALUES ('whole', 'strategy', "
+        "'2021-01-01T00:00:00.000Z')");
   });
   EXPECT_EQ(db().execAndGet("SELECT count(*) FROM series WHERE name = 'whole'").getInt(), 1);
   // The connection is usable after a rollback: no transaction is left open.
+  EXPECT_EQ(sql_error(db(), "BEGIN IMMEDIATE"), "(no error)");
+  db().exec("ROLLBACK");
+}
+
+// A read transaction is one snapshot: what another connection commits meanwhile is seen only
+// after it ends. An error inside it ends it too, leaving the connection free.
+TEST_F(LedgerRows, ReadTransactionSeesOneSnapshot) {
+  const auto series_count = [&] { return db().execAndGet("SELECT count(*) FROM series").getInt(); };
+  const int before = series_count();
+  SQLite::Database other(path_.string(), SQLite::OPEN_READWRITE);
+  ledger_->read_transaction([&] {
+    EXPECT_EQ(series_count(), before);
+    other.exec(
+        "INSERT INTO series (name, kind, created_at) VALUES ('meanwhile', 'strategy', "
+        "'2021-01-01T00:00:00.000Z')");
+    EXPECT_EQ(series_count(), before);
+  });
+  EXPECT_EQ(series_count(), before + 1);
+
+  EXPECT_THROW(ledger_->read_transaction([&] { throw std::runtime_error("stop half way"); }),
+               std::runtime_error);
   EXPECT_EQ(sql_error(db(), "BEGIN IMMEDIATE"), "(no error)");
   db().exec("ROLLBACK");
 }
