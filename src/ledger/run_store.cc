@@ -3,7 +3,11 @@
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 
+#include <atomic>
 #include <cmath>
+#include <condition_variable>
+#include <limits>
+#include <mutex>
 #include <tuple>
 
 #include "core/error.h"
@@ -342,35 +346,68 @@ std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const New
     std::string before;  // canonical record up to the previous run's hash
     std::string after;   // and from it on
   };
+  // Worker threads draft the rows in order while this thread (task 0, the one that owns the
+  // connection) chains and inserts each as soon as it is ready: the inserts are serial, so the
+  // drafting hides behind them.
   std::vector<Draft> drafts(runs.size());
-  core::parallel_ranges(
-      runs.size(), core::worker_count(runs.size(), 16), [&](std::size_t first, std::size_t last) {
-        for (std::size_t i = first; i < last; ++i) {
-          Draft& d = drafts[i];
-          d.row = draft_row(*runs[i], last_id + 1 + static_cast<std::int64_t>(i), created_at);
-          std::tie(d.before, d.after) = canonical_record_parts(d.row);
-        }
-      });
-
-  core::mark_phase("record: rows drafted");
-  // Chained in order: each record hash covers the one before (chain_hash of the full record).
+  std::vector<bool> ready(runs.size(), false);
+  bool draft_failed = false;
+  std::mutex mutex;
+  std::condition_variable drafted;
+  std::atomic<std::size_t> next{0};
   std::vector<std::int64_t> ids;
   ids.reserve(runs.size());
-  for (Draft& d : drafts) {
-    d.row.previous_record_hash = previous;
-    core::Sha256 h;
-    h.update(previous);
-    h.update("\n");
-    h.update(d.before);
-    h.update(previous);
-    h.update(d.after);
-    d.row.record_hash = h.hex();
-    insert_row(ledger, d.row);
-    previous = d.row.record_hash;
-    ids.push_back(d.row.run_id);
-    if (on_stored) on_stored(ids.size());
-    d = Draft{};  // the row's text is in the ledger now
-  }
+
+  const auto draft = [&] {
+    try {
+      for (std::size_t i = next++; i < runs.size(); i = next++) {
+        Draft& d = drafts[i];
+        d.row = draft_row(*runs[i], last_id + 1 + static_cast<std::int64_t>(i), created_at);
+        std::tie(d.before, d.after) = canonical_record_parts(d.row);
+        std::lock_guard lock(mutex);
+        ready[i] = true;
+        drafted.notify_all();
+      }
+    } catch (...) {
+      {
+        std::lock_guard lock(mutex);
+        draft_failed = true;
+      }
+      drafted.notify_all();
+      throw;
+    }
+  };
+  const auto insert = [&] {
+    // Chained in order: each record hash covers the one before (chain_hash of the full record).
+    for (std::size_t i = 0; i < runs.size(); ++i) {
+      {
+        std::unique_lock lock(mutex);
+        drafted.wait(lock, [&] { return ready[i] || draft_failed; });
+        if (!ready[i]) return;  // the drafter's error is the one run_parallel reports
+      }
+      Draft& d = drafts[i];
+      d.row.previous_record_hash = previous;
+      core::Sha256 h;
+      h.update(previous);
+      h.update("\n");
+      h.update(d.before);
+      h.update(previous);
+      h.update(d.after);
+      d.row.record_hash = h.hex();
+      insert_row(ledger, d.row);
+      previous = d.row.record_hash;
+      ids.push_back(d.row.run_id);
+      if (on_stored) on_stored(ids.size());
+      d = Draft{};  // the row's text is in the ledger now
+    }
+  };
+  const unsigned drafters = core::worker_count(runs.size(), 16);
+  core::run_parallel(1 + drafters, [&](std::size_t task) {
+    if (task == 0)
+      insert();
+    else
+      draft();
+  });
   return ids;
 }
 
@@ -543,12 +580,12 @@ std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter) {
       "run_inputs i JOIN series_versions v ON v.version_id = i.version_id WHERE i.run_id = "
       "r.run_id AND EXISTS (SELECT 1 FROM series_versions w WHERE w.series_id = v.series_id AND "
       "w.version > v.version)) FROM runs r WHERE (?1 = '' OR r.strategy = ?1) AND (?2 = '' OR "
-      "r.study = ?2) AND (?3 = 0 OR r.run_id >= ?3) AND (?4 = 0 OR r.run_id <= ?4) ORDER BY "
-      "r.run_id");
+      "r.study = ?2) AND r.run_id BETWEEN ?3 AND ?4 ORDER BY r.run_id");
   q.bind(1, filter.strategy);
   q.bind(2, filter.study);
+  // Plain bounds, so that SQLite reads only the rows in range.
   q.bind(3, filter.first_run);
-  q.bind(4, filter.last_run);
+  q.bind(4, filter.last_run == 0 ? std::numeric_limits<std::int64_t>::max() : filter.last_run);
   std::vector<RunSummary> out;
   while (q.executeStep()) {
     RunSummary s;
