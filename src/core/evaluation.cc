@@ -417,12 +417,16 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
   for (auto& [keys, members] : groups) {
     const Design d = build_design(prepared[members.front() - begin].aligned, factor_names_);
     Eigen::MatrixXd Y(d.X.rows(), static_cast<Eigen::Index>(members.size()));
-    for (std::size_t j = 0; j < members.size(); ++j) {
-      const Aligned& a = prepared[members[j] - begin].aligned;
-      const auto& s = a.column("strategy");
-      const auto& rf = a.column("rate");
-      for (Eigen::Index t = 0; t < Y.rows(); ++t) Y(t, static_cast<Eigen::Index>(j)) = s[t] - rf[t];
-    }
+    parallel_ranges(members.size(), worker_count(members.size(), 16, threads),
+                    [&](std::size_t first, std::size_t last) {
+                      for (std::size_t j = first; j < last; ++j) {
+                        const Aligned& a = prepared[members[j] - begin].aligned;
+                        const auto& s = a.column("strategy");
+                        const auto& rf = a.column("rate");
+                        for (Eigen::Index t = 0; t < Y.rows(); ++t)
+                          Y(t, static_cast<Eigen::Index>(j)) = s[t] - rf[t];
+                      }
+                    });
     std::vector<OlsResult> fits;
     try {
       fits = fit_ols_many(d.X, Y, term_names_, true, settings_.covariance, settings_.confidence,

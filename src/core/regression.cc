@@ -216,7 +216,7 @@ struct Workspace {
 // Wampler5) and shows whether the answer can be trusted: when the corrections do not settle,
 // the design is refused as too ill-conditioned. A well-conditioned design (condition number
 // up to refine_above) needs no refinement; a moderately conditioned one takes one pass.
-void solve_refined(const Design& d, const Eigen::VectorXd& y, Eigen::VectorXd& beta,
+void solve_refined(const Design& d, Eigen::Ref<const Eigen::VectorXd> y, Eigen::VectorXd& beta,
                    Eigen::VectorXd& r, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
   const auto& perm = d.qr.colsPermutation();
@@ -374,8 +374,9 @@ int resolve_lags(const CovarianceOptions& opts, int n) {
 // Fits one response on a factorized design; the single code path of fit_ols and fit_ols_many.
 // `crit` is the Student t quantile at 0.5 + confidence / 2 with T - k degrees of freedom, the
 // same for every column of a design.
-OlsResult fit_column(const Design& d, const Eigen::VectorXd& y, const CovarianceOptions& opts,
-                     double confidence, double crit, const std::string& what, Workspace& ws) {
+OlsResult fit_column(const Design& d, Eigen::Ref<const Eigen::VectorXd> y,
+                     const CovarianceOptions& opts, double confidence, double crit,
+                     const std::string& what, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
   if (y.size() != d.n) {
     throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
@@ -536,10 +537,9 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
 
   auto run_range = [&](Eigen::Index begin, Eigen::Index end) {
     Workspace ws;
-    Eigen::VectorXd y;
     for (Eigen::Index j = begin; j < end; ++j) {
       try {
-        y = Y.col(j);
+        const Eigen::Ref<const Eigen::VectorXd> y = Y.col(j);
         results[static_cast<std::size_t>(j)] = fit_column(
             d, y, opts, confidence, crit, "response column " + std::to_string(j + 1), ws);
       } catch (...) {
