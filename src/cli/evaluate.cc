@@ -166,7 +166,15 @@ void draw_progress(std::size_t done, std::size_t total) {
 
 namespace {
 
-std::vector<PendingRun> evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq) {
+// Receives a request's evaluated runs chunk by chunk, in run order, with the number of
+// strategies in all. It runs on the thread that owns the connection while the workers
+// evaluate the next chunk.
+using RunSink = std::function<void(std::vector<PendingRun>& chunk, std::size_t total)>;
+
+// Evaluates every strategy the request names, handing the runs to `sink` as they are ready
+// until a strategy fails; then goes on only to name every failure, and throws. Must run inside
+// a transaction, so that every input comes from one snapshot.
+void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, const RunSink& sink) {
   core::mark_phase("evaluate: start");
   core::EvaluationSettings settings;
   settings.covariance.kind = *core::parse_error_kind(rq.errors);
@@ -227,9 +235,10 @@ std::vector<PendingRun> evaluate_in_snapshot(ledger::Ledger& ledger, const Evalu
   std::vector<ledger::VersionRequest> wanted;
   wanted.reserve(strategy_names.size());
   for (const auto& name : strategy_names) wanted.push_back({name, pinned(rq, name)});
-  core::mark_phase("evaluate: shared inputs loaded");
-  std::vector<ledger::LoadedVersion> strategies = ledger::load_versions(ledger, wanted);
-  core::mark_phase("evaluate: strategies loaded");
+  // The version rows now (the frequencies decide the plans); the observations chunk by chunk
+  // while evaluating, below.
+  const std::vector<ledger::VersionInfo> strategies = ledger::find_versions(ledger, wanted);
+  core::mark_phase("evaluate: inputs found");
 
   const auto detected = [](const ledger::VersionInfo& info, const std::string& what) {
     if (!info.frequency)
@@ -250,7 +259,7 @@ std::vector<PendingRun> evaluate_in_snapshot(ledger::Ledger& ledger, const Evalu
       f = *core::parse_frequency(rq.frequency);
     } else {
       auto all = shared_frequencies;
-      all.push_back(detected(strategies[i].info, "strategy"));
+      all.push_back(detected(strategies[i], "strategy"));
       f = core::lowest_frequency(all);
     }
     auto [it, fresh] = plans.try_emplace(f, Plan{f, "", false, {}, {}});
@@ -297,9 +306,43 @@ std::vector<PendingRun> evaluate_in_snapshot(ledger::Ledger& ledger, const Evalu
          plan.rolling_window > 0 ? nlohmann::json(plan.rolling_window) : nlohmann::json()}};
   }
 
+  std::string factor_label;
+  for (const auto& fc : factors)
+    factor_label += fmt::format("{}{}:{}", factor_label.empty() ? "" : "; ", fc.version.info.name,
+                                fmt::join(fc.columns, ","));
+  const auto input_of = [](const std::string& role, int position, const ledger::VersionInfo& info,
+                           std::vector<std::string> columns) {
+    return ledger::RunInput{role,         position,          info.version_id,   info.name,
+                            info.version, info.content_hash, std::move(columns)};
+  };
+  const auto pending_run = [&](const Plan& plan, const ledger::VersionInfo& strategy,
+                               core::EvaluationResult&& result) {
+    PendingRun p;
+    p.result = std::move(result);
+    p.settings = settings;
+    p.settings.rolling_window = plan.rolling_window;
+    ledger::NewRun& run = p.run;
+    run.strategy = strategy.name;
+    run.benchmark = benchmark.info.name;
+    run.rate = fmt::format("{}:{}", rate.info.name, plan.tenor);
+    run.factors = factor_label;
+    run.study = rq.study;
+    run.note = rq.note;
+    run.revises_run_id = rq.revises_run_id;
+    run.parameters = plan.parameters;
+    run.inputs.push_back(input_of("strategy", 1, strategy, {strategy.name}));
+    run.inputs.push_back(
+        input_of("benchmark", 1, benchmark.info, {benchmark.info.columns.front()}));
+    run.inputs.push_back(input_of("rate", 1, rate.info, {plan.tenor}));
+    int position = 1;
+    for (const auto& fc : factors)
+      run.inputs.push_back(input_of("factor", position++, fc.version.info, fc.columns));
+    return p;
+  };
+
   // Evaluate each frequency group against its shared inputs.
-  std::vector<std::optional<core::EvaluationResult>> results(strategies.size());
   std::vector<std::string> failures;
+  std::vector<PendingRun> ready;  // evaluated, not yet handed to the sink
   for (auto& [f, plan] : plans) {
     core::SharedInputs shared;
     shared.benchmark = to_return_input(
@@ -328,125 +371,142 @@ std::vector<PendingRun> evaluate_in_snapshot(ledger::Ledger& ledger, const Evalu
     core::EvaluationSettings plan_settings = settings;
     plan_settings.rolling_window = plan.rolling_window;
     const core::Evaluator evaluator(shared, f, plan_settings);
-    std::vector<core::ReturnInput> inputs;
-    inputs.reserve(plan.members.size());
-    for (std::size_t i : plan.members)
-      inputs.push_back(to_return_input(
-          strategies[i].info.name, std::move(strategies[i].columns.front()), strategies[i].info));
-    auto outcomes = evaluator.evaluate_many(inputs, 0, rq.keep_series);
-    for (std::size_t j = 0; j < plan.members.size(); ++j) {
-      if (outcomes[j].result)
-        results[plan.members[j]] = std::move(outcomes[j].result);
-      else
-        failures.push_back(fmt::format("{}: {}", inputs[j].name, outcomes[j].error));
+
+    // The strategies' observations are read a chunk at a time, each chunk while the workers
+    // evaluate the one before: reading is SQLite's and serial (on this thread, which owns the
+    // connection), evaluating is parallel, and the two overlap.
+    constexpr std::size_t kChunk = 128;
+    const std::size_t count = plan.members.size();
+    const auto load_chunk = [&](std::size_t first) {
+      std::vector<ledger::VersionRequest> chunk;
+      for (std::size_t j = first; j < std::min(count, first + kChunk); ++j) {
+        const ledger::VersionInfo& info = strategies[plan.members[j]];
+        chunk.push_back({info.name, info.version});
+      }
+      return ledger::load_versions(ledger, chunk);
+    };
+    std::vector<ledger::LoadedVersion> loaded = load_chunk(0);
+    for (std::size_t first = 0; first < count; first += kChunk) {
+      std::vector<core::ReturnInput> inputs;
+      inputs.reserve(loaded.size());
+      for (auto& version : loaded)
+        inputs.push_back(
+            to_return_input(version.info.name, std::move(version.columns.front()), version.info));
+      std::vector<core::Evaluator::Outcome> outcomes;
+      std::vector<ledger::LoadedVersion> next;
+      // This thread reads the next chunk and hands the last one's runs to the sink (which may
+      // write them) while the workers evaluate this chunk.
+      const auto evaluate = [&] { outcomes = evaluator.evaluate_many(inputs, 0, rq.keep_series); };
+      const bool more = first + kChunk < count;
+      if (!more && ready.empty()) {
+        evaluate();
+      } else {
+        core::run_parallel(2, [&](std::size_t task) {
+          if (task == 1) return evaluate();
+          if (more) next = load_chunk(first + kChunk);
+          if (!ready.empty()) sink(ready, strategies.size());
+          ready.clear();
+        });
+      }
+      for (std::size_t j = 0; j < inputs.size(); ++j) {
+        if (!outcomes[j].result)
+          failures.push_back(fmt::format("{}: {}", inputs[j].name, outcomes[j].error));
+        else if (failures.empty())  // after a failure nothing is recorded: only name the rest
+          ready.push_back(pending_run(plan, strategies[plan.members[first + j]],
+                                      std::move(*outcomes[j].result)));
+      }
+      loaded = std::move(next);
     }
   }
-  core::mark_phase("evaluate: regressions done");
+  if (!ready.empty()) sink(ready, strategies.size());
   if (!failures.empty())
     throw Error(ExitCode::estimation,
                 fmt::format("{} of {} strategies cannot be evaluated, so no run was recorded "
                             "(evaluate the others without them):\n  {}",
                             failures.size(), strategies.size(), fmt::join(failures, "\n  ")));
-
-  // Record every run in one transaction.
-  std::string factor_label;
-  for (const auto& fc : factors)
-    factor_label += fmt::format("{}{}:{}", factor_label.empty() ? "" : "; ", fc.version.info.name,
-                                fmt::join(fc.columns, ","));
-  const auto input_of = [](const std::string& role, int position, const ledger::VersionInfo& info,
-                           std::vector<std::string> columns) {
-    return ledger::RunInput{role,         position,          info.version_id,   info.name,
-                            info.version, info.content_hash, std::move(columns)};
-  };
-  std::vector<PendingRun> pending;
-  pending.reserve(strategies.size());
-  for (auto& [f, plan] : plans)
-    for (std::size_t i : plan.members) {
-      PendingRun p;
-      p.result = std::move(*results[i]);
-      p.settings = settings;
-      p.settings.rolling_window = plan.rolling_window;
-      ledger::NewRun& run = p.run;
-      run.strategy = strategies[i].info.name;
-      run.benchmark = benchmark.info.name;
-      run.rate = fmt::format("{}:{}", rate.info.name, plan.tenor);
-      run.factors = factor_label;
-      run.study = rq.study;
-      run.note = rq.note;
-      run.revises_run_id = rq.revises_run_id;
-      run.parameters = plan.parameters;
-      run.inputs.push_back(input_of("strategy", 1, strategies[i].info, {strategies[i].info.name}));
-      run.inputs.push_back(
-          input_of("benchmark", 1, benchmark.info, {benchmark.info.columns.front()}));
-      run.inputs.push_back(input_of("rate", 1, rate.info, {plan.tenor}));
-      int position = 1;
-      for (const auto& fc : factors)
-        run.inputs.push_back(input_of("factor", position++, fc.version.info, fc.columns));
-      pending.push_back(std::move(p));
-    }
-  return pending;
 }
 
 }  // namespace
 
 std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateRequest& rq) {
-  // Every input from one snapshot of the ledger, read under one lock.
   std::vector<PendingRun> pending;
-  ledger.read_transaction([&] { pending = evaluate_in_snapshot(ledger, rq); });
+  ledger.read_transaction([&] {
+    evaluate_in_snapshot(ledger, rq, [&](std::vector<PendingRun>& chunk, std::size_t total) {
+      pending.reserve(total);
+      for (auto& p : chunk) pending.push_back(std::move(p));
+    });
+  });
   return pending;
 }
+
+namespace {
+
+// Records evaluated runs inside the caller's write transaction; on_stored(n) follows the
+// n-th run stored. Each run is one more trial of its study and of its strategy, counted from
+// what the ledger holds (this transaction's runs included).
+std::vector<std::int64_t> record_in_transaction(ledger::Ledger& ledger,
+                                                std::vector<PendingRun>& pending,
+                                                const std::function<void(std::size_t)>& on_stored) {
+  std::vector<core::ReadingContext> contexts;
+  contexts.reserve(pending.size());
+  std::map<std::string, int> study_runs;
+  std::map<std::string, int> strategy_runs;
+  for (const auto& p : pending) {
+    const auto counted = [&](std::map<std::string, int>& counts, const std::string& name,
+                             int (*count)(ledger::Ledger&, const std::string&)) {
+      auto [it, fresh] = counts.try_emplace(name, 0);
+      if (fresh) it->second = count(ledger, name);
+      return ++it->second;
+    };
+    const int study =
+        p.run.study.empty() ? 0 : counted(study_runs, p.run.study, ledger::count_study_runs);
+    contexts.push_back(
+        {p.run.study, study, counted(strategy_runs, p.run.strategy, ledger::count_strategy_runs)});
+  }
+  core::parallel_ranges(pending.size(), core::worker_count(pending.size(), 16),
+                        [&](std::size_t first, std::size_t last) {
+                          for (std::size_t i = first; i < last; ++i) {
+                            PendingRun& p = pending[i];
+                            p.run.reading =
+                                core::compose_reading(p.result, p.settings, contexts[i]);
+                            p.run.result = &p.result;
+                          }
+                        });
+  std::vector<const ledger::NewRun*> runs;
+  runs.reserve(pending.size());
+  for (const auto& p : pending) runs.push_back(&p.run);
+  return ledger::store_runs(ledger, runs, on_stored);
+}
+
+}  // namespace
 
 std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<PendingRun>& pending,
                                       bool progress) {
   std::vector<std::int64_t> run_ids;
-  ledger.write_transaction([&] {
-    // Each run is one more trial of its study and of its strategy: count what the ledger
-    // holds once, then the runs of this batch in order.
-    std::vector<core::ReadingContext> contexts;
-    contexts.reserve(pending.size());
-    std::map<std::string, int> study_runs;
-    std::map<std::string, int> strategy_runs;
-    for (const auto& p : pending) {
-      const auto counted = [&](std::map<std::string, int>& counts, const std::string& name,
-                               int (*count)(ledger::Ledger&, const std::string&)) {
-        auto [it, fresh] = counts.try_emplace(name, 0);
-        if (fresh) it->second = count(ledger, name);
-        return ++it->second;
-      };
-      const int study =
-          p.run.study.empty() ? 0 : counted(study_runs, p.run.study, ledger::count_study_runs);
-      contexts.push_back({p.run.study, study,
-                          counted(strategy_runs, p.run.strategy, ledger::count_strategy_runs)});
-    }
-    core::mark_phase("record: trials counted");
-    core::parallel_ranges(pending.size(), core::worker_count(pending.size(), 16),
-                          [&](std::size_t first, std::size_t last) {
-                            for (std::size_t i = first; i < last; ++i) {
-                              PendingRun& p = pending[i];
-                              p.run.reading =
-                                  core::compose_reading(p.result, p.settings, contexts[i]);
-                              p.run.result = &p.result;
-                            }
-                          });
-    core::mark_phase("record: readings written");
-    std::vector<const ledger::NewRun*> runs;
-    runs.reserve(pending.size());
-    for (const auto& p : pending) runs.push_back(&p.run);
-    std::function<void(std::size_t)> on_stored;
-    if (progress && pending.size() > 1)
-      on_stored = [&](std::size_t done) { draw_progress(done, pending.size()); };
-    run_ids = ledger::store_runs(ledger, runs, on_stored);
-    core::mark_phase("record: runs inserted");
-  });
+  std::function<void(std::size_t)> on_stored;
+  if (progress && pending.size() > 1)
+    on_stored = [&](std::size_t done) { draw_progress(done, pending.size()); };
+  ledger.write_transaction([&] { run_ids = record_in_transaction(ledger, pending, on_stored); });
   return run_ids;
 }
 
 std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const EvaluateRequest& rq,
                                               bool progress) {
-  auto pending = evaluate_request(ledger, rq);
-  auto ids = record_runs(ledger, pending, progress);
-  core::mark_phase("record: committed");
-  return ids;
+  // One write transaction: the inputs come from one snapshot, each chunk of runs is written
+  // while the next is evaluated, and a failure anywhere records nothing.
+  std::vector<std::int64_t> run_ids;
+  ledger.write_transaction([&] {
+    evaluate_in_snapshot(ledger, rq, [&](std::vector<PendingRun>& chunk, std::size_t total) {
+      const std::size_t before = run_ids.size();
+      std::function<void(std::size_t)> on_stored;
+      if (progress && total > 1)
+        on_stored = [&](std::size_t done) { draw_progress(before + done, total); };
+      const auto ids = record_in_transaction(ledger, chunk, on_stored);
+      run_ids.insert(run_ids.end(), ids.begin(), ids.end());
+    });
+  });
+  core::mark_phase("evaluate: recorded");
+  return run_ids;
 }
 
 namespace {

@@ -317,6 +317,43 @@ std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name
   return out;
 }
 
+namespace {
+
+// Returns the version row a request names; throws Error(not_found) when there is none.
+VersionInfo find_version(Ledger& ledger, const VersionRequest& request) {
+  const auto& [name, version] = request;
+  auto q = ledger.statement(
+      fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = "
+                  "s.series_id WHERE s.name = ? AND (? IS NULL OR v.version = ?) ORDER BY "
+                  "v.version DESC LIMIT 1",
+                  kVersionColumns));
+  q->bind(1, name);
+  if (version) {
+    q->bind(2, *version);
+    q->bind(3, *version);
+  }
+  if (!q->executeStep()) {
+    if (version) version_history(ledger, name);  // names an unknown series first
+    throw Error(ExitCode::not_found,
+                version
+                    ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
+                                  "lists its versions",
+                                  name, *version, name)
+                    : fmt::format("no series named '{}'; `alphatrail series` lists them", name));
+  }
+  return read_version_info(*q);
+}
+
+}  // namespace
+
+std::vector<VersionInfo> find_versions(Ledger& ledger,
+                                       const std::vector<VersionRequest>& requests) {
+  std::vector<VersionInfo> infos;
+  infos.reserve(requests.size());
+  for (const auto& request : requests) infos.push_back(find_version(ledger, request));
+  return infos;
+}
+
 std::vector<LoadedVersion> load_versions(Ledger& ledger,
                                          const std::vector<VersionRequest>& requests) {
   // Reading is SQLite's and serial. A column with a packed copy is unpacked by the reader as
@@ -358,29 +395,7 @@ std::vector<LoadedVersion> load_versions(Ledger& ledger,
   };
   const auto read_all = [&] {
     for (std::size_t r = 0; r < requests.size(); ++r) {
-      const auto& [name, version] = requests[r];
-      {
-        auto q = ledger.statement(
-            fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = "
-                        "s.series_id WHERE s.name = ? AND (? IS NULL OR v.version = ?) ORDER BY "
-                        "v.version DESC LIMIT 1",
-                        kVersionColumns));
-        q->bind(1, name);
-        if (version) {
-          q->bind(2, *version);
-          q->bind(3, *version);
-        }
-        if (!q->executeStep()) {
-          if (version) version_history(ledger, name);  // names an unknown series first
-          throw Error(
-              ExitCode::not_found,
-              version ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
-                                    "lists its versions",
-                                    name, *version, name)
-                      : fmt::format("no series named '{}'; `alphatrail series` lists them", name));
-        }
-        loaded[r].info = read_version_info(*q);
-      }
+      loaded[r].info = find_version(ledger, requests[r]);
       // values_json is only read (SQLite fetches a column lazily) when there is no packed copy.
       auto cols = ledger.statement(
           "SELECT c.column_name, p.days, p.numbers, CASE WHEN p.column_id IS NULL THEN "

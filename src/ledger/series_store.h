@@ -93,6 +93,9 @@ struct VersionRequest {
 std::vector<LoadedVersion> load_versions(Ledger& ledger,
                                          const std::vector<VersionRequest>& requests);
 
+// Returns what load_versions would, without the observations: one version row per request.
+std::vector<VersionInfo> find_versions(Ledger& ledger, const std::vector<VersionRequest>& requests);
+
 // Returns the current UTC time as ISO 8601 with milliseconds, e.g. 2026-12-02T01:02:03.004Z.
 std::string utc_now();
 

@@ -5,6 +5,7 @@
 // inputs hash, immutability), the options and the errors.
 #include <SQLiteCpp/Database.h>
 #include <SQLiteCpp/Statement.h>
+#include <fmt/format.h>
 #include <gtest/gtest.h>
 
 #include <cmath>
@@ -372,6 +373,60 @@ TEST_F(EvaluateTest, FailedEvaluationExits6AndRecordsNothing) {
       cli({"evaluate", "trend-slow", "tiny", "--benchmark", "market", "--rate", "bills"});
   EXPECT_EQ(mixed.exit_code, 6) << mixed.err;
   EXPECT_EQ(count("SELECT count(*) FROM runs"), 1);
+  EXPECT_EQ(count("SELECT count(*) FROM run_inputs"), inputs);
+  EXPECT_EQ(count("SELECT count(*) FROM run_coefficients"), coefficients);
+}
+
+// More strategies than one chunk (128): each chunk is read while the one before is evaluated,
+// and its runs are recorded while the next is evaluated. The runs still come out in name
+// order with consecutive ids, each bit for bit what evaluating that strategy alone gives, and
+// a strategy that fails in the last chunk still leaves nothing recorded.
+TEST_F(EvaluateTest, ManyStrategiesInChunksRecordInOrderOrNotAtAll) {
+  const std::vector<std::string> rows = lines_of(read_file(evaluate_fixture("strategies.csv")));
+  const int wide = 300;
+  std::string csv = "date";
+  for (int j = 0; j < wide; ++j) csv += fmt::format(",wide-{:04}", j);
+  csv += "\n";
+  for (std::size_t t = 1; t < rows.size(); ++t) {
+    const std::string date = rows[t].substr(0, rows[t].find(','));
+    const double base = std::stod(rows[t].substr(rows[t].find(',') + 1));
+    csv += date;
+    for (int j = 0; j < wide; ++j)
+      csv += fmt::format(",{:.8f}", base * (0.5 + j / 300.0) + 0.002 * std::sin(0.7 * t + j));
+    csv += "\n";
+  }
+  ASSERT_EQ(cli({"ingest", "strategy", dir_.write("wide.csv", csv).string()}).exit_code, 0);
+
+  const long long before = count("SELECT count(*) FROM runs");
+  const json runs = evaluate_json({"wide-*", "--benchmark", "market", "--rate", "bills"});
+  ASSERT_EQ(runs.size(), static_cast<std::size_t>(wide));
+  for (int j = 0; j < wide; ++j) {
+    EXPECT_EQ(runs[j]["strategy"], fmt::format("wide-{:04}", j));
+    EXPECT_EQ(runs[j]["run_id"], before + 1 + j);
+  }
+  for (const int j : {0, 127, 128, 200, wide - 1}) {  // chunk edges and the last chunk
+    const json alone = evaluate_one({fmt::format("wide-{:04}", j)});
+    EXPECT_EQ(alone["inputs_hash"], runs[j]["inputs_hash"]);
+    EXPECT_EQ(alone["coefficients"], runs[j]["coefficients"]);
+    EXPECT_EQ(alone["statistics"], runs[j]["statistics"]);
+  }
+
+  // Three months are too few to estimate; the name sorts last, so it fails in the last chunk.
+  ASSERT_EQ(cli({"ingest", "strategy",
+                 dir_.write("short.csv",
+                            "date,wide-0299b\n2015-01-31,0.01\n2015-02-28,0.02\n2015-03-31,0.0\n")
+                     .string()})
+                .exit_code,
+            0);
+  const long long recorded = count("SELECT count(*) FROM runs");
+  const long long inputs = count("SELECT count(*) FROM run_inputs");
+  const long long coefficients = count("SELECT count(*) FROM run_coefficients");
+  const CommandResult failed =
+      cli({"evaluate", "wide-*", "--benchmark", "market", "--rate", "bills"});
+  EXPECT_EQ(failed.exit_code, 6) << failed.err;
+  EXPECT_TRUE(contains(failed.err, "wide-0299b")) << failed.err;
+  EXPECT_TRUE(contains(failed.err, "no run was recorded")) << failed.err;
+  EXPECT_EQ(count("SELECT count(*) FROM runs"), recorded);
   EXPECT_EQ(count("SELECT count(*) FROM run_inputs"), inputs);
   EXPECT_EQ(count("SELECT count(*) FROM run_coefficients"), coefficients);
 }
