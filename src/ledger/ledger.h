@@ -20,6 +20,9 @@ namespace alphatrail::ledger {
 // PRAGMA application_id of every alphatrail ledger: the bytes "ATRL".
 inline constexpr int kApplicationId = 0x4154524C;
 
+// PRAGMA page_size of a ledger this binary creates; older ledgers keep the size they have.
+inline constexpr int kNewLedgerPageSize = 16384;
+
 enum class OpenMode {
   create,     // create the file if missing (and say so), migrate
   existing,   // the file must exist, migrate

@@ -203,6 +203,7 @@ TEST(LedgerOpen, CreateMakesACurrentWalLedgerAndSaysSo) {
   EXPECT_EQ(l.db().execAndGet("PRAGMA journal_mode").getString(), "wal");
   EXPECT_EQ(l.db().execAndGet("PRAGMA application_id").getInt(), ledger::kApplicationId);
   EXPECT_EQ(l.db().execAndGet("PRAGMA foreign_keys").getInt(), 1);
+  EXPECT_EQ(l.db().execAndGet("PRAGMA page_size").getInt(), ledger::kNewLedgerPageSize);
 
   std::ostringstream again;
   auto reopened = ledger::Ledger::open(path, ledger::OpenMode::existing, again);
@@ -222,6 +223,18 @@ TEST(LedgerOpen, ExistingLedgerIsSwitchedToWal) {
   { ledger::Ledger::open(path, ledger::OpenMode::existing, notices); }
   SQLite::Database db(path.string(), SQLite::OPEN_READONLY);
   EXPECT_EQ(db.execAndGet("PRAGMA journal_mode").getString(), "wal");
+}
+
+// A ledger made before new ledgers got larger pages keeps its 4 KiB pages (SQLite cannot
+// change them in WAL mode) and works as before.
+TEST(LedgerOpen, OlderLedgerKeepsItsPageSize) {
+  ScratchDir dir;
+  const fs::path path = dir / "ledger.db";
+  fs::copy_file(source_path("fixtures/ledgers/v1.db"), path);
+  std::ostringstream notices;
+  auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
+  EXPECT_EQ(l.db().execAndGet("PRAGMA page_size").getInt(), 4096);
+  EXPECT_EQ(l.db().execAndGet("PRAGMA integrity_check").getString(), "ok");
 }
 
 TEST(LedgerOpen, ExistingAndReadOnlyNeedAFile) {
