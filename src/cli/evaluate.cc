@@ -374,19 +374,20 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
 
     // The strategies' observations are read a chunk at a time, each chunk while the workers
     // evaluate the one before: reading is SQLite's and serial (on this thread, which owns the
-    // connection), evaluating is parallel, and the two overlap.
-    constexpr std::size_t kChunk = 128;
+    // connection), evaluating is parallel, and the two overlap. The first chunk is small, so
+    // that the workers start early.
     const std::size_t count = plan.members.size();
+    const auto chunk_end = [count](std::size_t first) {
+      return std::min(count, first == 0 ? std::size_t{32} : first + 128);
+    };
     const auto load_chunk = [&](std::size_t first) {
-      std::vector<ledger::VersionRequest> chunk;
-      for (std::size_t j = first; j < std::min(count, first + kChunk); ++j) {
-        const ledger::VersionInfo& info = strategies[plan.members[j]];
-        chunk.push_back({info.name, info.version});
-      }
-      return ledger::load_versions(ledger, chunk);
+      std::vector<ledger::VersionInfo> chunk;
+      for (std::size_t j = first; j < chunk_end(first); ++j)
+        chunk.push_back(strategies[plan.members[j]]);
+      return ledger::load_observations(ledger, std::move(chunk));
     };
     std::vector<ledger::LoadedVersion> loaded = load_chunk(0);
-    for (std::size_t first = 0; first < count; first += kChunk) {
+    for (std::size_t first = 0; first < count; first = chunk_end(first)) {
       std::vector<core::ReturnInput> inputs;
       inputs.reserve(loaded.size());
       for (auto& version : loaded)
@@ -397,13 +398,13 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
       // This thread reads the next chunk and hands the last one's runs to the sink (which may
       // write them) while the workers evaluate this chunk.
       const auto evaluate = [&] { outcomes = evaluator.evaluate_many(inputs, 0, rq.keep_series); };
-      const bool more = first + kChunk < count;
+      const bool more = chunk_end(first) < count;
       if (!more && ready.empty()) {
         evaluate();
       } else {
         core::run_parallel(2, [&](std::size_t task) {
           if (task == 1) return evaluate();
-          if (more) next = load_chunk(first + kChunk);
+          if (more) next = load_chunk(chunk_end(first));
           if (!ready.empty()) sink(ready, strategies.size());
           ready.clear();
         });

@@ -15,6 +15,7 @@
 #include <exception>
 #include <mutex>
 #include <thread>
+#include <unordered_map>
 
 #include "core/error.h"
 #include "core/parallel.h"
@@ -348,19 +349,40 @@ VersionInfo find_version(Ledger& ledger, const VersionRequest& request) {
 
 std::vector<VersionInfo> find_versions(Ledger& ledger,
                                        const std::vector<VersionRequest>& requests) {
+  // Many latest versions come from one pass over the ledger's latest versions rather than one
+  // query each; a pinned version, or a name that is not there, takes the query of its own.
+  std::unordered_map<std::string, VersionInfo> latest;
+  if (requests.size() >= 16) {
+    auto q = ledger.statement(
+        fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = s.series_id "
+                    "WHERE v.version = (SELECT max(w.version) FROM series_versions w WHERE "
+                    "w.series_id = s.series_id)",
+                    kVersionColumns));
+    while (q->executeStep()) {
+      VersionInfo info = read_version_info(*q);
+      latest.emplace(info.name, std::move(info));
+    }
+  }
   std::vector<VersionInfo> infos;
   infos.reserve(requests.size());
-  for (const auto& request : requests) infos.push_back(find_version(ledger, request));
+  for (const auto& request : requests) {
+    const auto it = request.version ? latest.end() : latest.find(request.name);
+    infos.push_back(it != latest.end() ? it->second : find_version(ledger, request));
+  }
   return infos;
 }
 
 std::vector<LoadedVersion> load_versions(Ledger& ledger,
                                          const std::vector<VersionRequest>& requests) {
+  return load_observations(ledger, find_versions(ledger, requests));
+}
+
+std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<VersionInfo> versions) {
   // Reading is SQLite's and serial. A column with a packed copy is unpacked by the reader as
   // it reads (a copy of the bytes, cheaper than handing them over); a column stored before
   // the packed copies existed is decoded from its JSON text by the other workers while the
   // caller reads on, and the caller then decodes the rest with them.
-  std::vector<LoadedVersion> loaded(requests.size());
+  std::vector<LoadedVersion> loaded(versions.size());
   struct Pending {
     std::size_t version;
     std::string name;
@@ -394,8 +416,8 @@ std::vector<LoadedVersion> load_versions(Ledger& ledger,
     arrived.notify_all();
   };
   const auto read_all = [&] {
-    for (std::size_t r = 0; r < requests.size(); ++r) {
-      loaded[r].info = find_version(ledger, requests[r]);
+    for (std::size_t r = 0; r < versions.size(); ++r) {
+      loaded[r].info = std::move(versions[r]);
       // values_json is only read (SQLite fetches a column lazily) when there is no packed copy.
       auto cols = ledger.statement(
           "SELECT c.column_name, p.days, p.numbers, CASE WHEN p.column_id IS NULL THEN "
@@ -426,7 +448,7 @@ std::vector<LoadedVersion> load_versions(Ledger& ledger,
       }
     }
   };
-  core::run_parallel(core::worker_count(requests.size(), 8), [&](std::size_t task) {
+  core::run_parallel(core::worker_count(versions.size(), 8), [&](std::size_t task) {
     if (task > 0) return decode_until_done();
     try {
       read_all();

@@ -96,6 +96,9 @@ std::vector<LoadedVersion> load_versions(Ledger& ledger,
 // Returns what load_versions would, without the observations: one version row per request.
 std::vector<VersionInfo> find_versions(Ledger& ledger, const std::vector<VersionRequest>& requests);
 
+// Loads the observations of versions find_versions returned; load_versions is the two in one.
+std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<VersionInfo> versions);
+
 // Returns the current UTC time as ISO 8601 with milliseconds, e.g. 2026-12-02T01:02:03.004Z.
 std::string utc_now();
 
