@@ -343,7 +343,8 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
   // Evaluate each frequency group against its shared inputs.
   std::vector<std::string> failures;
   std::vector<PendingRun> ready;  // evaluated, not yet handed to the sink
-  for (auto& [f, plan] : plans) {
+  for (const auto& [f, entry] : plans) {
+    const Plan& plan = entry;  // named: lambdas capture it
     core::SharedInputs shared;
     shared.benchmark = to_return_input(
         benchmark.info.name, ledger::ColumnData(benchmark.columns.front()), benchmark.info);

@@ -414,7 +414,8 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
   const auto finish_member = [&](std::size_t i, OlsResult&& fit) {
     outcomes[i].result = finish(std::move(prepared[i - begin]), std::move(fit), keep_series);
   };
-  for (auto& [keys, members] : groups) {
+  for (const auto& group : groups) {
+    const std::vector<std::size_t>& members = group.second;  // named: lambdas capture it
     const Design d = build_design(prepared[members.front() - begin].aligned, factor_names_);
     Eigen::MatrixXd Y(d.X.rows(), static_cast<Eigen::Index>(members.size()));
     parallel_ranges(members.size(), worker_count(members.size(), 16, threads),

@@ -216,8 +216,8 @@ struct Workspace {
 // Wampler5) and shows whether the answer can be trusted: when the corrections do not settle,
 // the design is refused as too ill-conditioned. A well-conditioned design (condition number
 // up to refine_above) needs no refinement; a moderately conditioned one takes one pass.
-void solve_refined(const Design& d, Eigen::Ref<const Eigen::VectorXd> y, Eigen::VectorXd& beta,
-                   Eigen::VectorXd& r, Workspace& ws) {
+void solve_refined(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y,
+                   Eigen::VectorXd& beta, Eigen::VectorXd& r, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
   const auto& perm = d.qr.colsPermutation();
   beta = Eigen::VectorXd::Zero(d.k);
@@ -290,7 +290,8 @@ void solve_refined(const Design& d, Eigen::Ref<const Eigen::VectorXd> y, Eigen::
 template <int K>
 void add_window_products(const double* u, int n, int k, int lags, double* sum) {
   using Window = std::conditional_t<(K > 0), std::array<double, K>, std::vector<double>>;
-  using Outer = std::conditional_t<(K > 0), std::array<double, K * K>, std::vector<double>>;
+  using Outer = std::conditional_t<(K > 0), std::array<double, static_cast<std::size_t>(K) * K>,
+                                   std::vector<double>>;
   Window window{};
   Outer outer{};
   if constexpr (K > 0) {
