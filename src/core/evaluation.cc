@@ -417,26 +417,24 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
   for (const auto& group : groups) {
     const std::vector<std::size_t>& members = group.second;  // named: lambdas capture it
     const Design d = build_design(prepared[members.front() - begin].aligned, factor_names_);
-    Eigen::MatrixXd Y(d.X.rows(), static_cast<Eigen::Index>(members.size()));
-    parallel_ranges(members.size(), worker_count(members.size(), 16, threads),
-                    [&](std::size_t first, std::size_t last) {
-                      for (std::size_t j = first; j < last; ++j) {
-                        const Aligned& a = prepared[members[j] - begin].aligned;
-                        const auto& s = a.column("strategy");
-                        const auto& rf = a.column("rate");
-                        for (Eigen::Index t = 0; t < Y.rows(); ++t)
-                          Y(t, static_cast<Eigen::Index>(j)) = s[t] - rf[t];
-                      }
-                    });
+    // The excess return r_s - r_f of member j, written where the fit wants it.
+    const auto response = [&](Eigen::Index j, Eigen::VectorXd& y) {
+      const Aligned& a = prepared[members[static_cast<std::size_t>(j)] - begin].aligned;
+      const auto& s = a.column("strategy");
+      const auto& rf = a.column("rate");
+      y.resize(static_cast<Eigen::Index>(s.size()));
+      for (Eigen::Index t = 0; t < y.size(); ++t) y(t) = s[t] - rf[t];
+    };
     std::vector<OlsResult> fits;
     try {
-      fits = fit_ols_many(d.X, Y, term_names_, true, settings_.covariance, settings_.confidence,
-                          threads);
+      fits = fit_ols_many(d.X, static_cast<Eigen::Index>(members.size()), response, term_names_,
+                          true, settings_.covariance, settings_.confidence, threads, keep_series);
     } catch (const Error&) {
       // One column can fail where others do not (e.g. an exact fit): fit them one by one.
       for (std::size_t j = 0; j < members.size(); ++j) {
         try {
-          Eigen::VectorXd y = Y.col(static_cast<Eigen::Index>(j));
+          Eigen::VectorXd y;
+          response(static_cast<Eigen::Index>(j), y);
           finish_member(members[j], fit_ols(d.X, y, term_names_, true, settings_.covariance,
                                             settings_.confidence));
         } catch (const Error& e) {

@@ -206,6 +206,7 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
 // does not allocate (and fault in fresh pages for) a T x k temporary per column.
 struct Workspace {
   Eigen::VectorXd f;           // solve_refined: y - r - X beta
+  Eigen::VectorXd residuals;   // y - X beta of the column being fitted
   std::vector<double> scores;  // robust_meat: T x k, row-major
 };
 
@@ -374,10 +375,11 @@ int resolve_lags(const CovarianceOptions& opts, int n) {
 
 // Fits one response on a factorized design; the single code path of fit_ols and fit_ols_many.
 // `crit` is the Student t quantile at 0.5 + confidence / 2 with T - k degrees of freedom, the
-// same for every column of a design.
-OlsResult fit_column(const Design& d, Eigen::Ref<const Eigen::VectorXd> y,
+// same for every column of a design. Without keep_series the result has no residuals and no
+// fitted values (a batch that drops them does not allocate them).
+OlsResult fit_column(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y,
                      const CovarianceOptions& opts, double confidence, double crit,
-                     const std::string& what, Workspace& ws) {
+                     const std::string& what, bool keep_series, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
   if (y.size() != d.n) {
     throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
@@ -400,10 +402,14 @@ OlsResult fit_column(const Design& d, Eigen::Ref<const Eigen::VectorXd> y,
   res.condition_number = d.condition_number;
   res.lags = resolve_lags(opts, d.n);
 
-  solve_refined(d, y, res.beta, res.residuals, ws);
-  res.fitted = X * res.beta;
+  Eigen::VectorXd& residuals = ws.residuals;
+  solve_refined(d, y, res.beta, residuals, ws);
+  if (keep_series) {
+    res.residuals = residuals;
+    res.fitted = X * res.beta;
+  }
 
-  res.rss = res.residuals.squaredNorm();
+  res.rss = residuals.squaredNorm();
   if (d.has_intercept) {
     res.tss = (y.array() - y.mean()).matrix().squaredNorm();
   } else {
@@ -443,7 +449,7 @@ OlsResult fit_column(const Design& d, Eigen::Ref<const Eigen::VectorXd> y,
     case ErrorKind::hc3:
     case ErrorKind::newey_west: {
       const ErrorKind weights = opts.kind == ErrorKind::hc1 ? ErrorKind::hc0 : opts.kind;
-      const Eigen::MatrixXd meat = robust_meat(d, res.residuals, weights, res.lags, ws);
+      const Eigen::MatrixXd meat = robust_meat(d, residuals, weights, res.lags, ws);
       Eigen::MatrixXd v = d.a * meat * d.a.transpose();
       res.covariance = 0.5 * (v + v.transpose());
       if (opts.kind == ErrorKind::hc1 ||
@@ -518,31 +524,30 @@ OlsResult fit_ols(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
   }
   const Design d = factorize(X, names, has_intercept);
   Workspace ws;
-  return fit_column(d, y, opts, confidence, critical_value(d, confidence), "the response", ws);
+  return fit_column(d, y, opts, confidence, critical_value(d, confidence), "the response", true,
+                    ws);
 }
 
-std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::MatrixXd& Y,
+std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, Eigen::Index m,
+                                    const ResponseColumn& response,
                                     const std::vector<std::string>& names, bool has_intercept,
-                                    const CovarianceOptions& opts, double confidence, int threads) {
+                                    const CovarianceOptions& opts, double confidence, int threads,
+                                    bool keep_series) {
   check_confidence(confidence);
-  if (Y.rows() != X.rows()) {
-    throw Error(ExitCode::failure, "fit_ols_many: " + std::to_string(Y.rows()) +
-                                       " response rows for " + std::to_string(X.rows()) +
-                                       " design rows; pass one row per period");
-  }
   const Design d = factorize(X, names, has_intercept);
   const double crit = critical_value(d, confidence);
-  const Eigen::Index m = Y.cols();
   std::vector<OlsResult> results(static_cast<std::size_t>(m));
   std::vector<std::exception_ptr> failures(static_cast<std::size_t>(m));
 
   auto run_range = [&](Eigen::Index begin, Eigen::Index end) {
     Workspace ws;
+    Eigen::VectorXd y(d.n);  // one response at a time: no T x m copy of the responses
     for (Eigen::Index j = begin; j < end; ++j) {
       try {
-        const Eigen::Ref<const Eigen::VectorXd> y = Y.col(j);
-        results[static_cast<std::size_t>(j)] = fit_column(
-            d, y, opts, confidence, crit, "response column " + std::to_string(j + 1), ws);
+        response(j, y);
+        results[static_cast<std::size_t>(j)] =
+            fit_column(d, y, opts, confidence, crit, "response column " + std::to_string(j + 1),
+                       keep_series, ws);
       } catch (...) {
         failures[static_cast<std::size_t>(j)] = std::current_exception();
       }
@@ -558,6 +563,19 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
     if (failure) std::rethrow_exception(failure);
   }
   return results;
+}
+
+std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::MatrixXd& Y,
+                                    const std::vector<std::string>& names, bool has_intercept,
+                                    const CovarianceOptions& opts, double confidence, int threads) {
+  if (Y.rows() != X.rows()) {
+    throw Error(ExitCode::failure, "fit_ols_many: " + std::to_string(Y.rows()) +
+                                       " response rows for " + std::to_string(X.rows()) +
+                                       " design rows; pass one row per period");
+  }
+  return fit_ols_many(
+      X, Y.cols(), [&](Eigen::Index j, Eigen::VectorXd& y) { y = Y.col(j); }, names, has_intercept,
+      opts, confidence, threads);
 }
 
 }  // namespace alphatrail::core

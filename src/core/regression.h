@@ -18,6 +18,7 @@
 #pragma once
 
 #include <Eigen/Dense>
+#include <functional>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -103,5 +104,19 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
                                     const std::vector<std::string>& names, bool has_intercept,
                                     const CovarianceOptions& opts, double confidence = 0.95,
                                     int threads = 0);
+
+// Writes response column j (T values, y already sized T) into y; called on worker threads.
+using ResponseColumn = std::function<void(Eigen::Index j, Eigen::VectorXd& y)>;
+
+// Fits m responses that `response` writes one at a time, as fit_ols_many on a matrix does
+// (the same results, bit for bit), without holding all of them in a T x m matrix. Without
+// keep_series the results have no residuals and no fitted values: a batch of thousands that
+// would drop them does not allocate them.
+// Example: fit_ols_many(X, 3, [&](Eigen::Index j, Eigen::VectorXd& y) { y = Y.col(j); }, ...).
+std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, Eigen::Index m,
+                                    const ResponseColumn& response,
+                                    const std::vector<std::string>& names, bool has_intercept,
+                                    const CovarianceOptions& opts, double confidence = 0.95,
+                                    int threads = 0, bool keep_series = true);
 
 }  // namespace alphatrail::core

@@ -384,6 +384,29 @@ TEST(Regression, BatchEqualsSingleFitsBitForBit) {
   }
 }
 
+// Responses written one at a time give the matrix batch's results bit for bit; without
+// keep_series they carry no residuals and no fitted values, and nothing else changes.
+TEST(Regression, BatchFromAResponseFunctionEqualsTheMatrixBatch) {
+  const Sample s = make_sample(300, 40, 29);
+  const CovarianceOptions opts{ErrorKind::newey_west, -1, false};
+  const auto from_matrix = fit_ols_many(s.X, s.Y, four_names, true, opts, 0.95, 2);
+  const auto response = [&](Eigen::Index j, Eigen::VectorXd& y) { y = s.Y.col(j); };
+  const auto kept = fit_ols_many(s.X, s.Y.cols(), response, four_names, true, opts, 0.95, 2, true);
+  const auto dropped =
+      fit_ols_many(s.X, s.Y.cols(), response, four_names, true, opts, 0.95, 2, false);
+  ASSERT_EQ(kept.size(), from_matrix.size());
+  ASSERT_EQ(dropped.size(), from_matrix.size());
+  for (std::size_t j = 0; j < from_matrix.size(); ++j) {
+    SCOPED_TRACE("strategy " + std::to_string(j));
+    expect_identical(kept[j], from_matrix[j]);
+    EXPECT_EQ(dropped[j].residuals.size(), 0);
+    EXPECT_EQ(dropped[j].fitted.size(), 0);
+    EXPECT_TRUE(dropped[j].covariance == from_matrix[j].covariance);
+    EXPECT_EQ(dropped[j].rss, from_matrix[j].rss);
+    EXPECT_EQ(dropped[j].coefficients[0].std_error, from_matrix[j].coefficients[0].std_error);
+  }
+}
+
 TEST(Regression, UncenteredRSquaredWithoutIntercept) {
   const Sample s = make_sample(100, 1, 29);
   const Eigen::MatrixXd X = s.X.rightCols(3);
