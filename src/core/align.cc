@@ -50,11 +50,13 @@ InputCoverage coverage_of(const NamedSeries& input) {
   InputCoverage c;
   c.name = input.name;
   const PeriodSeries& s = input.series;
-  for (std::size_t i = 0; i < s.size(); ++i) {
-    if (std::isnan(s.values[i])) continue;
-    if (!c.first) c.first = s.keys[i];
-    c.last = s.keys[i];
-  }
+  // The first and the last value from either end: usually the ends themselves.
+  const auto present = [](double v) { return !std::isnan(v); };
+  const auto first = std::find_if(s.values.begin(), s.values.end(), present);
+  if (first == s.values.end()) return c;
+  const auto last = std::find_if(s.values.rbegin(), s.values.rend(), present);
+  c.first = s.keys[static_cast<std::size_t>(first - s.values.begin())];
+  c.last = s.keys[static_cast<std::size_t>(s.values.rend() - last) - 1];
   return c;
 }
 

@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <map>
 #include <numeric>
@@ -76,6 +77,25 @@ struct PairStatistics {
   int up_periods = 0, down_periods = 0;
 };
 
+// A sum kept in kLanes partial sums, period t adding to lane t % kLanes, and added up in one
+// fixed order: the lanes are independent, so the processor works on several at once, and the
+// result depends on nothing but the data.
+constexpr std::size_t kLanes = 4;
+struct LaneSum {
+  std::array<double, kLanes> lane{};
+  void add(std::size_t l, double v) { lane[l] += v; }
+  double total() const { return (lane[0] + lane[1]) + (lane[2] + lane[3]); }
+};
+
+// Calls step(t, lane) for t = 0 .. T - 1, unrolled by kLanes so the lanes stay in registers.
+template <typename Step>
+void over_lanes(std::size_t T, const Step& step) {
+  std::size_t t = 0;
+  for (; t + kLanes <= T; t += kLanes)
+    for (std::size_t l = 0; l < kLanes; ++l) step(t + l, l);
+  for (; t < T; ++t) step(t, t % kLanes);
+}
+
 PairStatistics pair_statistics(const std::vector<double>& s, const std::vector<double>& m,
                                const std::vector<double>& rf) {
   PairStatistics out;
@@ -83,51 +103,50 @@ PairStatistics pair_statistics(const std::vector<double>& s, const std::vector<d
   if (T < 2) return out;
   // Each period is weighed by 0 or 1 for the up and down slopes rather than branched on,
   // since the sign of the market's excess return is what a processor cannot predict.
-  double sy = 0, sx = 0, sa = 0;
-  double n_up = 0, sx_up = 0, sy_up = 0, n_down = 0, sx_down = 0, sy_down = 0;
-  for (std::size_t t = 0; t < T; ++t) {
+  LaneSum sy, sx, sa, n_up, sx_up, sy_up, n_down, sx_down, sy_down;
+  over_lanes(T, [&](std::size_t t, std::size_t l) {
     const double y = s[t] - rf[t], x = m[t] - rf[t];
-    sy += y;
-    sx += x;
-    sa += s[t] - m[t];
+    sy.add(l, y);
+    sx.add(l, x);
+    sa.add(l, s[t] - m[t]);
     const auto up = static_cast<double>(x > 0), down = static_cast<double>(x < 0);
-    n_up += up;
-    sx_up += up * x;
-    sy_up += up * y;
-    n_down += down;
-    sx_down += down * x;
-    sy_down += down * y;
-  }
+    n_up.add(l, up);
+    sx_up.add(l, up * x);
+    sy_up.add(l, up * y);
+    n_down.add(l, down);
+    sx_down.add(l, down * x);
+    sy_down.add(l, down * y);
+  });
   const auto n = static_cast<double>(T);
-  out.mean_y = sy / n;
-  out.mean_x = sx / n;
-  out.mean_a = sa / n;
-  const double mx_up = sx_up / n_up, my_up = sy_up / n_up;
-  const double mx_down = sx_down / n_down, my_down = sy_down / n_down;
-  double syy = 0, sxx = 0, sxy = 0, saa = 0;
-  double sxy_up = 0, sxx_up = 0, sxy_down = 0, sxx_down = 0;
-  for (std::size_t t = 0; t < T; ++t) {
+  out.mean_y = sy.total() / n;
+  out.mean_x = sx.total() / n;
+  out.mean_a = sa.total() / n;
+  const double ups = n_up.total(), downs = n_down.total();
+  const double mx_up = sx_up.total() / ups, my_up = sy_up.total() / ups;
+  const double mx_down = sx_down.total() / downs, my_down = sy_down.total() / downs;
+  LaneSum syy, sxx, sxy, saa, sxy_up, sxx_up, sxy_down, sxx_down;
+  over_lanes(T, [&](std::size_t t, std::size_t l) {
     const double y = s[t] - rf[t], x = m[t] - rf[t];
     const double dy = y - out.mean_y, dx = x - out.mean_x, da = (s[t] - m[t]) - out.mean_a;
-    syy += dy * dy;
-    sxx += dx * dx;
-    sxy += dx * dy;
-    saa += da * da;
+    syy.add(l, dy * dy);
+    sxx.add(l, dx * dx);
+    sxy.add(l, dx * dy);
+    saa.add(l, da * da);
     const auto up = static_cast<double>(x > 0), down = static_cast<double>(x < 0);
     const double dx_up = up * (x - mx_up), dx_down = down * (x - mx_down);
-    sxy_up += dx_up * (y - my_up);
-    sxx_up += dx_up * (x - mx_up);
-    sxy_down += dx_down * (y - my_down);
-    sxx_down += dx_down * (x - mx_down);
-  }
-  out.sd_y = std::sqrt(syy / (n - 1));
-  out.sd_x = std::sqrt(sxx / (n - 1));
-  out.sd_a = std::sqrt(saa / (n - 1));
-  out.correlation = sxy / std::sqrt(sxx * syy);
-  out.up_periods = static_cast<int>(n_up);
-  out.down_periods = static_cast<int>(n_down);
-  if (n_up >= 3 && sxx_up > 0) out.up_beta = sxy_up / sxx_up;
-  if (n_down >= 3 && sxx_down > 0) out.down_beta = sxy_down / sxx_down;
+    sxy_up.add(l, dx_up * (y - my_up));
+    sxx_up.add(l, dx_up * (x - mx_up));
+    sxy_down.add(l, dx_down * (y - my_down));
+    sxx_down.add(l, dx_down * (x - mx_down));
+  });
+  out.sd_y = std::sqrt(syy.total() / (n - 1));
+  out.sd_x = std::sqrt(sxx.total() / (n - 1));
+  out.sd_a = std::sqrt(saa.total() / (n - 1));
+  out.correlation = sxy.total() / std::sqrt(sxx.total() * syy.total());
+  out.up_periods = static_cast<int>(ups);
+  out.down_periods = static_cast<int>(downs);
+  if (ups >= 3 && sxx_up.total() > 0) out.up_beta = sxy_up.total() / sxx_up.total();
+  if (downs >= 3 && sxx_down.total() > 0) out.down_beta = sxy_down.total() / sxx_down.total();
   return out;
 }
 

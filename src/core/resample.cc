@@ -129,9 +129,16 @@ Resampled compound_returns(const DatedSeries& returns, Frequency target, Frequen
     // loop below would give 0 + r + 0 r, which is r but for the sign of a zero), and validate
     // has checked the dates ascend.
     s.keys.assign(dates.begin(), dates.end());
-    for (const double r : returns.values) s.values.push_back(std::isnan(r) ? NAN : r + 0.0);
-    for (std::size_t i = 0; i < s.keys.size(); ++i)
-      if (std::isnan(s.values[i])) out.report.missing.push_back(s.keys[i]);
+    s.values.resize(dates.size());
+    std::size_t missing = 0;
+    for (std::size_t i = 0; i < dates.size(); ++i) {
+      const double r = returns.values[i];
+      s.values[i] = std::isnan(r) ? NAN : r + 0.0;
+      missing += std::isnan(r) ? 1 : 0;
+    }
+    if (missing > 0)
+      for (std::size_t i = 0; i < s.keys.size(); ++i)
+        if (std::isnan(s.values[i])) out.report.missing.push_back(s.keys[i]);
     return out;
   }
   // Compounded as R <- R + r + R r, i.e. (1 + R)(1 + r) - 1, which keeps a single return exact
