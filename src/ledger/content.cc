@@ -56,19 +56,17 @@ std::optional<core::Day> read_date(const char* p) {
                           name, at));
 }
 
-// Copies n little-endian words of T from bytes into out; a plain copy on little-endian hosts.
+// Turns n little-endian words in place into the host's order: nothing on little-endian hosts.
 template <typename T, typename Word>
-void read_little_endian(const char* bytes, std::size_t n, T* out) {
+void to_host_order(T* words, std::size_t n) {
   static_assert(sizeof(T) == sizeof(Word));
-  if (n == 0) return;  // memcpy must not see the null pointers of empty buffers
-  if constexpr (std::endian::native == std::endian::little) {
-    std::memcpy(out, bytes, n * sizeof(T));
-  } else {
+  if constexpr (std::endian::native != std::endian::little) {
     for (std::size_t i = 0; i < n; ++i) {
+      unsigned char bytes[sizeof(Word)];
+      std::memcpy(bytes, words + i, sizeof bytes);
       Word w = 0;
-      for (std::size_t b = 0; b < sizeof(Word); ++b)
-        w |= static_cast<Word>(static_cast<unsigned char>(bytes[i * sizeof(Word) + b])) << (8 * b);
-      std::memcpy(out + i, &w, sizeof w);
+      for (std::size_t b = 0; b < sizeof(Word); ++b) w |= static_cast<Word>(bytes[b]) << (8 * b);
+      std::memcpy(words + i, &w, sizeof w);
     }
   }
 }
@@ -109,29 +107,44 @@ PackedColumn encode_packed(const ColumnData& column) {
   return packed;
 }
 
-ColumnData decode_packed(const std::string& name, std::string_view days, std::string_view numbers) {
-  if (days.size() % 4 != 0 || numbers.size() != 2 * days.size())
+ColumnData packed_column_shape(const std::string& name, std::size_t days_bytes,
+                               std::size_t numbers_bytes) {
+  if (days_bytes % 4 != 0 || numbers_bytes != 2 * days_bytes)
     corrupted_packing(name, fmt::format("{} bytes of days and {} bytes of numbers (expected 4 "
                                         "and 8 bytes an observation)",
-                                        days.size(), numbers.size()));
-  const std::size_t n = days.size() / 4;
-  ColumnData column{name, std::vector<core::Day>(n), std::vector<double>(n)};
-  read_little_endian<core::Day, std::uint32_t>(days.data(), n, column.dates.data());
-  read_little_endian<double, std::uint64_t>(numbers.data(), n, column.values.data());
+                                        days_bytes, numbers_bytes));
+  const std::size_t n = days_bytes / 4;
+  return ColumnData{name, std::vector<core::Day>(n), std::vector<double>(n)};
+}
+
+void finish_packed(ColumnData& column) {
+  const std::size_t n = column.dates.size();
+  to_host_order<core::Day, std::uint32_t>(column.dates.data(), n);
+  to_host_order<double, std::uint64_t>(column.values.data(), n);
   // Dates ascending, unique and within the JSON's years, as decode_values_json guarantees to
   // everything downstream (date arithmetic overflows far outside them).
   const auto out_of_order =
       std::adjacent_find(column.dates.begin(), column.dates.end(), std::greater_equal<>());
   if (out_of_order != column.dates.end())
-    corrupted_packing(name, fmt::format("its dates are not ascending at observation {}",
-                                        out_of_order - column.dates.begin() + 2));
+    corrupted_packing(column.name, fmt::format("its dates are not ascending at observation {}",
+                                               out_of_order - column.dates.begin() + 2));
   if (n > 0 && (column.dates.front() < kFirstStoredDay || column.dates.back() > kLastStoredDay)) {
     const bool early = column.dates.front() < kFirstStoredDay;
     corrupted_packing(
-        name, fmt::format("observation {} has day number {}, outside 0000-01-01 .. "
-                          "9999-12-31",
-                          early ? 1 : n, early ? column.dates.front() : column.dates.back()));
+        column.name,
+        fmt::format("observation {} has day number {}, outside 0000-01-01 .. "
+                    "9999-12-31",
+                    early ? 1 : n, early ? column.dates.front() : column.dates.back()));
   }
+}
+
+ColumnData decode_packed(const std::string& name, std::string_view days, std::string_view numbers) {
+  ColumnData column = packed_column_shape(name, days.size(), numbers.size());
+  if (!days.empty()) {  // memcpy must not see the null pointers of empty buffers
+    std::memcpy(column.dates.data(), days.data(), days.size());
+    std::memcpy(column.values.data(), numbers.data(), numbers.size());
+  }
+  finish_packed(column);
   return column;
 }
 

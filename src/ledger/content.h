@@ -56,6 +56,13 @@ PackedColumn encode_packed(const ColumnData& column);
 // a date lies outside kFirstStoredDay .. kLastStoredDay.
 ColumnData decode_packed(const std::string& name, std::string_view days, std::string_view numbers);
 
+// The two halves of decode_packed, for a reader that copies the packed bytes straight into
+// the column: the column sized for the byte counts (throws Error(ledger) when they disagree),
+// then, once the bytes are in, put in the host's byte order and checked as decode_packed does.
+ColumnData packed_column_shape(const std::string& name, std::size_t days_bytes,
+                               std::size_t numbers_bytes);
+void finish_packed(ColumnData& column);
+
 struct EncodedColumn {
   std::string name;
   std::string values_json;

@@ -3,6 +3,7 @@
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 #include <pwd.h>
+#include <sqlite3.h>
 #include <unistd.h>
 
 #include <algorithm>
@@ -320,6 +321,51 @@ std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name
 
 namespace {
 
+// Reads packed copies straight into a column's vectors with SQLite's incremental blob I/O,
+// instead of having SQLite first assemble each blob in a buffer of its own (a third copy of
+// every observation). Owns two blob handles, moved from row to row; one reader per load.
+class PackedReader {
+ public:
+  explicit PackedReader(SQLite::Database& db) : db_(db.getHandle()) {}
+  ~PackedReader() {
+    sqlite3_blob_close(days_);
+    sqlite3_blob_close(numbers_);
+  }
+  PackedReader(const PackedReader&) = delete;
+  PackedReader& operator=(const PackedReader&) = delete;
+
+  // Returns the column stored as packed_columns row column_id; throws Error(ledger) when the
+  // copy is corrupted or cannot be read.
+  ColumnData read(const std::string& name, std::int64_t column_id, std::int64_t days_bytes,
+                  std::int64_t numbers_bytes) {
+    ColumnData column = packed_column_shape(name, static_cast<std::size_t>(days_bytes),
+                                            static_cast<std::size_t>(numbers_bytes));
+    read_blob(days_, "days", column_id, column.dates.data(), days_bytes, name);
+    read_blob(numbers_, "numbers", column_id, column.values.data(), numbers_bytes, name);
+    finish_packed(column);
+    return column;
+  }
+
+ private:
+  void read_blob(sqlite3_blob*& handle, const char* field, std::int64_t row, void* out,
+                 std::int64_t bytes, const std::string& name) {
+    int rc = handle == nullptr
+                 ? sqlite3_blob_open(db_, "main", "packed_columns", field, row, 0, &handle)
+                 : sqlite3_blob_reopen(handle, row);
+    if (rc == SQLITE_OK && bytes > 0)
+      rc = sqlite3_blob_read(handle, out, static_cast<int>(bytes), 0);
+    if (rc != SQLITE_OK)
+      throw Error(ExitCode::ledger,
+                  fmt::format("cannot read the packed copy of column '{}': {}; run `alphatrail "
+                              "verify`",
+                              name, sqlite3_errstr(rc)));
+  }
+
+  sqlite3* db_;
+  sqlite3_blob* days_ = nullptr;
+  sqlite3_blob* numbers_ = nullptr;
+};
+
 // Returns the version row a request names; throws Error(not_found) when there is none.
 VersionInfo find_version(Ledger& ledger, const VersionRequest& request) {
   const auto& [name, version] = request;
@@ -415,27 +461,26 @@ std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<Version
     }
     arrived.notify_all();
   };
+  PackedReader packed(ledger.db());
   const auto read_all = [&] {
     for (std::size_t r = 0; r < versions.size(); ++r) {
       loaded[r].info = std::move(versions[r]);
-      // values_json is only read (SQLite fetches a column lazily) when there is no packed copy.
+      // values_json is only read (SQLite fetches a column lazily) when there is no packed copy;
+      // the packed blobs' lengths come from the record header, their bytes from `packed`.
       auto cols = ledger.statement(
-          "SELECT c.column_name, p.days, p.numbers, CASE WHEN p.column_id IS NULL THEN "
-          "c.values_json END FROM version_columns c LEFT JOIN packed_columns p ON p.column_id = "
-          "c.column_id WHERE c.version_id = ? ORDER BY c.position");
+          "SELECT c.column_name, p.column_id, length(p.days), length(p.numbers), CASE WHEN "
+          "p.column_id IS NULL THEN c.values_json END FROM version_columns c LEFT JOIN "
+          "packed_columns p ON p.column_id = c.column_id WHERE c.version_id = ? ORDER BY "
+          "c.position");
       cols->bind(1, loaded[r].info.version_id);
       while (cols->executeStep()) {
         Pending item{r, cols->getColumn(0).getString(), {}, {}};
-        if (const SQLite::Column days = cols->getColumn(1); !days.isNull()) {
-          const SQLite::Column numbers = cols->getColumn(2);
-          item.column = decode_packed(
-              item.name,
-              {static_cast<const char*>(days.getBlob()), static_cast<std::size_t>(days.getBytes())},
-              {static_cast<const char*>(numbers.getBlob()),
-               static_cast<std::size_t>(numbers.getBytes())});
+        if (const SQLite::Column id = cols->getColumn(1); !id.isNull()) {
+          item.column = packed.read(item.name, id.getInt64(), cols->getColumn(2).getInt64(),
+                                    cols->getColumn(3).getInt64());
           item.decoded = true;
         } else {
-          const SQLite::Column json = cols->getColumn(3);
+          const SQLite::Column json = cols->getColumn(4);
           item.text.assign(static_cast<const char*>(json.getText()),
                            static_cast<std::size_t>(json.getBytes()));
         }
