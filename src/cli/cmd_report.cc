@@ -70,7 +70,7 @@ void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
   auto pending = evaluate_request(ledger, request);
   const PendingRun& p = pending.front();
   const std::string recomputed =
-      ledger::inputs_hash(kEngineVersion, p.run.parameters.dump(), p.run.inputs);
+      ledger::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
   in.reproduction =
       recomputed == in.run["inputs_hash"].get<std::string>()
           ? "recomputed from the run's own input versions and parameters; inputs hash identical"

@@ -23,7 +23,7 @@ void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
   auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
   const auto& p = pending.front();
   const std::string recomputed_hash =
-      ledger::inputs_hash(kEngineVersion, p.run.parameters.dump(), p.run.inputs);
+      ledger::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
 
   // The reading counts runs in the ledger, so compare the figures, not the words.
   auto stored = nlohmann::ordered_json::parse(row->result_json);

@@ -149,7 +149,7 @@ struct Plan {
   core::Frequency frequency;
   std::string tenor;
   bool tenor_given;
-  nlohmann::json parameters;
+  std::string parameters_json;       // canonical: sorted keys, every default written out
   std::vector<std::size_t> members;  // indices into the strategy list
   int rolling_window = 0;            // N periods; 0: none
 };
@@ -280,7 +280,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
     nlohmann::json factor_params = nlohmann::json::array();
     for (const auto& fc : factors)
       factor_params.push_back({{"set", fc.version.info.name}, {"columns", fc.columns}});
-    plan.parameters = {
+    const nlohmann::json parameters = {
         {"model", factors.empty() ? "single-index" : "multi-factor"},
         {"frequency", core::frequency_name(f)},
         {"frequency_rule", rq.frequency.empty() ? "lowest among the inputs" : "given"},
@@ -304,6 +304,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
         {"returns", "simple returns, compounded within a period"},
         {"rolling_window",
          plan.rolling_window > 0 ? nlohmann::json(plan.rolling_window) : nlohmann::json()}};
+    plan.parameters_json = parameters.dump();
   }
 
   std::string factor_label;
@@ -329,7 +330,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
     run.study = rq.study;
     run.note = rq.note;
     run.revises_run_id = rq.revises_run_id;
-    run.parameters = plan.parameters;
+    run.parameters_json = plan.parameters_json;
     run.inputs.push_back(input_of("strategy", 1, strategy, {strategy.name}));
     run.inputs.push_back(
         input_of("benchmark", 1, benchmark.info, {benchmark.info.columns.front()}));

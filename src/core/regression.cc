@@ -327,7 +327,10 @@ Eigen::MatrixXd robust_meat(const Design& d, const Eigen::VectorXd& e, ErrorKind
   // Row-major, so the k scores of a period are together, between rows of zeros (see
   // add_window_products).
   std::vector<double>& u = ws.scores;
-  u.assign(static_cast<std::size_t>(n + 2 * lags + 1) * k, 0.0);
+  const auto pad = static_cast<std::size_t>(lags + 1) * k;  // zeros before; lags * k after
+  u.resize(static_cast<std::size_t>(n + 2 * lags + 1) * k);
+  std::fill(u.begin(), u.begin() + static_cast<std::ptrdiff_t>(pad), 0.0);
+  std::fill(u.end() - static_cast<std::ptrdiff_t>(pad - k), u.end(), 0.0);
   const bool leverage_weighted = kind == ErrorKind::hc2 || kind == ErrorKind::hc3;
   for (int t = 0; t < n; ++t) {
     double factor = e(t);

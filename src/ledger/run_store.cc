@@ -216,7 +216,7 @@ RunRow draft_row(const NewRun& run, std::int64_t run_id, const std::string& crea
   row.study = non_empty(run.study);
   row.note = non_empty(run.note);
   row.revises_run_id = run.revises_run_id;
-  row.parameters_json = run.parameters.dump();
+  row.parameters_json = run.parameters_json;
   row.inputs_hash = inputs_hash(kEngineVersion, row.parameters_json, run.inputs);
   row.frequency = core::frequency_name(r.sample.frequency);
   row.first_period = r.sample.first;

@@ -46,7 +46,7 @@ struct NewRun {
   std::string study;
   std::string note;
   std::optional<std::int64_t> revises_run_id;
-  nlohmann::json parameters;  // canonical: sorted keys, every default written out
+  std::string parameters_json;  // canonical JSON: sorted keys, every default written out
   std::vector<RunInput> inputs;
   const core::EvaluationResult* result = nullptr;
   std::vector<std::string> reading;
