@@ -288,14 +288,19 @@ TEST_F(VerifyLedgerTest, EditedPackedDateOrMissingValueIsAMismatch) {
                   alphatrail::core::format_date(before.column.dates[4] + 1)));
   EXPECT_EQ(lines.size(), 1u) << joined(lines);
 
+  // Writes value i of the packed copy as the given bytes (hex), on a fresh copy of the ledger.
+  const auto replace_value = [&](std::size_t i, const std::string& bytes_hex) {
+    copy_ledger(base(), ledger_path());
+    std::string numbers = before.numbers_hex;
+    numbers.replace(16 * i, 16, bytes_hex);
+    tamper(ledger_path(), {"packed_columns_no_update"},
+           {"UPDATE packed_columns SET numbers = x'" + numbers +
+            "' WHERE column_id = " + kTrend6mColumn});
+  };
+
   // A value made missing (NaN) in the packed copy only.
   ASSERT_TRUE(std::isfinite(before.column.values[2]));
-  copy_ledger(base(), ledger_path());
-  std::string numbers = before.numbers_hex;
-  numbers.replace(16 * 2, 16, hex_of(std::numeric_limits<double>::quiet_NaN()));
-  tamper(ledger_path(), {"packed_columns_no_update"},
-         {"UPDATE packed_columns SET numbers = x'" + numbers +
-          "' WHERE column_id = " + kTrend6mColumn});
+  replace_value(2, hex_of(std::numeric_limits<double>::quiet_NaN()));
   lines = expect_mismatch(
       "series trend-6m version 1",
       fmt::format("the value of {} is {} in values_json but null in the "
@@ -304,12 +309,7 @@ TEST_F(VerifyLedgerTest, EditedPackedDateOrMissingValueIsAMismatch) {
   EXPECT_EQ(lines.size(), 1u) << joined(lines);
 
   // Any NaN but the one the packed form writes for null is a different value.
-  copy_ledger(base(), ledger_path());
-  numbers = before.numbers_hex;
-  numbers.replace(16 * 3, 16, "010000000000F87F");
-  tamper(ledger_path(), {"packed_columns_no_update"},
-         {"UPDATE packed_columns SET numbers = x'" + numbers +
-          "' WHERE column_id = " + kTrend6mColumn});
+  replace_value(3, "010000000000F87F");
   lines = expect_mismatch(
       "series trend-6m version 1",
       fmt::format("the value of {} is {} in values_json but NaN "
