@@ -23,11 +23,6 @@ namespace {
 
 using ordered_json = nlohmann::ordered_json;
 
-ordered_json number(double v) {
-  if (!std::isfinite(v)) return nullptr;
-  return v;
-}
-
 // Text of a double that survives a round trip through SQLite: NaN is stored as NULL.
 std::string canonical_double(double v) {
   if (std::isnan(v)) return "null";
@@ -79,97 +74,212 @@ std::string inputs_hash(const std::string& engine_version, const std::string& pa
 
 namespace {
 
+// Writes JSON text in the compact form nlohmann-json dumps (the form result_json has always
+// been stored in) without building a document first: keys and punctuation are written here,
+// every value and every key that is not a plain literal by nlohmann-json itself, so numbers
+// and strings are formatted exactly as a dump formats them. A run's result is written for
+// every run of a batch; building and dumping a document was most of the cost of recording.
+class JsonText {
+ public:
+  void begin_object() { open('{'); }
+  void end_object() { close('}'); }
+  void begin_array() { open('['); }
+  void end_array() { close(']'); }
+  // Writes a key that is a plain literal: no quote, backslash or control character.
+  void key(std::string_view literal) {
+    separate();
+    out_ += '"';
+    out_ += literal;
+    out_ += "\":";
+    after_key_ = true;
+  }
+  // Writes a key from data, escaped as nlohmann-json escapes it.
+  void data_key(const std::string& text) {
+    separate();
+    out_ += nlohmann::ordered_json(text).dump();
+    out_ += ':';
+    after_key_ = true;
+  }
+  template <typename T>
+  void value(const T& v) {
+    separate();
+    out_ += nlohmann::ordered_json(v).dump();
+  }
+  // A finite number as itself, NaN and infinities as null.
+  void number(double v) {
+    if (std::isfinite(v))
+      value(v);
+    else
+      value(nullptr);
+  }
+  template <typename T>
+  void field(std::string_view literal, const T& v) {
+    key(literal);
+    value(v);
+  }
+  void number_field(std::string_view literal, double v) {
+    key(literal);
+    number(v);
+  }
+  void strings(std::string_view literal, const std::vector<std::string>& texts) {
+    key(literal);
+    begin_array();
+    for (const auto& t : texts) value(t);
+    end_array();
+  }
+  std::string take() { return std::move(out_); }
+
+ private:
+  void separate() {
+    if (after_key_) {
+      after_key_ = false;
+    } else if (!first_.empty()) {
+      if (!first_.back()) out_ += ',';
+      first_.back() = false;
+    }
+  }
+  void open(char c) {
+    separate();
+    out_ += c;
+    first_.push_back(true);
+  }
+  void close(char c) {
+    out_ += c;
+    first_.pop_back();
+  }
+
+  std::string out_;
+  std::vector<bool> first_;  // per open object or array: nothing written in it yet
+  bool after_key_ = false;
+};
+
 // The rolling estimates of a run: null when none were asked for (see schema/ledger.sql,
 // view run_windows).
-ordered_json rolling_json(const core::EvaluationResult& r) {
-  if (r.rolling_window <= 0) return nullptr;
-  ordered_json windows = ordered_json::array();
-  for (const auto& w : r.rolling)
-    windows.push_back({{"end", w.end},
-                       {"first", w.first},
-                       {"observations", w.observations},
-                       {"lags", w.lags},
-                       {"alpha", number(w.alpha)},
-                       {"alpha_std_error", number(w.alpha_std_error)},
-                       {"alpha_ci_low", number(w.alpha_ci_low)},
-                       {"alpha_ci_high", number(w.alpha_ci_high)},
-                       {"alpha_annualized", number(w.alpha_annualized)},
-                       {"alpha_annualized_ci_low", number(w.alpha_annualized_ci_low)},
-                       {"alpha_annualized_ci_high", number(w.alpha_annualized_ci_high)},
-                       {"beta", number(w.beta)},
-                       {"beta_std_error", number(w.beta_std_error)},
-                       {"beta_ci_low", number(w.beta_ci_low)},
-                       {"beta_ci_high", number(w.beta_ci_high)}});
-  return {{"window", r.rolling_window},
-          {"errors", core::error_kind_name(r.fit.errors)},
-          {"lag_rule", r.rolling_auto_lags ? "auto" : "fixed"},
-          {"confidence", r.fit.confidence},
-          {"annualize", core::annualize_name(r.annualize)},
-          {"windows", windows}};
+void write_rolling(JsonText& j, const core::EvaluationResult& r) {
+  j.key("rolling");
+  if (r.rolling_window <= 0) return j.value(nullptr);
+  j.begin_object();
+  j.field("window", r.rolling_window);
+  j.field("errors", core::error_kind_name(r.fit.errors));
+  j.field("lag_rule", r.rolling_auto_lags ? "auto" : "fixed");
+  j.field("confidence", r.fit.confidence);
+  j.field("annualize", core::annualize_name(r.annualize));
+  j.key("windows");
+  j.begin_array();
+  for (const auto& w : r.rolling) {
+    j.begin_object();
+    j.field("end", w.end);
+    j.field("first", w.first);
+    j.field("observations", w.observations);
+    j.field("lags", w.lags);
+    j.number_field("alpha", w.alpha);
+    j.number_field("alpha_std_error", w.alpha_std_error);
+    j.number_field("alpha_ci_low", w.alpha_ci_low);
+    j.number_field("alpha_ci_high", w.alpha_ci_high);
+    j.number_field("alpha_annualized", w.alpha_annualized);
+    j.number_field("alpha_annualized_ci_low", w.alpha_annualized_ci_low);
+    j.number_field("alpha_annualized_ci_high", w.alpha_annualized_ci_high);
+    j.number_field("beta", w.beta);
+    j.number_field("beta_std_error", w.beta_std_error);
+    j.number_field("beta_ci_low", w.beta_ci_low);
+    j.number_field("beta_ci_high", w.beta_ci_high);
+    j.end_object();
+  }
+  j.end_array();
+  j.end_object();
 }
 
 }  // namespace
 
-ordered_json result_json(const core::EvaluationResult& r, const std::vector<std::string>& reading) {
+std::string result_json_text(const core::EvaluationResult& r,
+                             const std::vector<std::string>& reading) {
   const auto& fit = r.fit;
   const auto& d = r.derived;
-  ordered_json dropped = ordered_json::array();
-  for (const auto& p : r.sample.dropped)
-    dropped.push_back({{"period", p.label}, {"reason", p.reason}});
-  ordered_json by_reason = ordered_json::object();
-  for (const auto& [reason, count] : r.sample.dropped_by_reason) by_reason[reason] = count;
-  ordered_json sample = {{"first", r.sample.first},
-                         {"last", r.sample.last},
-                         {"observations", r.sample.observations},
-                         {"frequency", core::frequency_name(r.sample.frequency)},
-                         {"periods_per_year", d.periods_per_year},
-                         {"dropped", r.sample.dropped.size()},
-                         {"dropped_by_reason", by_reason},
-                         {"dropped_periods", dropped},
-                         {"gaps", r.sample.gaps}};
-  ordered_json coefficients = ordered_json::array();
-  for (const auto& c : fit.coefficients)
-    coefficients.push_back({{"term", c.term},
-                            {"estimate", number(c.estimate)},
-                            {"std_error", number(c.std_error)},
-                            {"t_stat", number(c.t_stat)},
-                            {"p_value", number(c.p_value)},
-                            {"ci_low", number(c.ci_low)},
-                            {"ci_high", number(c.ci_high)}});
-  ordered_json statistics = {{"r_squared", number(fit.r_squared)},
-                             {"adj_r_squared", number(fit.adj_r_squared)},
-                             {"residual_std", number(fit.residual_std)},
-                             {"f_stat", number(fit.f_stat)},
-                             {"f_p_value", number(fit.f_p_value)},
-                             {"observations", fit.n},
-                             {"coefficients", fit.k},
-                             {"degrees_of_freedom", fit.df},
-                             {"errors", core::error_kind_name(fit.errors)},
-                             {"lags", fit.lags},
-                             {"small_sample_factor", fit.small_sample_applied},
-                             {"confidence", fit.confidence},
-                             {"condition_number", number(fit.condition_number)},
-                             {"alpha_annualized", number(d.alpha_annualized)},
-                             {"appraisal_ratio", number(d.appraisal_ratio)},
-                             {"sharpe_strategy", number(d.sharpe_strategy)},
-                             {"sharpe_benchmark", number(d.sharpe_benchmark)},
-                             {"treynor_ratio", number(d.treynor_ratio)},
-                             {"tracking_error", number(d.tracking_error)},
-                             {"information_ratio", number(d.information_ratio)},
-                             {"correlation", number(d.correlation)},
-                             {"mean_excess_strategy", number(d.mean_excess_strategy)},
-                             {"mean_excess_benchmark", number(d.mean_excess_benchmark)},
-                             {"up_market_beta", number(d.up_market_beta)},
-                             {"down_market_beta", number(d.down_market_beta)},
-                             {"up_periods", d.up_periods},
-                             {"down_periods", d.down_periods}};
-  return {{"sample", sample},
-          {"coefficients", coefficients},
-          {"statistics", statistics},
-          {"reading", reading},
-          {"preparation", r.sample.preparation},
-          {"warnings", r.sample.warnings},
-          {"rolling", rolling_json(r)}};
+  JsonText j;
+  j.begin_object();
+  j.key("sample");
+  j.begin_object();
+  j.field("first", r.sample.first);
+  j.field("last", r.sample.last);
+  j.field("observations", r.sample.observations);
+  j.field("frequency", core::frequency_name(r.sample.frequency));
+  j.field("periods_per_year", d.periods_per_year);
+  j.field("dropped", r.sample.dropped.size());
+  j.key("dropped_by_reason");
+  j.begin_object();
+  for (const auto& [reason, count] : r.sample.dropped_by_reason) {
+    j.data_key(reason);
+    j.value(count);
+  }
+  j.end_object();
+  j.key("dropped_periods");
+  j.begin_array();
+  for (const auto& p : r.sample.dropped) {
+    j.begin_object();
+    j.field("period", p.label);
+    j.field("reason", p.reason);
+    j.end_object();
+  }
+  j.end_array();
+  j.strings("gaps", r.sample.gaps);
+  j.end_object();
+
+  j.key("coefficients");
+  j.begin_array();
+  for (const auto& c : fit.coefficients) {
+    j.begin_object();
+    j.field("term", c.term);
+    j.number_field("estimate", c.estimate);
+    j.number_field("std_error", c.std_error);
+    j.number_field("t_stat", c.t_stat);
+    j.number_field("p_value", c.p_value);
+    j.number_field("ci_low", c.ci_low);
+    j.number_field("ci_high", c.ci_high);
+    j.end_object();
+  }
+  j.end_array();
+
+  j.key("statistics");
+  j.begin_object();
+  j.number_field("r_squared", fit.r_squared);
+  j.number_field("adj_r_squared", fit.adj_r_squared);
+  j.number_field("residual_std", fit.residual_std);
+  j.number_field("f_stat", fit.f_stat);
+  j.number_field("f_p_value", fit.f_p_value);
+  j.field("observations", fit.n);
+  j.field("coefficients", fit.k);
+  j.field("degrees_of_freedom", fit.df);
+  j.field("errors", core::error_kind_name(fit.errors));
+  j.field("lags", fit.lags);
+  j.field("small_sample_factor", fit.small_sample_applied);
+  j.field("confidence", fit.confidence);
+  j.number_field("condition_number", fit.condition_number);
+  j.number_field("alpha_annualized", d.alpha_annualized);
+  j.number_field("appraisal_ratio", d.appraisal_ratio);
+  j.number_field("sharpe_strategy", d.sharpe_strategy);
+  j.number_field("sharpe_benchmark", d.sharpe_benchmark);
+  j.number_field("treynor_ratio", d.treynor_ratio);
+  j.number_field("tracking_error", d.tracking_error);
+  j.number_field("information_ratio", d.information_ratio);
+  j.number_field("correlation", d.correlation);
+  j.number_field("mean_excess_strategy", d.mean_excess_strategy);
+  j.number_field("mean_excess_benchmark", d.mean_excess_benchmark);
+  j.number_field("up_market_beta", d.up_market_beta);
+  j.number_field("down_market_beta", d.down_market_beta);
+  j.field("up_periods", d.up_periods);
+  j.field("down_periods", d.down_periods);
+  j.end_object();
+
+  j.strings("reading", reading);
+  j.strings("preparation", r.sample.preparation);
+  j.strings("warnings", r.sample.warnings);
+  write_rolling(j, r);
+  j.end_object();
+  return j.take();
+}
+
+ordered_json result_json(const core::EvaluationResult& r, const std::vector<std::string>& reading) {
+  return ordered_json::parse(result_json_text(r, reading));
 }
 
 namespace {
@@ -233,7 +343,7 @@ RunRow draft_row(const NewRun& run, std::int64_t run_id, const std::string& crea
   row.beta = beta.estimate;
   row.beta_t = beta.t_stat;
   row.r_squared = r.fit.r_squared;
-  row.result_json = result_json(r, run.reading).dump();
+  row.result_json = result_json_text(r, run.reading);
   for (const auto& in : run.inputs)
     row.inputs.push_back(
         {in.role, in.position, in.version_id, fmt::format("{}", fmt::join(in.columns, ","))});

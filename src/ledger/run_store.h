@@ -53,7 +53,12 @@ struct NewRun {
 };
 
 // Returns the result part of a run (sample, coefficients, statistics, reading, preparation,
-// warnings, rolling) as it is stored in runs.result_json.
+// warnings, rolling) as the text stored in runs.result_json: nlohmann-json's compact dump of
+// it, non-finite numbers as null.
+std::string result_json_text(const core::EvaluationResult& result,
+                             const std::vector<std::string>& reading);
+
+// Returns the same as a JSON document.
 nlohmann::ordered_json result_json(const core::EvaluationResult& result,
                                    const std::vector<std::string>& reading);
 
