@@ -688,6 +688,7 @@ void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std
                   "beta", "R2",       "errors"};
   table.right_aligned = {true, false, true, true, true, true, true, true, true, false};
   ledger::RunFilter filter;
+  filter.staleness = false;  // runs just recorded are not stale, and the table has no column for it
   if (!runs.empty()) {
     filter.first_run = *std::min_element(runs.begin(), runs.end());
     filter.last_run = *std::max_element(runs.begin(), runs.end());

@@ -686,16 +686,18 @@ std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter) {
       ledger.db(),
       "SELECT r.run_id, r.created_at, r.strategy, r.benchmark, coalesce(r.study, ''), "
       "r.inputs_hash, r.frequency, r.observations, r.alpha, r.alpha_annualized, r.alpha_t, "
-      "r.alpha_p, r.beta, r.r_squared, r.errors, r.lags, r.revises_run_id, EXISTS (SELECT 1 FROM "
-      "run_inputs i JOIN series_versions v ON v.version_id = i.version_id WHERE i.run_id = "
-      "r.run_id AND EXISTS (SELECT 1 FROM series_versions w WHERE w.series_id = v.series_id AND "
-      "w.version > v.version)) FROM runs r WHERE (?1 = '' OR r.strategy = ?1) AND (?2 = '' OR "
+      "r.alpha_p, r.beta, r.r_squared, r.errors, r.lags, r.revises_run_id, CASE WHEN ?5 THEN "
+      "EXISTS (SELECT 1 FROM run_inputs i JOIN series_versions v ON v.version_id = i.version_id "
+      "WHERE i.run_id = r.run_id AND EXISTS (SELECT 1 FROM series_versions w WHERE w.series_id = "
+      "v.series_id AND w.version > v.version)) ELSE 0 END FROM runs r WHERE (?1 = '' OR r.strategy "
+      "= ?1) AND (?2 = '' OR "
       "r.study = ?2) AND r.run_id BETWEEN ?3 AND ?4 ORDER BY r.run_id");
   q.bind(1, filter.strategy);
   q.bind(2, filter.study);
   // Plain bounds, so that SQLite reads only the rows in range.
   q.bind(3, filter.first_run);
   q.bind(4, filter.last_run == 0 ? std::numeric_limits<std::int64_t>::max() : filter.last_run);
+  q.bind(5, filter.staleness ? 1 : 0);
   std::vector<RunSummary> out;
   while (q.executeStep()) {
     RunSummary s;

@@ -82,6 +82,7 @@ struct RunFilter {
   std::string study;           // empty: any
   std::int64_t first_run = 0;  // run ids from .. to (inclusive); 0: unbounded
   std::int64_t last_run = 0;
+  bool staleness = true;  // false: leave RunSummary::stale false, which saves a join per run
 };
 
 // One line of `alphatrail runs`.
