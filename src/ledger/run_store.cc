@@ -3,6 +3,7 @@
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <atomic>
 #include <cmath>
 #include <condition_variable>
@@ -105,6 +106,25 @@ class JsonText {
     separate();
     out_ += nlohmann::ordered_json(v).dump();
   }
+  // Strings of printable ASCII without quotes or backslashes (nearly all: the sentences of a
+  // reading) go out as they are, which is what a dump writes for them, without the dump's
+  // UTF-8 decoding, a tenth of its time; the others take the dump's escaping.
+  void value(std::string_view text) {
+    separate();
+    const bool plain = std::all_of(text.begin(), text.end(), [](char c) {
+      const auto u = static_cast<unsigned char>(c);
+      return u >= 0x20 && u < 0x80 && c != '"' && c != '\\';
+    });
+    if (!plain) {
+      out_ += nlohmann::ordered_json(std::string(text)).dump();
+      return;
+    }
+    out_ += '"';
+    out_ += text;
+    out_ += '"';
+  }
+  void value(const std::string& text) { value(std::string_view(text)); }
+  void value(const char* text) { value(std::string_view(text)); }
   // A finite number as itself, NaN and infinities as null.
   void number(double v) {
     if (std::isfinite(v))
