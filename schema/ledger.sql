@@ -1,4 +1,4 @@
--- alphatrail ledger schema, current version (PRAGMA user_version = 5,
+-- alphatrail ledger schema, current version (PRAGMA user_version = 6,
 -- PRAGMA application_id = 0x4154524C, "ATRL").
 --
 -- This file is the reference for people who query a ledger with SQL. It is kept equal to
@@ -58,6 +58,9 @@ CREATE TABLE version_columns (
   UNIQUE (version_id, position),
   UNIQUE (version_id, column_name)
 );
+-- A version's columns in file order with their names, read from the index alone: listing
+-- them does not read the rows, each of which holds the whole JSON text of its observations.
+CREATE INDEX version_columns_in_order ON version_columns (version_id, position, column_name);
 
 -- A packed binary copy of a column's observations, kept only so that loading is fast: days as
 -- little-endian 32-bit day numbers (days since 1970-01-01), numbers as little-endian IEEE 754

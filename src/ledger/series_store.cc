@@ -465,13 +465,14 @@ std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<Version
   const auto read_all = [&] {
     for (std::size_t r = 0; r < versions.size(); ++r) {
       loaded[r].info = std::move(versions[r]);
-      // values_json is only read (SQLite fetches a column lazily) when there is no packed copy;
-      // the packed blobs' lengths come from the record header, their bytes from `packed`.
+      // The columns come from an index that holds their names (migration 0006); the row itself,
+      // with its JSON, is only read when there is no packed copy. The packed blobs' lengths
+      // come from their record header, their bytes from `packed`.
       auto cols = ledger.statement(
           "SELECT c.column_name, p.column_id, length(p.days), length(p.numbers), CASE WHEN "
-          "p.column_id IS NULL THEN c.values_json END FROM version_columns c LEFT JOIN "
-          "packed_columns p ON p.column_id = c.column_id WHERE c.version_id = ? ORDER BY "
-          "c.position");
+          "p.column_id IS NULL THEN c.values_json END FROM version_columns c INDEXED BY "
+          "version_columns_in_order LEFT JOIN packed_columns p ON p.column_id = c.column_id "
+          "WHERE c.version_id = ? ORDER BY c.position");
       cols->bind(1, loaded[r].info.version_id);
       while (cols->executeStep()) {
         Pending item{r, cols->getColumn(0).getString(), {}, {}};
