@@ -454,13 +454,13 @@ std::vector<std::int64_t> record_in_transaction(ledger::Ledger& ledger,
   contexts.reserve(pending.size());
   std::map<std::string, int> study_runs;
   std::map<std::string, int> strategy_runs;
+  const auto counted = [&](std::map<std::string, int>& counts, const std::string& name,
+                           int (*count)(ledger::Ledger&, const std::string&)) {
+    auto [it, fresh] = counts.try_emplace(name, 0);
+    if (fresh) it->second = count(ledger, name);
+    return ++it->second;
+  };
   for (const auto& p : pending) {
-    const auto counted = [&](std::map<std::string, int>& counts, const std::string& name,
-                             int (*count)(ledger::Ledger&, const std::string&)) {
-      auto [it, fresh] = counts.try_emplace(name, 0);
-      if (fresh) it->second = count(ledger, name);
-      return ++it->second;
-    };
     const int study =
         p.run.study.empty() ? 0 : counted(study_runs, p.run.study, ledger::count_study_runs);
     contexts.push_back(

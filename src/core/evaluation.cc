@@ -6,7 +6,6 @@
 #include <array>
 #include <cmath>
 #include <map>
-#include <numeric>
 
 #include "core/error.h"
 #include "core/parallel.h"

@@ -94,10 +94,9 @@ class JsonText {
     out_ += "\":";
     after_key_ = true;
   }
-  // Writes a key from data, escaped as nlohmann-json escapes it.
-  void data_key(const std::string& text) {
-    separate();
-    out_ += nlohmann::ordered_json(text).dump();
+  // Writes a key from data, escaped as a string value is.
+  void data_key(std::string_view text) {
+    value(text);
     out_ += ':';
     after_key_ = true;
   }
@@ -508,7 +507,8 @@ std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const New
     }
   };
   const auto insert = [&] {
-    // Chained in order: each record hash covers the one before (chain_hash of the full record).
+    // Chained in order: each record hash covers the one before; before + previous + after is
+    // canonical_run_record(row), what verify hashes.
     for (std::size_t i = 0; i < runs.size(); ++i) {
       {
         std::unique_lock lock(mutex);
@@ -517,13 +517,7 @@ std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const New
       }
       Draft& d = drafts[i];
       d.row.previous_record_hash = previous;
-      core::Sha256 h;
-      h.update(previous);
-      h.update("\n");
-      h.update(d.before);
-      h.update(previous);
-      h.update(d.after);
-      d.row.record_hash = h.hex();
+      d.row.record_hash = chain_hash(previous, d.before + previous + d.after);
       insert_row(ledger, d.row);
       previous = d.row.record_hash;
       ids.push_back(d.row.run_id);
