@@ -1,5 +1,5 @@
 // Checks fit_ols against the NIST Statistical Reference Datasets for linear regression.
-// Source: NIST StRD, certified values (public domain), ../shared/reference/nist-strd/*.dat.
+// Source: NIST StRD, certified values (public domain), fixtures/nist-strd/*.dat.
 // Each file carries its certified estimates, their standard deviations, the residual standard
 // deviation, R^2 and the ANOVA F statistic in its header; the data follow from line 61.
 #include <gtest/gtest.h>

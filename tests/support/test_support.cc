@@ -26,8 +26,7 @@ std::filesystem::path source_path(const std::string& relative) {
 }
 
 std::filesystem::path nist_path(const std::string& file) {
-  return std::filesystem::path(ALPHATRAIL_SOURCE_DIR) / ".." / "shared" / "reference" /
-         "nist-strd" / file;
+  return std::filesystem::path(ALPHATRAIL_SOURCE_DIR) / "fixtures" / "nist-strd" / file;
 }
 
 ScratchDir::ScratchDir() {

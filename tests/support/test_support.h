@@ -14,7 +14,7 @@ namespace alphatrail::testing {
 // Returns the path of a file below the source tree, e.g. source_path("fixtures/x.csv").
 std::filesystem::path source_path(const std::string& relative);
 
-// Returns the folder of the NIST StRD reference datasets (../shared/reference/nist-strd).
+// Returns the path of a NIST StRD reference dataset (fixtures/nist-strd, see its README).
 std::filesystem::path nist_path(const std::string& file);
 
 // A fresh, empty folder removed when the object goes out of scope.
