@@ -1,4 +1,4 @@
--- alphatrail ledger schema, current version (PRAGMA user_version = 6,
+-- alphatrail ledger schema, current version (PRAGMA user_version = 7,
 -- PRAGMA application_id = 0x4154524C, "ATRL").
 --
 -- This file is the reference for people who query a ledger with SQL. It is kept equal to
@@ -243,3 +243,17 @@ SELECT r.run_id,
        json_extract(w.value, '$.beta_ci_high') AS beta_ci_high
 FROM runs AS r, json_each(r.result_json, '$.rolling.windows') AS w
 WHERE w.type = 'object';
+
+-- Marks that say what a ledger is for, one row each, added once and never changed. The demo
+-- marks the ledgers it builds with 'demo' (detail: its seed), so that `demo --replace` can
+-- tell its own ledger from a user's and never replaces anything else.
+CREATE TABLE ledger_marks (
+  mark      TEXT PRIMARY KEY,  -- what the mark says, e.g. 'demo'
+  detail    TEXT NOT NULL,     -- free text, e.g. the demo's seed
+  marked_at TEXT NOT NULL      -- UTC ISO 8601 with milliseconds
+);
+
+CREATE TRIGGER ledger_marks_no_update BEFORE UPDATE ON ledger_marks
+BEGIN SELECT RAISE(ABORT, 'ledger marks are immutable'); END;
+CREATE TRIGGER ledger_marks_no_delete BEFORE DELETE ON ledger_marks
+BEGIN SELECT RAISE(ABORT, 'ledger marks are immutable'); END;

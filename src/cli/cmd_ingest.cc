@@ -74,8 +74,7 @@ std::string stored_unit(core::SeriesKind kind, core::ValueUnit unit) {
 
 }  // namespace
 
-void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& o,
-                 std::ostream& out, std::ostream& notes) {
+CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
   const auto kind = *core::parse_series_kind(o.kind);
   const bool is_set = kind == core::SeriesKind::rate || kind == core::SeriesKind::factor;
   if (is_set && o.name.empty())
@@ -92,25 +91,27 @@ void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& 
                            std::nullopt};
   if (kind == core::SeriesKind::rate) meta.quote = core::rate_quote_name(parse.quote);
 
-  std::vector<ledger::NewVersion> versions;
+  CheckedFile checked{o.file, {}, {o.file, core::sha256_hex(bytes), o.note}};
   if (is_set) {
-    versions.push_back(
+    checked.versions.push_back(
         {o.name, meta, core::value_unit_name(parse.unit), std::move(parsed.columns)});
   } else {
-    versions.reserve(parsed.columns.size());
+    checked.versions.reserve(parsed.columns.size());
     for (auto& column : parsed.columns) {
       std::string name = column.name;
       std::vector<ledger::ColumnData> one;
       one.push_back(std::move(column));
-      versions.push_back({name, meta, core::value_unit_name(parse.unit), std::move(one)});
+      checked.versions.push_back({name, meta, core::value_unit_name(parse.unit), std::move(one)});
     }
   }
+  return checked;
+}
 
-  const ledger::SourceInfo source{o.file, core::sha256_hex(bytes), o.note};
-  auto ledger = ledger::Ledger::open(ledger_path, ledger::OpenMode::create, notes);
+void store_file(ledger::Ledger& ledger, CheckedFile checked, std::ostream& out) {
   std::vector<ledger::StoreOutcome> outcomes;
-  ledger.write_transaction(
-      [&] { outcomes = ledger::store_versions(ledger, std::move(versions), source); });
+  ledger.write_transaction([&] {
+    outcomes = ledger::store_versions(ledger, std::move(checked.versions), checked.source);
+  });
 
   int added = 0;
   int unchanged = 0;
@@ -125,8 +126,15 @@ void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& 
       out << fmt::format("{} {}: version {}{} ({})\n", r.kind, r.name, r.version,
                          r.new_series ? ", new series" : "", r.content_hash.substr(0, 12));
   }
-  out << fmt::format("{}: {} new version{}, {} unchanged\n", o.file, added, added == 1 ? "" : "s",
-                     unchanged);
+  out << fmt::format("{}: {} new version{}, {} unchanged\n", checked.file, added,
+                     added == 1 ? "" : "s", unchanged);
+}
+
+void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& o,
+                 std::ostream& out, std::ostream& notes) {
+  CheckedFile checked = check_file(o, notes);  // before the ledger is opened (or created)
+  auto ledger = ledger::Ledger::open(ledger_path, ledger::OpenMode::create, notes);
+  store_file(ledger, std::move(checked), out);
 }
 
 void setup_ingest(CLI::App& app, const GlobalOptions& global) {

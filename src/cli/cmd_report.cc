@@ -1,4 +1,6 @@
+#include <fcntl.h>
 #include <fmt/format.h>
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <CLI/CLI.hpp>
@@ -11,6 +13,7 @@
 #include "core/error.h"
 #include "ledger/run_store.h"
 #include "ledger/series_store.h"
+#include "report/html.h"
 #include "report/reports.h"
 #include "version.h"
 
@@ -20,6 +23,12 @@ namespace {
 
 using nlohmann::ordered_json;
 
+// Where a page goes: the ledger it must never overwrite, and whether --force was given.
+struct PageTarget {
+  std::filesystem::path ledger;
+  bool force = false;
+};
+
 std::string made_by(ledger::Ledger& ledger) {
   return fmt::format(
       "Made by alphatrail {} on {} UTC from the ledger {}. Self-contained page: "
@@ -27,26 +36,67 @@ std::string made_by(ledger::Ledger& ledger) {
       kEngineVersion, ledger::utc_now(), ledger.path().filename().string());
 }
 
-// Writes through a temporary file beside the target, then renames it into place.
-void write_page(const std::filesystem::path& output, const std::string& html) {
-  const std::filesystem::path temporary =
-      output.string() + fmt::format(".{}.partial", static_cast<long>(::getpid()));
-  {
-    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
-    out << html;
-    out.close();
-    if (!out)
-      throw Error(ExitCode::bad_input,
-                  fmt::format("{}: cannot write the report there; name a writable file with -o",
-                              output.string()));
+bool same_file(const std::filesystem::path& a, const std::filesystem::path& b) {
+  struct stat sa {};
+  struct stat sb {};
+  return ::stat(a.c_str(), &sa) == 0 && ::stat(b.c_str(), &sb) == 0 && sa.st_dev == sb.st_dev &&
+         sa.st_ino == sb.st_ino;
+}
+
+// Refuses to write the page over the ledger (or its journal files), whatever name or link
+// reaches it, and over an existing file that is not a page of ours unless `force`.
+void check_output(const std::filesystem::path& output, const PageTarget& target) {
+  for (const char* suffix : {"", "-wal", "-shm", "-journal"}) {
+    const std::filesystem::path ledger_file = target.ledger.string() + suffix;
+    if (same_file(output, ledger_file))
+      throw Error(ExitCode::usage,
+                  fmt::format("{} is the ledger file {} that the report reads: refusing to write "
+                              "the page over it (--force does not apply); name another file "
+                              "with -o",
+                              output.string(), ledger_file.string()));
   }
   std::error_code ec;
-  std::filesystem::rename(temporary, output, ec);
-  if (ec) {
-    std::filesystem::remove(temporary, ec);
-    throw Error(ExitCode::bad_input,
-                fmt::format("{}: cannot write the report there; name a writable file with -o",
+  if (!std::filesystem::exists(output, ec) || target.force) return;
+  if (!std::filesystem::is_regular_file(output, ec))
+    throw Error(ExitCode::usage,
+                fmt::format("{} exists and is not a regular file: refusing to write the page "
+                            "there; name another file with -o",
                             output.string()));
+  std::ifstream in(output, std::ios::binary);
+  const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  if (!report::is_our_page(text))
+    throw Error(ExitCode::usage,
+                fmt::format("{} exists and is not a report page alphatrail wrote: refusing to "
+                            "overwrite it; name another file with -o, or pass --force to "
+                            "replace it",
+                            output.string()));
+}
+
+// Writes through a temporary file beside the target, then renames it into place.
+void write_page(const std::filesystem::path& output, const std::string& html,
+                const PageTarget& target) {
+  check_output(output, target);
+  const Error unwritable(ExitCode::bad_input,
+                         fmt::format("{}: cannot write the report there; name a writable file "
+                                     "with -o",
+                                     output.string()));
+  const std::filesystem::path temporary =
+      output.string() + fmt::format(".{}.partial", static_cast<long>(::getpid()));
+  // O_EXCL: the temporary name is never an existing file of someone else's.
+  const int fd = ::open(temporary.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0644);
+  if (fd < 0) throw unwritable;
+  std::size_t written = 0;
+  while (written < html.size()) {
+    const ssize_t n = ::write(fd, html.data() + written, html.size() - written);
+    if (n <= 0) break;
+    written += static_cast<std::size_t>(n);
+  }
+  const bool complete = written == html.size() && ::close(fd) == 0;
+  std::error_code ec;
+  if (complete) std::filesystem::rename(temporary, output, ec);
+  if (!complete || ec) {
+    std::filesystem::remove(temporary, ec);
+    throw unwritable;
   }
 }
 
@@ -60,7 +110,7 @@ std::vector<ordered_json> load_runs(ledger::Ledger& ledger, const ledger::RunFil
 }  // namespace
 
 void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
-                      const std::filesystem::path& output) {
+                      const std::filesystem::path& output, bool force) {
   report::RunReportInput in;
   in.run = ledger::load_run(ledger, run_id);
 
@@ -102,11 +152,11 @@ void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
   if (in.run["revises_run_id"].is_number())
     in.revised = ledger::load_run(ledger, in.run["revises_run_id"].get<std::int64_t>());
   in.made_by = made_by(ledger);
-  write_page(output, report::run_report(in));
+  write_page(output, report::run_report(in), {ledger.path(), force});
 }
 
 void write_strategy_report(ledger::Ledger& ledger, const std::string& strategy,
-                           const std::filesystem::path& output) {
+                           const std::filesystem::path& output, bool force) {
   report::StrategyReportInput in;
   in.strategy = strategy;
   for (const auto& v : ledger::version_history(ledger, strategy))
@@ -118,11 +168,11 @@ void write_strategy_report(ledger::Ledger& ledger, const std::string& strategy,
                             "evaluate {} --benchmark ... --rate ...`)",
                             strategy, strategy));
   in.made_by = made_by(ledger);
-  write_page(output, report::strategy_report(in));
+  write_page(output, report::strategy_report(in), {ledger.path(), force});
 }
 
 void write_study_report(ledger::Ledger& ledger, const std::string& study,
-                        const std::filesystem::path& output) {
+                        const std::filesystem::path& output, bool force) {
   report::StudyReportInput in;
   in.study = study;
   in.runs = load_runs(ledger, {"", study, 0, 0});
@@ -132,7 +182,7 @@ void write_study_report(ledger::Ledger& ledger, const std::string& study,
                             "and `evaluate --study NAME` records runs in one",
                             study));
   in.made_by = made_by(ledger);
-  write_page(output, report::study_report(in));
+  write_page(output, report::study_report(in), {ledger.path(), force});
 }
 
 namespace {
@@ -142,6 +192,7 @@ struct ReportOptions {
   std::string strategy;
   std::string study;
   std::string output;
+  bool force = false;
 };
 
 void run_report(const ReportOptions& o, const GlobalOptions& global) {
@@ -153,11 +204,11 @@ void run_report(const ReportOptions& o, const GlobalOptions& global) {
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
                                      ledger::OpenMode::read_only, std::cerr);
   if (o.run_id != 0)
-    write_run_report(ledger, o.run_id, o.output);
+    write_run_report(ledger, o.run_id, o.output, o.force);
   else if (!o.strategy.empty())
-    write_strategy_report(ledger, o.strategy, o.output);
+    write_strategy_report(ledger, o.strategy, o.output, o.force);
   else
-    write_study_report(ledger, o.study, o.output);
+    write_study_report(ledger, o.study, o.output, o.force);
   std::cout << fmt::format("report written to {}\n", o.output);
 }
 
@@ -170,7 +221,12 @@ void setup_report(CLI::App& app, const GlobalOptions& global) {
   cmd->add_option("run", o->run_id, "Run id (or use --strategy / --study)");
   cmd->add_option("--strategy", o->strategy, "Every run of a strategy, in time order");
   cmd->add_option("--study", o->study, "Every run of a study, side by side");
-  cmd->add_option("-o,--output", o->output, "The HTML file to write")->required();
+  cmd->add_option("-o,--output", o->output,
+                  "The HTML file to write; an existing file is replaced only when it is a report "
+                  "page alphatrail wrote (never the ledger)")
+      ->required();
+  cmd->add_flag("--force", o->force,
+                "Replace an existing -o file even when it is not a report page (never the ledger)");
   cmd->callback([o, &global] { run_report(*o, global); });
 }
 

@@ -59,37 +59,45 @@ std::string fixed(double v, int digits) {
 
 }  // namespace
 
-void rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids, Format format,
-                std::ostream& out, bool progress) {
-  std::vector<PendingRun> pending;
-  for (auto id : ids) {
-    auto rq = request_from_run(ledger, id, false);
-    rq.revises_run_id = id;
-    auto one = evaluate_request(ledger, rq);
-    for (auto& p : one) pending.push_back(std::move(p));
-  }
-  const auto new_ids = record_runs(ledger, pending, progress);
+std::vector<RerunOutcome> rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids,
+                                     bool progress) {
+  std::vector<RerunOutcome> outcomes;
+  ledger.write_transaction([&] {
+    std::vector<PendingRun> pending;
+    for (auto id : ids) {
+      auto rq = request_from_run(ledger, id, false);
+      rq.revises_run_id = id;
+      auto one = evaluate_request(ledger, rq);
+      for (auto& p : one) pending.push_back(std::move(p));
+    }
+    const auto new_ids = record_runs(ledger, pending, progress);
+    for (std::size_t i = 0; i < ids.size(); ++i)
+      outcomes.push_back({*ledger::read_run_row(ledger, ids[i]),
+                          *ledger::read_run_row(ledger, new_ids[i]),
+                          1.0 - pending[i].settings.confidence});
+  });
+  return outcomes;
+}
 
+void print_reruns(std::ostream& out, const std::vector<RerunOutcome>& outcomes, Format format) {
   Table table;
   table.header = {"run",     "new run", "strategy", "alpha a year", "alpha t",
                   "alpha p", "beta",    "R2",       "conclusion"};
   auto array = nlohmann::ordered_json::array();
-  for (std::size_t i = 0; i < ids.size(); ++i) {
-    const auto before = *ledger::read_run_row(ledger, ids[i]);
-    const auto after = *ledger::read_run_row(ledger, new_ids[i]);
-    const double level = 1.0 - pending[i].settings.confidence;
+  for (const auto& [before, after, level] : outcomes) {
     const std::string conclusion =
         verdict(before.alpha_p, after.alpha_p, before.alpha, after.alpha, level);
     const auto pair = [](const std::string& a, const std::string& b) { return a + " -> " + b; };
-    table.rows.push_back({std::to_string(ids[i]), std::to_string(new_ids[i]), after.strategy,
+    table.rows.push_back({std::to_string(before.run_id), std::to_string(after.run_id),
+                          after.strategy,
                           pair(fmt::format("{:+.2f}%", 100 * before.alpha_annualized),
                                fmt::format("{:+.2f}%", 100 * after.alpha_annualized)),
                           pair(fixed(before.alpha_t, 2), fixed(after.alpha_t, 2)),
                           pair(fixed(before.alpha_p, 4), fixed(after.alpha_p, 4)),
                           pair(fixed(before.beta, 3), fixed(after.beta, 3)),
                           pair(fixed(before.r_squared, 3), fixed(after.r_squared, 3)), conclusion});
-    array.push_back({{"run_id", ids[i]},
-                     {"new_run_id", new_ids[i]},
+    array.push_back({{"run_id", before.run_id},
+                     {"new_run_id", after.run_id},
                      {"strategy", after.strategy},
                      {"before",
                       {{"alpha_annualized", json_number(before.alpha_annualized)},
@@ -118,27 +126,43 @@ void rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids, Fo
 namespace {
 
 void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::existing, std::cerr);
   if (o.runs.empty() && !o.all_stale)
     throw Error(ExitCode::usage, "name the runs to re-run, or pass --all-stale");
-  std::vector<std::int64_t> ids = o.all_stale ? unrevised_stale_runs(ledger) : o.runs;
-  if (ids.empty()) {
-    std::cout << "no stale runs: every run used the latest versions of its inputs\n";
-    return;
-  }
-  if (o.dry_run) {
-    for (auto id : ids) {
-      const auto row = ledger::read_run_row(ledger, id);
-      if (!row)
+  const auto path = ledger::resolve_ledger_path(global.ledger);
+  const auto runs_to_redo = [&](ledger::Ledger& ledger) {
+    if (o.all_stale) return unrevised_stale_runs(ledger);
+    for (auto id : o.runs)
+      if (!ledger::read_run_row(ledger, id))
         throw Error(ExitCode::not_found,
                     fmt::format("no run {}; `alphatrail runs` lists them", id));
-      std::cout << fmt::format("would re-run run {} ({}): {}\n", id, row->strategy,
-                               revisions_of(ledger, id));
-    }
+    return o.runs;
+  };
+  const auto none_stale = [] {
+    std::cout << "no stale runs: every run used the latest versions of its inputs\n";
+  };
+
+  if (o.dry_run) {
+    auto ledger = ledger::Ledger::open(path, ledger::OpenMode::read_only, std::cerr);
+    ledger.read_transaction([&] {
+      const auto ids = runs_to_redo(ledger);
+      if (ids.empty()) return none_stale();
+      for (auto id : ids)
+        std::cout << fmt::format("would re-run run {} ({}): {}\n", id,
+                                 ledger::read_run_row(ledger, id)->strategy,
+                                 revisions_of(ledger, id));
+    });
     return;
   }
-  rerun_runs(ledger, ids, o.format, std::cout, isatty(2) != 0);
+  // The stale set is read, evaluated and recorded in one write transaction: every re-run uses
+  // the versions of one snapshot, and a second rerun waits and then finds these runs revised.
+  auto ledger = ledger::Ledger::open(path, ledger::OpenMode::existing, std::cerr);
+  std::vector<RerunOutcome> outcomes;
+  ledger.write_transaction([&] {
+    const auto ids = runs_to_redo(ledger);
+    if (!ids.empty()) outcomes = rerun_runs(ledger, ids, isatty(2) != 0);
+  });
+  if (outcomes.empty()) return none_stale();
+  print_reruns(std::cout, outcomes, o.format);
 }
 
 }  // namespace

@@ -65,11 +65,21 @@ EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bo
 std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger,
                                               const EvaluateRequest& request, bool progress);
 
-// Re-evaluates runs against the latest versions of their inputs with the same parameters,
-// records each as a run that revises the old one, and prints old and new figures with a
-// plain verdict when a conclusion flipped.
-void rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids, Format format,
-                std::ostream& out, bool progress);
+// A re-run: the run revised, the run that revises it, and the significance level of both.
+struct RerunOutcome {
+  ledger::RunRow before;
+  ledger::RunRow after;
+  double level = 0.05;
+};
+
+// Re-evaluates runs against the latest versions of their inputs with the same parameters and
+// records each as a run that revises the old one, in one write transaction (the caller's, when
+// one is open): every re-run uses the versions of one snapshot.
+std::vector<RerunOutcome> rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids,
+                                     bool progress);
+
+// Prints old and new figures of each re-run, with a plain verdict when a conclusion flipped.
+void print_reruns(std::ostream& out, const std::vector<RerunOutcome>& outcomes, Format format);
 
 // Prints runs in the chosen format: a block per run (a table for many), a JSON array of run
 // objects, or CSV with one row per run.

@@ -7,6 +7,9 @@
 #include <string>
 #include <vector>
 
+#include "ledger/ledger.h"
+#include "ledger/series_store.h"
+
 namespace alphatrail::cli {
 
 struct IngestRequest {
@@ -22,6 +25,21 @@ struct IngestRequest {
   std::string quote = "yield";
   std::string note;
 };
+
+// A file read and validated, ready to be stored.
+struct CheckedFile {
+  std::string file;
+  std::vector<ledger::NewVersion> versions;
+  ledger::SourceInfo source;
+};
+
+// Reads and validates the file the request names, writing notes on `notes`. Throws
+// alphatrail::Error naming the file, line and column.
+CheckedFile check_file(const IngestRequest& request, std::ostream& notes);
+
+// Stores a checked file's series as new versions (inside the caller's transaction when one is
+// open), printing one line per series (or a summary for many) on `out`.
+void store_file(ledger::Ledger& ledger, CheckedFile checked, std::ostream& out);
 
 // Validates the file and stores its series in the ledger in one transaction, printing one
 // line per series (or a summary for many) on `out` and notes on `notes`. Throws

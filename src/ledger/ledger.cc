@@ -8,6 +8,9 @@
 #include <cstdlib>
 #include <fstream>
 #include <sstream>
+#include <stdexcept>
+#include <utility>
+#include <vector>
 
 #include "core/error.h"
 #include "ledger/migrations.h"
@@ -83,19 +86,29 @@ int current_schema_version() {
   return static_cast<int>(embedded_migrations().size());
 }
 
+namespace {
+
+// Applies the migrations after user_version inside the caller's transaction; returns how many.
+int apply_migrations(SQLite::Database& db) {
+  const int from = pragma_int(db, "user_version");
+  const auto& migrations = embedded_migrations();
+  for (std::size_t i = static_cast<std::size_t>(from); i < migrations.size(); ++i) {
+    db.exec(migrations[i].sql);
+    db.exec(fmt::format("PRAGMA user_version = {}", i + 1));
+  }
+  if (from < static_cast<int>(migrations.size()))
+    db.exec(fmt::format("PRAGMA application_id = {}", kApplicationId));
+  return static_cast<int>(migrations.size()) - from;
+}
+
+}  // namespace
+
 int migrate(SQLite::Database& db) {
   db.exec("BEGIN IMMEDIATE");
   try {
-    const int from = pragma_int(db, "user_version");
-    const auto& migrations = embedded_migrations();
-    for (std::size_t i = static_cast<std::size_t>(from); i < migrations.size(); ++i) {
-      db.exec(migrations[i].sql);
-      db.exec(fmt::format("PRAGMA user_version = {}", i + 1));
-    }
-    if (from < static_cast<int>(migrations.size()))
-      db.exec(fmt::format("PRAGMA application_id = {}", kApplicationId));
+    const int applied = apply_migrations(db);
     db.exec("COMMIT");
-    return static_cast<int>(migrations.size()) - from;
+    return applied;
   } catch (...) {
     db.exec("ROLLBACK");
     throw;
@@ -165,7 +178,28 @@ CachedStatement Ledger::statement(const std::string& sql) {
   return CachedStatement(*slot);
 }
 
+bool Ledger::in_transaction() {
+  return sqlite3_get_autocommit(db_->getHandle()) == 0;
+}
+
 void Ledger::write_transaction(const std::function<void()>& work) {
+  if (in_transaction()) {
+    // Nested: the outer transaction holds the write lock; a savepoint keeps this part's
+    // all-or-nothing for a caller that catches the error and goes on.
+    db_->exec("SAVEPOINT nested_write");
+    try {
+      work();
+      db_->exec("RELEASE nested_write");
+    } catch (...) {
+      try {
+        db_->exec("ROLLBACK TO nested_write");
+        db_->exec("RELEASE nested_write");
+      } catch (...) {  // the transaction may already be gone; the original error matters
+      }
+      throw;
+    }
+    return;
+  }
   db_->exec("BEGIN IMMEDIATE");
   try {
     work();
@@ -180,6 +214,7 @@ void Ledger::write_transaction(const std::function<void()>& work) {
 }
 
 void Ledger::read_transaction(const std::function<void()>& work) {
+  if (in_transaction()) return work();  // the outer transaction is the snapshot
   db_->exec("BEGIN");
   try {
     work();
@@ -191,6 +226,46 @@ void Ledger::read_transaction(const std::function<void()>& work) {
     throw;
   }
   db_->exec("COMMIT");
+}
+
+void erase_and_recreate(Ledger& ledger) {
+  if (!ledger.in_transaction())
+    throw std::logic_error("erase_and_recreate must run inside a write transaction");
+  SQLite::Database& db = ledger.db();
+  ledger.forget_statements();  // they refer to the tables about to go
+  // Triggers go with their tables, indexes too; dropping the tables newest first keeps every
+  // foreign key pointing at a table that still exists, and DROP TABLE fires no trigger.
+  std::vector<std::pair<std::string, std::string>> objects;
+  {
+    SQLite::Statement q(db,
+                        "SELECT type, name FROM sqlite_master WHERE type IN ('view', 'table') "
+                        "AND name NOT LIKE 'sqlite_%' ORDER BY type = 'table', rowid DESC");
+    while (q.executeStep())
+      objects.emplace_back(q.getColumn(0).getString(), q.getColumn(1).getString());
+  }
+  db.exec("PRAGMA defer_foreign_keys = ON");
+  for (const auto& [type, name] : objects)
+    db.exec(fmt::format("DROP {} \"{}\"", type == "view" ? "VIEW" : "TABLE", name));
+  db.exec("PRAGMA user_version = 0");
+  apply_migrations(db);
+}
+
+void add_mark(Ledger& ledger, const std::string& mark, const std::string& detail,
+              const std::string& marked_at) {
+  SQLite::Statement q(ledger.db(),
+                      "INSERT INTO ledger_marks (mark, detail, marked_at) VALUES (?, ?, ?)");
+  q.bind(1, mark);
+  q.bind(2, detail);
+  q.bind(3, marked_at);
+  q.exec();
+}
+
+bool has_mark(Ledger& ledger, const std::string& mark) {
+  SQLite::Database& db = ledger.db();
+  if (!db.tableExists("ledger_marks")) return false;  // older than schema version 7
+  SQLite::Statement q(db, "SELECT 1 FROM ledger_marks WHERE mark = ?");
+  q.bind(1, mark);
+  return q.executeStep();
 }
 
 namespace {

@@ -62,12 +62,21 @@ class Ledger {
   // Returns PRAGMA user_version, the number of migrations applied.
   int schema_version();
 
-  // Runs work inside BEGIN IMMEDIATE ... COMMIT; any exception rolls everything back.
+  // Runs work inside BEGIN IMMEDIATE ... COMMIT; any exception rolls everything back. Inside
+  // another transaction it joins it (as a savepoint): a command that does several writing
+  // steps wraps them in one outer write_transaction and commits once, all or nothing.
   void write_transaction(const std::function<void()>& work);
 
   // Runs work inside one read transaction: every statement sees the same snapshot, and SQLite
   // takes its locks once instead of once per statement (thousands when loading many series).
+  // Inside another transaction it runs in that one's snapshot.
   void read_transaction(const std::function<void()>& work);
+
+  // Returns true while a transaction is open on this connection.
+  bool in_transaction();
+
+  // Drops the cached statements (before the schema they were prepared against changes).
+  void forget_statements() { statements_.clear(); }
 
   // Returns the statement for `sql`, prepared once per connection: statements run once per
   // run or per series (thousands per command) spend more time being parsed than executed.
@@ -81,6 +90,18 @@ class Ledger {
   // Declared after db_, so destroyed before the connection closes.
   std::unordered_map<std::string, std::unique_ptr<SQLite::Statement>> statements_;
 };
+
+// Empties the ledger in place and applies every migration from zero, inside the caller's write
+// transaction: the file stays the same file, so another process that has it open sees the new
+// content instead of writing into a deleted file. Used by `demo --replace` on its own ledgers.
+void erase_and_recreate(Ledger& ledger);
+
+// Adds a mark to the ledger (table ledger_marks, one row per mark; a mark is never changed).
+void add_mark(Ledger& ledger, const std::string& mark, const std::string& detail,
+              const std::string& marked_at);
+
+// Returns true when the ledger carries the mark (false for ledgers older than the marks).
+bool has_mark(Ledger& ledger, const std::string& mark);
 
 // Returns the schema version this binary writes (the number of embedded migrations).
 int current_schema_version();

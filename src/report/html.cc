@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 
+#include <string_view>
+
 #include "report/svg.h"
 
 namespace alphatrail::report {
@@ -97,8 +99,26 @@ struct BlockHtml {
 
 }  // namespace
 
+namespace {
+
+constexpr std::string_view kPageStart =
+    "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n";
+// The HTML standard's generator mark, so the tool can recognise its own pages.
+constexpr std::string_view kGeneratorMark = "<meta name=\"generator\" content=\"alphatrail\">\n";
+
+}  // namespace
+
+bool is_our_page(const std::string& text) {
+  if (text.rfind(kPageStart, 0) != 0) return false;
+  const std::size_t head_end = text.find("</head>");
+  if (head_end == std::string::npos) return false;
+  return text.find(kGeneratorMark) < head_end ||
+         text.find("<footer>Made by alphatrail ", head_end) != std::string::npos;
+}
+
 std::string render_page(const Page& page) {
-  std::string out = "<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n";
+  std::string out(kPageStart);
+  out += kGeneratorMark;
   out += "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n";
   out += "<title>" + escape(page.title) + "</title>\n<style>" + kStyle + "</style>\n";
   out += "</head>\n<body>\n<header class=\"masthead\">\n";

@@ -56,6 +56,11 @@ struct Page {
   std::string footer;  // e.g. how and when the page was made
 };
 
+// Returns true when the text is a page render_page wrote (its generator mark, or for pages of
+// earlier versions their head and "Made by alphatrail" footer): the files `report -o` may
+// replace without --force.
+bool is_our_page(const std::string& text);
+
 // Returns the whole HTML document.
 // Example: render_page({.title = "Run 7: trend-12m"}) starts with "<!DOCTYPE html>".
 std::string render_page(const Page& page);

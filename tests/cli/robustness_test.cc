@@ -31,17 +31,17 @@
 
 #include "support/test_support.h"
 
-extern char** environ;
-
 namespace {
 
 namespace fs = std::filesystem;
-using alphatrail::testing::contains;
 using alphatrail::testing::build_six_run_ledger;
 using alphatrail::testing::CommandResult;
+using alphatrail::testing::contains;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
+using alphatrail::testing::start_alphatrail;
+using alphatrail::testing::wait_for;
 using Clock = std::chrono::steady_clock;
 
 constexpr const char* kBenchmark = "alder-vale-composite";
@@ -53,41 +53,6 @@ CommandResult at(const std::string& ledger, const std::vector<std::string>& args
   std::vector<std::string> all{"--ledger", ledger};
   all.insert(all.end(), args.begin(), args.end());
   return run_alphatrail(all, env);
-}
-
-// Starts the binary without waiting: stdin and stdout on /dev/null, stderr to a file (or
-// /dev/null). The environment is this one without ALPHATRAIL_ variables, plus `env`.
-pid_t start(const std::vector<std::string>& args, const std::string& err_file = "/dev/null",
-            const std::vector<std::string>& env = {}) {
-  posix_spawn_file_actions_t actions;
-  posix_spawn_file_actions_init(&actions);
-  posix_spawn_file_actions_addopen(&actions, 0, "/dev/null", O_RDONLY, 0);
-  posix_spawn_file_actions_addopen(&actions, 1, "/dev/null", O_WRONLY, 0);
-  posix_spawn_file_actions_addopen(&actions, 2, err_file.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
-  std::vector<std::string> environment;
-  for (char** e = environ; *e != nullptr; ++e)
-    if (std::string(*e).rfind("ALPHATRAIL_", 0) != 0) environment.emplace_back(*e);
-  environment.insert(environment.end(), env.begin(), env.end());
-  std::vector<std::string> argv{ALPHATRAIL_BINARY};
-  argv.insert(argv.end(), args.begin(), args.end());
-  std::vector<char*> c_argv;
-  for (auto& a : argv) c_argv.push_back(a.data());
-  c_argv.push_back(nullptr);
-  std::vector<char*> c_env;
-  for (auto& e : environment) c_env.push_back(e.data());
-  c_env.push_back(nullptr);
-  pid_t pid = 0;
-  const int rc = posix_spawn(&pid, c_argv[0], &actions, nullptr, c_argv.data(), c_env.data());
-  posix_spawn_file_actions_destroy(&actions);
-  if (rc != 0) throw std::runtime_error("cannot start " + argv[0]);
-  return pid;
-}
-
-int wait_for(pid_t pid) {
-  int status = 0;
-  while (waitpid(pid, &status, 0) < 0 && errno == EINTR) {
-  }
-  return status;
 }
 
 std::string describe(int status) {
@@ -222,8 +187,7 @@ std::vector<std::string> with_ledger(std::vector<std::string> args, const fs::pa
 }
 
 const std::vector<std::string> kEvaluateTrend{"evaluate", "trend-*", "--benchmark", kBenchmark,
-                                              "--rate", kRate, "--factor", kFactors};
-
+                                              "--rate",   kRate,     "--factor",    kFactors};
 
 // Shared fixtures, built once for both suites:
 //   six.db    the six-run ledger (9 versions, 6 runs)
@@ -268,8 +232,9 @@ class Fixtures {
     const auto row = levels.find("\n2010-06-");
     const auto comma = levels.find(',', row);
     const auto end = levels.find('\n', comma);
-    levels.replace(comma + 1, end - comma - 1,
-                   fmt::format("{:.2f}", std::stod(levels.substr(comma + 1, end - comma - 1)) * 1.02));
+    levels.replace(
+        comma + 1, end - comma - 1,
+        fmt::format("{:.2f}", std::stod(levels.substr(comma + 1, end - comma - 1)) * 1.02));
     const fs::path revised = dir_.write("revised.csv", levels);
     step(stale(), {"ingest", "benchmark", revised.string(), "--levels", "--name", kBenchmark});
     if (problem_.empty()) checkpoint(stale());
@@ -286,7 +251,9 @@ class ConcurrencyLedgerTest : public ::testing::Test {
  protected:
   void SetUp() override { ASSERT_EQ(Fixtures::get().problem(), ""); }
   fs::path work() const { return scratch_ / "work.db"; }
-  std::string err_file(const std::string& name) const { return (scratch_ / (name + ".err")).string(); }
+  std::string err_file(const std::string& name) const {
+    return (scratch_ / (name + ".err")).string();
+  }
   std::string err_of(const std::string& name) const { return read_file(err_file(name)); }
   ScratchDir scratch_;
 };
@@ -299,10 +266,11 @@ TEST_F(ConcurrencyLedgerTest, BigIngestAndEvaluateAtOnceBothSucceed) {
     const Counts before = counts_of(work());
     // The evaluate starts a little after the ingest in some rounds, so that it meets the
     // ingest's parsing, its write transaction or both.
-    const pid_t ingest = start(with_ledger({"ingest", "strategy", f.wide300().string()}, work()),
-                               err_file("ingest"));
+    const pid_t ingest = start_alphatrail(
+        with_ledger({"ingest", "strategy", f.wide300().string()}, work()), err_file("ingest"));
     std::this_thread::sleep_for(std::chrono::milliseconds(60 * round));
-    const pid_t evaluate = start(with_ledger(kEvaluateTrend, work()), err_file("evaluate"));
+    const pid_t evaluate =
+        start_alphatrail(with_ledger(kEvaluateTrend, work()), err_file("evaluate"));
     const int ingest_status = wait_for(ingest);
     const int evaluate_status = wait_for(evaluate);
     EXPECT_TRUE(WIFEXITED(ingest_status) && WEXITSTATUS(ingest_status) == 0)
@@ -332,9 +300,9 @@ TEST_F(ConcurrencyLedgerTest, TwoEvaluatesAtOnceBothSucceedEachInOneBlock) {
     first.insert(first.end(), {"--note", "first"});
     auto second = kEvaluateTrend;
     second.insert(second.end(), {"--note", "second", "--errors", "hc1"});
-    const pid_t a = start(with_ledger(first, work()), err_file("a"));
+    const pid_t a = start_alphatrail(with_ledger(first, work()), err_file("a"));
     std::this_thread::sleep_for(std::chrono::milliseconds(25 * round));
-    const pid_t b = start(with_ledger(second, work()), err_file("b"));
+    const pid_t b = start_alphatrail(with_ledger(second, work()), err_file("b"));
     const int sa = wait_for(a);
     const int sb = wait_for(b);
     EXPECT_TRUE(WIFEXITED(sa) && WEXITSTATUS(sa) == 0) << describe(sa) << ": " << err_of("a");
@@ -349,7 +317,8 @@ TEST_F(ConcurrencyLedgerTest, TwoEvaluatesAtOnceBothSucceedEachInOneBlock) {
       EXPECT_EQ(scalar(work(), "SELECT count(*) " + where), 153) << note;
       EXPECT_EQ(scalar(work(), "SELECT max(run_id) - min(run_id) + 1 " + where), 153) << note;
     }
-    EXPECT_EQ(scalar(work(), "SELECT count(*) FROM runs WHERE note = 'second' AND errors <> 'hc1'"), 0);
+    EXPECT_EQ(scalar(work(), "SELECT count(*) FROM runs WHERE note = 'second' AND errors <> 'hc1'"),
+              0);
     const CommandResult v = at(work().string(), {"verify"});
     EXPECT_EQ(v.exit_code, 0) << v.out << v.err;
   }
@@ -365,7 +334,8 @@ TEST_F(ConcurrencyLedgerTest, BusyLedgerExitsFourAndWritesNothing) {
     SQLite::Database holder(work().string(), SQLite::OPEN_READWRITE);
     holder.exec("BEGIN IMMEDIATE");
     const auto t0 = Clock::now();
-    const CommandResult ingest = at(work().string(), {"ingest", "strategy", f.small().string()}, busy);
+    const CommandResult ingest =
+        at(work().string(), {"ingest", "strategy", f.small().string()}, busy);
     const auto elapsed = std::chrono::duration_cast<std::chrono::milliseconds>(Clock::now() - t0);
     EXPECT_EQ(ingest.exit_code, 4) << ingest.out << ingest.err;
     EXPECT_TRUE(contains(ingest.err, "busy")) << ingest.err;
@@ -401,12 +371,12 @@ TEST_F(ConcurrencyLedgerTest, BusyLedgerExitsFourAndWritesNothing) {
 
 struct KillTally {
   int sent = 0;
-  int killed = 0;          // the signal ended the process
-  int completed = 0;       // it finished before the signal
-  int all = 0;             // the ledger holds every row of the command
-  int none = 0;            // the ledger holds none
-  int killed_with_wal = 0; // killed with frames in the write-ahead log: inside or after a write
-  int mid_transaction = 0; // killed with frames in the log and none of the rows: mid-write
+  int killed = 0;           // the signal ended the process
+  int completed = 0;        // it finished before the signal
+  int all = 0;              // the ledger holds every row of the command
+  int none = 0;             // the ledger holds none
+  int killed_with_wal = 0;  // killed with frames in the write-ahead log: inside or after a write
+  int mid_transaction = 0;  // killed with frames in the log and none of the rows: mid-write
 };
 
 class KillLedgerTest : public ::testing::Test {
@@ -430,8 +400,7 @@ class KillLedgerTest : public ::testing::Test {
     const Counts before = counts_of(work);
     const auto t0 = Clock::now();
     const CommandResult full = run_alphatrail(with_ledger(args, work));
-    const double duration_ms =
-        std::chrono::duration<double, std::milli>(Clock::now() - t0).count();
+    const double duration_ms = std::chrono::duration<double, std::milli>(Clock::now() - t0).count();
     ASSERT_EQ(full.exit_code, 0) << full.err;
     const Counts complete = counts_of(work);
     ASSERT_EQ(complete.runs, before.runs + runs);
@@ -439,11 +408,12 @@ class KillLedgerTest : public ::testing::Test {
 
     for (int i = 0; i < iterations; ++i) {
       const double fraction = ((i * 5) % 12) / 10.0;  // 0, 0.5, 1.0, 0.3, ..., 1.1
-      const auto delay = std::chrono::microseconds(static_cast<std::int64_t>(1000 * fraction * duration_ms));
+      const auto delay =
+          std::chrono::microseconds(static_cast<std::int64_t>(1000 * fraction * duration_ms));
       SCOPED_TRACE(fmt::format("kill {} of {} after {} us ({} of {:.0f} ms)", i + 1, iterations,
                                delay.count(), fraction, duration_ms));
       copy_ledger(base, work);
-      const pid_t pid = start(with_ledger(args, work));
+      const pid_t pid = start_alphatrail(with_ledger(args, work));
       std::this_thread::sleep_for(delay);
       kill(pid, SIGKILL);
       ++tally_.sent;
@@ -504,7 +474,7 @@ TEST_F(KillLedgerTest, KilledRerunLeavesAllOrNothing) {
   // After a kill that left nothing, the re-run can still be done, once.
   const fs::path work = scratch_ / "after.db";
   copy_ledger(f.stale(), work);
-  const pid_t pid = start(with_ledger({"rerun", "--all-stale"}, work));
+  const pid_t pid = start_alphatrail(with_ledger({"rerun", "--all-stale"}, work));
   kill(pid, SIGKILL);
   wait_for(pid);
   const CommandResult r = at(work.string(), {"rerun", "--all-stale"});

@@ -569,8 +569,8 @@ TEST(PackedUpgrade, VersionOneLedgerLoadsItsColumnsFromTheirJson) {
 }
 
 TEST(PackedUpgrade, VersionFourLedgerKeepsItsColumnsReadable) {
-  // A version 4 ledger made from a current one: the packed table (and the index of migration
-  // 6) taken away as if they had never existed. Opening upgrades it with an empty packed table.
+  // A version 4 ledger made from a current one: the packed table (and what migrations 6 and 7
+  // added) taken away as if they had never existed. Opening upgrades it with an empty packed table.
   ScratchDir dir;
   const auto path = dir / "v4.db";
   std::ostringstream notices;
@@ -583,6 +583,7 @@ TEST(PackedUpgrade, VersionFourLedgerKeepsItsColumnsReadable) {
     before = ledger::load_version(l, "awkward");
     l.db().exec("DROP TABLE packed_columns");
     l.db().exec("DROP INDEX version_columns_in_order");
+    l.db().exec("DROP TABLE ledger_marks");
     l.db().exec("PRAGMA user_version = 4");
   }
   auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);

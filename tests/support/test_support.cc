@@ -10,6 +10,7 @@
 
 #include <algorithm>
 #include <array>
+#include <cerrno>
 #include <cstdlib>
 #include <fstream>
 #include <random>
@@ -85,8 +86,65 @@ std::string drain(int fd) {
 
 }  // namespace
 
-CommandResult run_program(const std::vector<std::string>& argv,
-                          const std::vector<std::string>& env) {
+std::string alphatrail_binary() {
+  const char* other = std::getenv("ALPHATRAIL_TEST_BINARY");
+  return other != nullptr && *other != '\0' ? other : ALPHATRAIL_BINARY;
+}
+
+namespace {
+
+// This process's environment without ALPHATRAIL_ variables (tests state theirs), plus `env`.
+std::vector<std::string> child_environment(const std::vector<std::string>& env) {
+  std::vector<std::string> environment;
+  for (char** e = environ; *e != nullptr; ++e) {
+    std::string entry = *e;
+    if (entry.rfind("ALPHATRAIL_", 0) == 0) continue;
+    environment.push_back(entry);
+  }
+  environment.insert(environment.end(), env.begin(), env.end());
+  return environment;
+}
+
+pid_t spawn(const std::vector<std::string>& argv, const std::vector<std::string>& env,
+            posix_spawn_file_actions_t& actions) {
+  std::vector<std::string> environment = child_environment(env);
+  std::vector<char*> c_argv;
+  for (const auto& a : argv) c_argv.push_back(const_cast<char*>(a.c_str()));
+  c_argv.push_back(nullptr);
+  std::vector<char*> c_env;
+  for (auto& e : environment) c_env.push_back(e.data());
+  c_env.push_back(nullptr);
+  pid_t pid = 0;
+  const int rc = posix_spawn(&pid, c_argv[0], &actions, nullptr, c_argv.data(), c_env.data());
+  posix_spawn_file_actions_destroy(&actions);
+  if (rc != 0) throw std::runtime_error("cannot start " + argv[0]);
+  return pid;
+}
+
+}  // namespace
+
+pid_t start_alphatrail(const std::vector<std::string>& args, const std::string& err_file,
+                       const std::vector<std::string>& env) {
+  posix_spawn_file_actions_t actions;
+  posix_spawn_file_actions_init(&actions);
+  posix_spawn_file_actions_addopen(&actions, 0, "/dev/null", O_RDONLY, 0);
+  posix_spawn_file_actions_addopen(&actions, 1, "/dev/null", O_WRONLY, 0);
+  posix_spawn_file_actions_addopen(&actions, 2, err_file.c_str(), O_WRONLY | O_CREAT | O_TRUNC,
+                                   0644);
+  std::vector<std::string> argv{alphatrail_binary()};
+  argv.insert(argv.end(), args.begin(), args.end());
+  return spawn(argv, env, actions);
+}
+
+int wait_for(pid_t pid) {
+  int status = 0;
+  while (waitpid(pid, &status, 0) < 0 && errno == EINTR) {
+  }
+  return status;
+}
+
+CommandResult run_program(const std::vector<std::string>& argv, const std::vector<std::string>& env,
+                          const std::filesystem::path& cwd) {
   int out_pipe[2];
   int err_pipe[2];
   if (pipe(out_pipe) != 0 || pipe(err_pipe) != 0) throw std::runtime_error("pipe failed");
@@ -98,28 +156,16 @@ CommandResult run_program(const std::vector<std::string>& argv,
   posix_spawn_file_actions_adddup2(&actions, err_pipe[1], 2);
   posix_spawn_file_actions_addclose(&actions, out_pipe[0]);
   posix_spawn_file_actions_addclose(&actions, err_pipe[0]);
-
-  std::vector<std::string> environment;
-  for (char** e = environ; *e != nullptr; ++e) {
-    std::string entry = *e;
-    if (entry.rfind("ALPHATRAIL_", 0) == 0) continue;  // tests state their environment
-    environment.push_back(entry);
-  }
-  for (const auto& e : env) environment.push_back(e);
-
-  std::vector<char*> c_argv;
-  for (const auto& a : argv) c_argv.push_back(const_cast<char*>(a.c_str()));
-  c_argv.push_back(nullptr);
-  std::vector<char*> c_env;
-  for (auto& e : environment) c_env.push_back(e.data());
-  c_env.push_back(nullptr);
-
+  if (!cwd.empty()) posix_spawn_file_actions_addchdir_np(&actions, cwd.c_str());
   pid_t pid = 0;
-  int rc = posix_spawn(&pid, c_argv[0], &actions, nullptr, c_argv.data(), c_env.data());
-  posix_spawn_file_actions_destroy(&actions);
+  try {
+    pid = spawn(argv, env, actions);
+  } catch (...) {
+    for (int fd : {out_pipe[0], out_pipe[1], err_pipe[0], err_pipe[1]}) close(fd);
+    throw;
+  }
   close(out_pipe[1]);
   close(err_pipe[1]);
-  if (rc != 0) throw std::runtime_error("cannot start " + argv[0]);
 
   CommandResult result;
   std::thread err_reader([&] { result.err = drain(err_pipe[0]); });
@@ -132,10 +178,11 @@ CommandResult run_program(const std::vector<std::string>& argv,
 }
 
 CommandResult run_alphatrail(const std::vector<std::string>& args,
-                             const std::vector<std::string>& env) {
-  std::vector<std::string> argv{ALPHATRAIL_BINARY};
+                             const std::vector<std::string>& env,
+                             const std::filesystem::path& cwd) {
+  std::vector<std::string> argv{alphatrail_binary()};
   argv.insert(argv.end(), args.begin(), args.end());
-  return run_program(argv, env);
+  return run_program(argv, env, cwd);
 }
 
 // The six-run ledger these tests start from, built from the demo's data files exactly as the

@@ -2,6 +2,7 @@
 #pragma once
 
 #include <gtest/gtest.h>
+#include <sys/types.h>
 
 #include <filesystem>
 #include <string>
@@ -39,13 +40,29 @@ struct CommandResult {
   std::string err;  // stderr
 };
 
-// Runs the alphatrail binary with the arguments (no shell), capturing both streams.
+// Returns the binary under test: $ALPHATRAIL_TEST_BINARY when set (to run the suites against
+// another build, e.g. to see a new test fail on the code before a fix), else this build's.
+std::string alphatrail_binary();
+
+// Runs the alphatrail binary with the arguments (no shell), capturing both streams. The child's
+// environment is this one without ALPHATRAIL_ variables, plus `env`; it runs in `cwd` if given.
 CommandResult run_alphatrail(const std::vector<std::string>& args,
-                             const std::vector<std::string>& env = {});
+                             const std::vector<std::string>& env = {},
+                             const std::filesystem::path& cwd = {});
 
 // Runs an arbitrary program (no shell), capturing both streams.
 CommandResult run_program(const std::vector<std::string>& argv,
-                          const std::vector<std::string>& env = {});
+                          const std::vector<std::string>& env = {},
+                          const std::filesystem::path& cwd = {});
+
+// Starts the binary without waiting: stdin and stdout on /dev/null, stderr to a file (or
+// /dev/null); environment as for run_alphatrail. Returns the process id.
+pid_t start_alphatrail(const std::vector<std::string>& args,
+                       const std::string& err_file = "/dev/null",
+                       const std::vector<std::string>& env = {});
+
+// Waits for a started process and returns its wait status (see waitpid).
+int wait_for(pid_t pid);
 
 // Builds the six-run ledger the track-record tests start from, from the demo's data files
 // (the demo at `demo` also restates and re-runs; `ledger` stops after the first six runs).
