@@ -42,10 +42,12 @@ bool nothing_at(const std::filesystem::path& path) {
 }
 
 Error not_a_demo_ledger(const std::filesystem::path& path, const std::string& why) {
-  return Error(ExitCode::usage,
-               fmt::format("{} is not a ledger the demo made ({}): the demo replaces only its "
-                           "own ledgers and left it as it was; name a new file with --ledger",
-                           path.string(), why));
+  return Error(
+      ExitCode::usage,
+      fmt::format("{} is not a ledger the demo made ({}): the demo replaces only its "
+                  "own ledgers and left it as it was; name a new file with --ledger (or remove "
+                  "this one yourself if you no longer need it)",
+                  path.string(), why));
 }
 
 // Refuses, before anything is written, to replace a file that is not a demo ledger.
