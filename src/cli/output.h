@@ -29,8 +29,40 @@ struct Table {
 // Prints a table with aligned columns and a rule under the header.
 void print_table(std::ostream& out, const Table& table);
 
+// Prints a table whose rows arrive one at a time, for results too long to hold. The column
+// widths and alignment come from the header and the first kSampleRows rows, which are held
+// until then and printed as print_table would print them; every later row is printed at once
+// with the same widths, a wider cell just extending its line. (Widths from all rows would mean
+// holding all rows; widths from the header alone would misalign almost every column.)
+//   StreamedTable t(std::cout, {"x", "name"});
+//   t.add({"1", "a"}, {true, false});
+//   t.finish();
+class StreamedTable {
+ public:
+  static constexpr std::size_t kSampleRows = 200;
+
+  StreamedTable(std::ostream& out, std::vector<std::string> header);
+  // Adds a row; `numbers` marks its cells that hold numbers (a column with a number among the
+  // sample rows is right-aligned).
+  void add(std::vector<std::string> row, const std::vector<bool>& numbers);
+  // Prints the header and the rows still held; call once after the last row.
+  void finish();
+  // Returns true while rows are held back for the widths (nothing printed yet).
+  bool holding() const { return !printed_; }
+
+ private:
+  void print_sample();
+  std::ostream& out_;
+  Table sample_;
+  std::vector<std::size_t> widths_;  // set when the sample is printed
+  bool printed_ = false;
+};
+
 // Prints a table as RFC 4180 CSV (header row first, CRLF not used: LF line ends).
 void print_csv(std::ostream& out, const Table& table);
+
+// Prints one row of CSV: the fields quoted where needed, joined by commas, and a line end.
+void print_csv_row(std::ostream& out, const std::vector<std::string>& row);
 
 // Quotes one CSV field when it needs it (comma, quote, line break).
 std::string csv_field(const std::string& text);

@@ -5,8 +5,10 @@
 #include <fmt/format.h>
 #include <sqlite3.h>
 
+#include <cstdint>
 #include <cstdlib>
 #include <fstream>
+#include <optional>
 #include <sstream>
 #include <stdexcept>
 #include <utility>
@@ -42,26 +44,104 @@ bool has_user_objects(SQLite::Database& db) {
 
 std::unique_ptr<SQLite::Database> connect(const std::filesystem::path& path, int flags) {
   auto db = std::make_unique<SQLite::Database>(path.string(), flags, busy_timeout_ms());
-  db->exec("PRAGMA foreign_keys = ON");
+  // Only a connection that writes has foreign keys to enforce; a read-only one sets nothing.
+  if ((flags & SQLite::OPEN_READONLY) == 0) db->exec("PRAGMA foreign_keys = ON");
   return db;
 }
 
-// Checks the file is ours and not newer than this binary; returns its schema version.
-int check_identity(SQLite::Database& db, const std::filesystem::path& path) {
-  const int app_id = pragma_int(db, "application_id");
-  const int version = pragma_int(db, "user_version");
-  if (app_id == 0 && version == 0 && !has_user_objects(db)) return 0;
-  if (app_id != kApplicationId)
+// What a file says about itself: its marks and whether its schema holds anything.
+struct Identity {
+  std::uint32_t application_id = 0;
+  int user_version = 0;
+  bool has_objects = false;
+};
+
+Identity identity_of(SQLite::Database& db) {
+  return {static_cast<std::uint32_t>(pragma_int(db, "application_id")),
+          pragma_int(db, "user_version"), has_user_objects(db)};
+}
+
+std::uint32_t big_endian_32(const unsigned char* bytes) {
+  return (std::uint32_t{bytes[0]} << 24) | (std::uint32_t{bytes[1]} << 16) |
+         (std::uint32_t{bytes[2]} << 8) | std::uint32_t{bytes[3]};
+}
+
+// Reads the identity from the file's first page without SQLite (the layout is SQLite's file
+// format, sqlite.org/fileformat.html: user_version at offset 60, application_id at 68, and
+// page 1's b-tree header at 100, the root page of sqlite_master). Only trustworthy while no
+// write-ahead log or rollback journal with content lies beside the file: every committed
+// change is then in the file itself. Returns nothing when that is not so or the page is short.
+std::optional<Identity> identity_from_first_page(const std::filesystem::path& path) {
+  std::error_code ec;
+  for (const char* suffix : {"-wal", "-journal"}) {
+    const std::filesystem::path beside = path.string() + suffix;
+    if (std::filesystem::exists(beside, ec) && std::filesystem::file_size(beside, ec) != 0)
+      return std::nullopt;
+  }
+  std::ifstream in(path, std::ios::binary);
+  unsigned char page[108] = {};
+  in.read(reinterpret_cast<char*>(page), sizeof page);
+  if (in.gcount() != sizeof page) return std::nullopt;
+  constexpr unsigned char kLeafTablePage = 13;
+  const bool empty_schema = page[100] == kLeafTablePage && page[103] == 0 && page[104] == 0;
+  return Identity{big_endian_32(page + 68), static_cast<int>(big_endian_32(page + 60)),
+                  !empty_schema};
+}
+
+// Checks the file is ours, not newer than this binary and, for a read-only open, current;
+// returns its schema version (0 for an empty database the other modes make a ledger of).
+int check_identity(const Identity& id, const std::filesystem::path& path, OpenMode mode) {
+  const std::string name = path.string();
+  if (id.application_id == 0 && id.user_version == 0 && !id.has_objects) {
+    if (mode != OpenMode::read_only) return 0;
+    throw ledger_error(
+        fmt::format("{} is an empty SQLite database, not an alphatrail ledger; make it one with "
+                    "`alphatrail init --ledger {}`, or name another with --ledger",
+                    name, name));
+  }
+  if (id.application_id != static_cast<std::uint32_t>(kApplicationId))
     throw ledger_error(fmt::format(
         "{} is an SQLite database but not an alphatrail ledger (application_id {:#x}); name "
         "another file with --ledger",
-        path.string(), static_cast<unsigned>(app_id)));
-  if (version > current_schema_version())
+        name, id.application_id));
+  if (id.user_version > current_schema_version())
     throw ledger_error(fmt::format(
         "{} has schema version {}, newer than this alphatrail (it knows up to {}); use a newer "
         "alphatrail binary",
-        path.string(), version, current_schema_version()));
-  return version;
+        name, id.user_version, current_schema_version()));
+  if (mode == OpenMode::read_only && id.user_version < current_schema_version())
+    throw ledger_error(fmt::format(
+        "{} has schema version {}, older than this alphatrail (schema version {}); commands "
+        "that only read never change a ledger: upgrade it with `alphatrail init --ledger {}`",
+        name, id.user_version, current_schema_version(), name));
+  return id.user_version;
+}
+
+Error busy_error(const std::filesystem::path& path) {
+  return ledger_error(
+      fmt::format("ledger {} stayed busy for {} ms (another command is writing); try again, or "
+                  "raise ALPHATRAIL_BUSY_TIMEOUT_MS",
+                  path.string(), busy_timeout_ms()));
+}
+
+// Opens an existing ledger without writing anything: SQLITE_OPEN_READONLY from the start (no
+// journal mode, page size, migration or other setting is written) and PRAGMA query_only on
+// top. A file that is not a current ledger is refused before SQLite opens it when its first
+// page can tell: a read-only connection to a WAL file creates the -wal and -shm files beside
+// it and cannot remove them again, and a refusal leaves no trace.
+std::unique_ptr<SQLite::Database> open_read_only(const std::filesystem::path& path) {
+  std::error_code ec;
+  if (std::filesystem::is_regular_file(path, ec) && std::filesystem::file_size(path, ec) == 0)
+    throw ledger_error(fmt::format(
+        "{} is an empty file, not an alphatrail ledger; make it one with `alphatrail init "
+        "--ledger {}`, or name another with --ledger",
+        path.string(), path.string()));
+  if (const auto id = identity_from_first_page(path))
+    check_identity(*id, path, OpenMode::read_only);
+  auto db = connect(path, SQLite::OPEN_READONLY);
+  check_identity(identity_of(*db), path, OpenMode::read_only);  // what SQLite itself sees
+  db->exec("PRAGMA query_only = ON");
+  return db;
 }
 
 }  // namespace
@@ -120,11 +200,13 @@ Ledger::Ledger(std::filesystem::path path, std::unique_ptr<SQLite::Database> db)
 
 Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostream& notices) {
   std::error_code ec;
-  // SQLite takes a zero-byte file for an empty database: it becomes a new ledger.
-  const bool exists =
-      std::filesystem::exists(path, ec) &&
-      !(std::filesystem::is_regular_file(path, ec) && std::filesystem::file_size(path, ec) == 0);
-  if (!exists && mode != OpenMode::create)
+  const bool on_disk = std::filesystem::exists(path, ec);
+  // SQLite takes a zero-byte file for an empty database: it becomes a new ledger. A read-only
+  // open refuses it as what it is (open_read_only); the existing mode takes it for missing.
+  const bool exists = on_disk && !(std::filesystem::is_regular_file(path, ec) &&
+                                   std::filesystem::file_size(path, ec) == 0);
+  const bool missing = mode == OpenMode::read_only ? !on_disk : !exists;
+  if (missing && mode != OpenMode::create)
     throw ledger_error(fmt::format(
         "no ledger at {}; create one with `alphatrail init --ledger {}` or name another with "
         "--ledger",
@@ -133,13 +215,14 @@ Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostre
     throw ledger_error(fmt::format(
         "{} is not an SQLite database; name an alphatrail ledger with --ledger", path.string()));
   try {
+    if (mode == OpenMode::read_only) return Ledger(path, open_read_only(path));
     auto db = connect(path, SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
-    const int version = check_identity(*db, path);
+    const int version = check_identity(identity_of(*db), path, mode);
     // A new ledger gets 16 KiB pages (SQLite's default is 4 KiB): a stored column of 5,000
     // observations spans 4 pages instead of 15, so ingesting and loading many long series
     // make a quarter of the page reads and writes. Only possible before the first table.
     if (!exists) db->exec(fmt::format("PRAGMA page_size = {}", kNewLedgerPageSize));
-    if (mode != OpenMode::read_only && db->execAndGet("PRAGMA journal_mode").getString() != "wal")
+    if (db->execAndGet("PRAGMA journal_mode").getString() != "wal")
       db->exec("PRAGMA journal_mode = WAL");  // readers and a writer work side by side
     if (version < current_schema_version()) {
       const int applied = migrate(*db);
@@ -150,20 +233,10 @@ Ledger Ledger::open(const std::filesystem::path& path, OpenMode mode, std::ostre
         notices << fmt::format("upgraded ledger {} from schema version {} to {}\n", path.string(),
                                version, current_schema_version());
     }
-    if (mode == OpenMode::read_only) {
-      db.reset();
-      db = connect(path, SQLite::OPEN_READONLY);
-      db->exec("PRAGMA query_only = ON");
-    } else {
-      db->exec("PRAGMA synchronous = NORMAL");
-    }
+    db->exec("PRAGMA synchronous = NORMAL");
     return Ledger(path, std::move(db));
   } catch (const SQLite::Exception& e) {
-    if (e.getErrorCode() == SQLITE_BUSY)
-      throw ledger_error(fmt::format(
-          "ledger {} stayed busy for {} ms (another command is writing); try again, or raise "
-          "ALPHATRAIL_BUSY_TIMEOUT_MS",
-          path.string(), busy_timeout_ms()));
+    if (e.getErrorCode() == SQLITE_BUSY) throw busy_error(path);
     throw ledger_error(fmt::format("cannot open ledger {}: {}", path.string(), e.what()));
   }
 }

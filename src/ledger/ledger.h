@@ -1,8 +1,9 @@
 // The ledger file: opening, creating and migrating an alphatrail SQLite ledger.
 //
-// A Ledger owns one SQLite connection. Opening checks the file's application_id, refuses a
-// ledger newer than this binary and upgrades an older one in one transaction (saying so on
-// the notice stream). Failures throw alphatrail::Error with ExitCode::ledger.
+// A Ledger owns one SQLite connection. Opening checks the file's application_id and refuses a
+// ledger newer than this binary. Opening to write upgrades an older ledger in one transaction
+// (saying so on the notice stream); opening read-only writes nothing and refuses an older
+// ledger instead. Failures throw alphatrail::Error with ExitCode::ledger.
 #pragma once
 
 #include <SQLiteCpp/Database.h>
@@ -24,9 +25,13 @@ inline constexpr int kApplicationId = 0x4154524C;
 inline constexpr int kNewLedgerPageSize = 16384;
 
 enum class OpenMode {
-  create,     // create the file if missing (and say so), migrate
-  existing,   // the file must exist, migrate
-  read_only,  // the file must exist; upgraded if older, then opened without writes
+  create,    // create the file if missing (and say so), migrate
+  existing,  // the file must exist, migrate
+  // The file must be a ledger at the current schema version: opened with SQLITE_OPEN_READONLY
+  // and PRAGMA query_only, nothing written (no journal mode, no migration). An older ledger, an
+  // empty file or database and any other file are refused; `alphatrail init` upgrades an older
+  // ledger.
+  read_only,
 };
 
 // Returns the ledger path: the --ledger option when given, else $ALPHATRAIL_LEDGER, else
@@ -53,8 +58,8 @@ class CachedStatement {
 
 class Ledger {
  public:
-  // Opens (and when needed creates or upgrades) the ledger; notices go to `notices`. An older
-  // ledger is upgraded first in every mode, read_only included.
+  // Opens the ledger (in the create and existing modes creating or upgrading it when needed);
+  // notices go to `notices`. A read_only open never writes: it refuses an older ledger.
   static Ledger open(const std::filesystem::path& path, OpenMode mode, std::ostream& notices);
 
   SQLite::Database& db() { return *db_; }

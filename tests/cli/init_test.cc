@@ -1,7 +1,9 @@
 // Command-level tests of `alphatrail init` and of how every command treats the file named as
 // the ledger: a new ledger carries its marks, a newer, foreign or non-SQLite file is refused
 // and left byte for byte as it was, and an older ledger (fixtures/ledgers/v1.db) is upgraded
-// with its data intact.
+// with its data intact by init and the writing commands. The commands that only read never
+// write: they refuse an empty file, an empty SQLite database and an older ledger (naming
+// init), and leave each byte for byte as it was, with no journal files beside it.
 #include <SQLiteCpp/Database.h>
 #include <SQLiteCpp/Statement.h>
 #include <gtest/gtest.h>
@@ -44,6 +46,62 @@ std::string bytes_of(const fs::path& path) {
 }
 
 std::string version_text() { return std::to_string(current_schema_version()); }
+
+// The commands that open the ledger read-only, with the arguments each needs.
+const std::vector<std::vector<std::string>>& reading_commands() {
+  static const std::vector<std::vector<std::string>> commands{
+      {"query", "SELECT 1"},  {"verify"},        {"series"},
+      {"series", "fund-one"}, {"runs"},          {"show", "1"},
+      {"compare", "1", "2"},  {"reproduce", "1"}};
+  return commands;
+}
+
+CommandResult at(const fs::path& ledger, const std::vector<std::string>& args) {
+  std::vector<std::string> all{"--ledger", ledger.string()};
+  all.insert(all.end(), args.begin(), args.end());
+  return run_alphatrail(all);
+}
+
+// Returns the write-ahead log, shared-memory index and rollback journal beside the file, with
+// their bytes.
+std::string journal_files(const fs::path& ledger) {
+  std::string all;
+  for (const char* suffix : {"-wal", "-shm", "-journal"}) {
+    const fs::path file = ledger.string() + suffix;
+    if (fs::exists(file)) all += std::string(suffix) + ": " + read_file(file) + "\n";
+  }
+  return all;
+}
+
+// Counts the objects in an SQLite file's schema, through a read-only connection.
+int schema_objects(const fs::path& path) {
+  SQLite::Database db(path.string(), SQLite::OPEN_READONLY);
+  return db.execAndGet("SELECT count(*) FROM sqlite_master").getInt();
+}
+
+// A file that no reading command may treat as a ledger: each exits 4 with every one of
+// `messages` and leaves the file exactly as it was, making or changing no journal file beside
+// it.
+void expect_reading_commands_refuse(const ScratchDir& dir, const fs::path& ledger,
+                                    const std::vector<std::string>& messages) {
+  const std::string before = read_file(ledger);
+  const std::string journals_before = journal_files(ledger);
+  std::vector<std::vector<std::string>> commands = reading_commands();
+  commands.push_back({"report", "1", "-o", (dir / "report.html").string()});
+  for (const auto& args : commands) {
+    const CommandResult r = at(ledger, args);
+    EXPECT_EQ(r.exit_code, 4) << args[0] << ": " << r.out << r.err;
+    EXPECT_EQ(r.err.rfind("alphatrail: error: ", 0), 0u) << r.err;
+    for (const auto& message : messages)
+      EXPECT_TRUE(contains(r.err, message)) << args[0] << ": " << r.err;
+    EXPECT_EQ(r.out, "") << args[0];
+    EXPECT_EQ(fs::file_size(ledger), before.size()) << args[0] << " changed the file's size";
+    EXPECT_TRUE(read_file(ledger) == before) << args[0] << " changed the file";
+    EXPECT_TRUE(journal_files(ledger) == journals_before)
+        << args[0] << " made or changed a journal file beside the ledger";
+  }
+  EXPECT_FALSE(fs::exists(dir / "report.html"));
+}
 
 // A file that every command must refuse: each exits 4 naming the problem and leaves the file
 // exactly as it was.
@@ -127,6 +185,46 @@ TEST(InitCommand, EmptyFileBecomesANewLedger) {
                        ")\n");
   EXPECT_EQ(pragma(ledger, "user_version"), current_schema_version());
   EXPECT_EQ(pragma(ledger, "application_id"), 0x4154524C);
+}
+
+TEST(LedgerFile, ReadingCommandsRefuseAnEmptyFile) {
+  ScratchDir dir;
+  const fs::path ledger = dir.write("empty.db", "");
+  expect_reading_commands_refuse(dir, ledger,
+                                 {ledger.string() + " is an empty file, not an alphatrail ledger",
+                                  "`alphatrail init --ledger " + ledger.string() + "`"});
+  EXPECT_EQ(fs::file_size(ledger), 0u);
+}
+
+TEST(LedgerFile, ReadingCommandsRefuseAnEmptySqliteDatabase) {
+  // An SQLite file whose schema holds nothing: a table created and dropped again.
+  ScratchDir dir;
+  const fs::path ledger = dir / "blank.db";
+  {
+    SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
+    db.exec("CREATE TABLE scratch (x)");
+    db.exec("DROP TABLE scratch");
+  }
+  ASSERT_GT(fs::file_size(ledger), 0u);
+  ASSERT_EQ(schema_objects(ledger), 0);
+  expect_reading_commands_refuse(
+      dir, ledger,
+      {ledger.string() + " is an empty SQLite database, not an alphatrail ledger",
+       "`alphatrail init --ledger " + ledger.string() + "`"});
+  EXPECT_EQ(schema_objects(ledger), 0);
+  EXPECT_EQ(pragma(ledger, "user_version"), 0);
+  EXPECT_EQ(pragma(ledger, "application_id"), 0);
+}
+
+TEST(LedgerFile, ReadingCommandsRefuseAnotherApplicationsDatabase) {
+  ScratchDir dir;
+  const fs::path ledger = dir / "app.db";
+  {
+    SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
+    db.exec("PRAGMA application_id = 1234");
+    db.exec("PRAGMA journal_mode = WAL");  // so that a read would need journal files
+  }
+  expect_reading_commands_refuse(dir, ledger, {"not an alphatrail ledger (application_id 0x4d2)"});
 }
 
 TEST(LedgerFile, FolderIsRefused) {
@@ -228,19 +326,37 @@ class V1Fixture : public ::testing::Test {
   int fixture_version_ = 0;
 };
 
-TEST_F(V1Fixture, SeriesOpensItAndKeepsItsData) {
-  const CommandResult r = run_alphatrail({"--ledger", ledger_.string(), "series", "--format", "json"});
-  ASSERT_EQ(r.exit_code, 0) << r.err;
-  if (fixture_version_ < current_schema_version())
-    EXPECT_EQ(r.err, upgrade_notice());
-  else
-    EXPECT_EQ(r.err, "");
-  const auto list = nlohmann::json::parse(r.out);
+// Commands that only read never upgrade: they refuse the older ledger, name the command that
+// upgrades it and leave it byte for byte as it was; after init they read it.
+TEST_F(V1Fixture, ReadingCommandsRefuseItUntilInitUpgradesIt) {
+  ASSERT_LT(fixture_version_, current_schema_version());
+  expect_reading_commands_refuse(
+      dir_, ledger_,
+      {ledger_.string() + " has schema version 1, older than this alphatrail (schema version " +
+           version_text() + ")",
+       "upgrade it with `alphatrail init --ledger " + ledger_.string() + "`"});
+  EXPECT_EQ(pragma(ledger_, "user_version"), 1);
+
+  ASSERT_EQ(at(ledger_, {"init"}).exit_code, 0);
+  expect_upgraded_with_data();
+  const CommandResult series = at(ledger_, {"series", "--format", "json"});
+  ASSERT_EQ(series.exit_code, 0) << series.err;
+  EXPECT_EQ(series.err, "");
+  const auto list = nlohmann::json::parse(series.out);
   ASSERT_EQ(list.size(), 1u);
   EXPECT_EQ(list[0]["name"], "fund-one");
   EXPECT_EQ(list[0]["observations"], 3);
   EXPECT_EQ(list[0]["frequency"], "monthly");
-  expect_upgraded_with_data();
+  const CommandResult query =
+      at(ledger_, {"query", "SELECT count(*) AS n FROM observations WHERE series = 'fund-one'",
+                   "--format", "csv"});
+  ASSERT_EQ(query.exit_code, 0) << query.err;
+  EXPECT_EQ(query.out, "n\n3\n");
+  const CommandResult verify = at(ledger_, {"verify"});
+  EXPECT_EQ(verify.exit_code, 0) << verify.out << verify.err;
+  const CommandResult runs = at(ledger_, {"runs", "--format", "json"});
+  ASSERT_EQ(runs.exit_code, 0) << runs.err;
+  EXPECT_EQ(nlohmann::json::parse(runs.out), nlohmann::json::array());
 }
 
 TEST_F(V1Fixture, InitReportsTheUpgradeOnStdout) {

@@ -827,13 +827,16 @@ TEST_F(QueryLedgerTest, OtherWritesAreRefusedAndTheFileIsUnchanged) {
   expect_refused("  delete from run_coefficients -- lower case, leading space, a comment");
 }
 
-// Only the first statement of a text is run: a write after a read is never executed.
+// A text of two statements is refused before either runs: a write after a read is never
+// executed.
 TEST_F(QueryLedgerTest, SecondStatementIsNeverRun) {
   checkpoint(ledger_path());
   const std::string before = sha256_of_file(ledger_path());
   const CommandResult r =
       at(ledger(), {"query", "SELECT 1 AS one; DROP TABLE runs", "--format", "json"});
-  EXPECT_NE(r.exit_code, 1) << r.err;
+  EXPECT_EQ(r.exit_code, 2) << r.err;
+  EXPECT_TRUE(contains(r.err, "query runs one SQL statement")) << r.err;
+  EXPECT_EQ(r.out, "");
   EXPECT_EQ(sha256_of_file(ledger_path()), before);
   EXPECT_EQ(query_json("SELECT count(*) AS n FROM runs")[0]["n"], 6);
 }

@@ -9,6 +9,7 @@
 
 #include <cstdlib>
 #include <filesystem>
+#include <fstream>
 #include <optional>
 #include <regex>
 #include <sstream>
@@ -264,6 +265,46 @@ TEST(LedgerOpen, ReadOnlyRefusesWrites) {
                       "'strategy', '2021-01-01T00:00:00.000Z')"),
             "(no error)");
   EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM series").getInt(), 0);
+}
+
+// Opening read-only writes nothing: an older ledger, an empty file and an empty SQLite database
+// are refused (each naming init) and left byte for byte as they were.
+TEST(LedgerOpen, ReadOnlyRefusesWhatItWouldHaveToChange) {
+  ScratchDir dir;
+  const fs::path older = dir / "v1.db";
+  fs::copy_file(source_path("fixtures/ledgers/v1.db"), older);
+  const fs::path empty = dir / "empty.db";
+  { std::ofstream touch(empty); }
+  const fs::path blank = dir / "blank.db";
+  {
+    SQLite::Database db(blank.string(), SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
+    db.exec("PRAGMA user_version = 0");  // writes the first page and nothing else
+  }
+  struct Case {
+    fs::path path;
+    std::string problem;
+  };
+  for (const Case& c :
+       std::vector<Case>{{older, "has schema version 1, older than this alphatrail"},
+                         {empty, "is an empty file, not an alphatrail ledger"},
+                         {blank, "is an empty SQLite database, not an alphatrail ledger"}}) {
+    SCOPED_TRACE(c.path.string());
+    const std::string before = read_file(c.path);
+    std::ostringstream notices;
+    try {
+      ledger::Ledger::open(c.path, ledger::OpenMode::read_only, notices);
+      ADD_FAILURE() << "opened read-only";
+    } catch (const Error& e) {
+      EXPECT_EQ(e.code(), ExitCode::ledger);
+      EXPECT_TRUE(contains(e.what(), c.problem)) << e.what();
+      EXPECT_TRUE(contains(e.what(), "`alphatrail init --ledger " + c.path.string() + "`"))
+          << e.what();
+    }
+    EXPECT_EQ(notices.str(), "");
+    EXPECT_TRUE(read_file(c.path) == before) << "the file changed";
+    EXPECT_FALSE(fs::exists(c.path.string() + "-wal"));
+    EXPECT_FALSE(fs::exists(c.path.string() + "-shm"));
+  }
 }
 
 TEST(LedgerOpen, NewerLedgerIsRefused) {
