@@ -52,6 +52,11 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
     throw Error(ExitCode::usage, "--percent and --levels exclude each other: levels have no unit");
   if (!is_rate && o.quote != "yield")
     throw Error(ExitCode::usage, "--quote applies to rate files only");
+  if (is_rate && o.allow_large_returns)
+    throw Error(ExitCode::usage,
+                "--allow-large-returns is for returns; rate files hold yields, checked against "
+                "their plausible range");
+  parse.allow_large_returns = o.allow_large_returns;
   parse.unit = is_rate     ? (o.decimal ? core::ValueUnit::decimal : core::ValueUnit::percent)
                : o.levels  ? core::ValueUnit::levels
                : o.percent ? core::ValueUnit::percent
@@ -148,6 +153,9 @@ void setup_ingest(CLI::App& app, const GlobalOptions& global) {
   cmd->add_flag("--percent", o->percent, "Returns are in percent (default: decimals)");
   cmd->add_flag("--levels", o->levels, "Values are prices, NAV or index levels, not returns");
   cmd->add_flag("--decimal", o->decimal, "Rate yields are decimals (default: percent)");
+  cmd->add_flag("--allow-large-returns", o->allow_large_returns,
+                "Accept returns above +1,000% in one period (refused by default as most likely "
+                "a wrong value or unit)");
   cmd->add_option("--quote", o->quote, "Rate quote: yield (default) or discount (bank discount)")
       ->check(CLI::IsMember({"yield", "discount"}));
   cmd->add_option("--note", o->note, "Note stored with the new versions");

@@ -303,6 +303,60 @@ TEST_F(IngestTest, NegativeLevelIsRejected) {
                   "--levels");
 }
 
+TEST_F(IngestTest, LevelsGivingAReturnThatCannotBeStoredAreRejected) {
+  // Every level is positive and finite, but 100 -> 1e-300 is a return of -1 (-100%) and
+  // 1e-300 -> 1e300 overflows: stored, they made invalid JSON and a version that never verifies.
+  const std::string file =
+      write("l.csv", "month,lvl\n2020-01,100\n2020-02,1e-300\n2020-03,1e300\n2020-04,100\n");
+  expect_rejected(
+      {"strategy", file, "--levels"},
+      at(file, 3, 2) + "level 1e-300 after 100 on line 2 gives a return of -100% or less",
+      "above -100%");
+  // Into a ledger that did not exist: nothing stored, so no file either.
+  const fs::path fresh = dir_ / "fresh.db";
+  const CommandResult r = ingest_into(fresh, {"strategy", file, "--levels"});
+  EXPECT_EQ(r.exit_code, 3) << r.err;
+  EXPECT_TRUE(contains(r.err, "l.csv:3:2: ")) << r.err;
+  EXPECT_FALSE(fs::exists(fresh));
+  // The overflow alone is reported on the level that caused it.
+  const std::string overflow = write("o.csv", "month,lvl\n2020-01,1e-300\n2020-02,1e300\n");
+  expect_rejected({"strategy", overflow, "--levels"},
+                  at(overflow, 3, 2) +
+                      "level 1e+300 after 1e-300 on line 2 gives a return too "
+                      "large to represent",
+                  "check the levels");
+}
+
+TEST_F(IngestTest, ReturnAboveOneThousandPercentNeedsTheOption) {
+  const std::string file =
+      write("huge.csv", "date,a\n2021-01-31,0.01\n2021-02-28,1e300\n2021-03-31,-0.02\n");
+  expect_rejected({"strategy", file},
+                  at(file, 3, 2) + "return 1e+300 (+1e+302%) is above +1,000% in one period",
+                  "--allow-large-returns");
+  const std::string factors =
+      write("ff.csv", "date,smb,hml\n2021-01-31,0.01,0.02\n2021-02-28,0.01,25\n2021-03-31,0,0\n");
+  expect_rejected({"factor", factors, "--name", "ff"},
+                  at(factors, 3, 3) + "return 25 (+2500%) is above +1,000% in one period",
+                  "--allow-large-returns");
+  const std::string levels = write("px.csv", "date,px\n2021-01-31,100\n2021-02-28,5000\n");
+  expect_rejected({"benchmark", levels, "--levels"},
+                  at(levels, 3, 2) + "level 5000 after 100 on line 2 gives a return of +4900%",
+                  "--allow-large-returns");
+
+  // Confirmed, the value is stored as it is.
+  const CommandResult r = ingest({"strategy", file, "--allow-large-returns"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  ASSERT_EQ(observations(ledger_, "a", 1).size(), 3u);
+  EXPECT_EQ(*observations(ledger_, "a", 1)[1].value, 1e300);
+  // Rates are no returns: their plausible range decides, with or without the option.
+  const std::string rate = write("rate.csv", "date,1M\n2021-01-31,4\n2021-02-28,1e300\n");
+  expect_rejected({"rate", rate, "--name", "bills"},
+                  at(rate, 3, 2) + "rate 1e300 is outside the plausible range", "--decimal");
+  const CommandResult option = ingest({"rate", rate, "--name", "bills", "--allow-large-returns"});
+  EXPECT_EQ(option.exit_code, 2) << option.err;
+  EXPECT_TRUE(contains(option.err, "--allow-large-returns")) << option.err;
+}
+
 TEST_F(IngestTest, PercentLookingValuesWithoutPercentAreRejected) {
   // Median |value| (1.5 + 2) / 2 = 1.75 > 1 with mixed signs: percent returns, not decimals.
   const std::string file = write("pct.csv",

@@ -444,6 +444,68 @@ TEST(SeriesFileErrors, LevelZeroOrBelow) {
             "(fill it in, or leave it out with --columns)");
 }
 
+TEST(SeriesFileErrors, ReturnFromLevelsOfMinusHundredPercentOrNotFinite) {
+  // Valid levels can still give returns that are no returns: 100 -> 1e-300 rounds to -1 (a
+  // loss of everything) and 1e-300 -> 1e300 overflows. Each names the level that produced it.
+  const std::string text = "month,lvl\n2020-01,100\n2020-02,1e-300\n2020-03,1e300\n2020-04,100\n";
+  EXPECT_EQ(error_of(text, kLevels),
+            "f.csv:3:2: level 1e-300 after 100 on line 2 gives a return of -100% or less (check "
+            "the level: a simple return must be above -100%)");
+  EXPECT_EQ(error_of("month,lvl\n2020-01,1e-300\n2020-02,1e300\n", kLevels),
+            "f.csv:3:2: level 1e+300 after 1e-300 on line 2 gives a return too large to "
+            "represent (check the levels)");
+  // The rows are taken in date order: the level before is the one of the month before.
+  EXPECT_EQ(error_of("month,lvl\n2020-02,1e-300\n2020-01,100\n2020-03,1\n", kLevels),
+            "f.csv:2:2: level 1e-300 after 100 on line 3 gives a return of -100% or less (check "
+            "the level: a simple return must be above -100%)");
+  // A missing level in between gives a missing return, not one across the gap.
+  EXPECT_EQ(error_of("month,lvl\n2020-01,100\n2020-02,\n2020-03,1e-300\n2020-04,1e-300\n", kLevels),
+            "no error");
+}
+
+TEST(SeriesFileErrors, ReturnAboveOneThousandPercent) {
+  // One period's return above +1,000% (10 as a decimal) is almost surely a wrong value or a
+  // wrong unit; a return that is right needs allow_large_returns.
+  EXPECT_EQ(error_of("date,a\n2021-01,0.01\n2021-02,12.5\n2021-03,-0.02\n"),
+            "f.csv:3:2: return 12.5 (+1250%) is above +1,000% in one period (check the value; if "
+            "the file states percent, pass --percent; if the return is right, pass "
+            "--allow-large-returns)");
+  EXPECT_EQ(error_of("date,a\n2021-01,0.01\n2021-02,1e300\n2021-03,-0.02\n"),
+            "f.csv:3:2: return 1e+300 (+1e+302%) is above +1,000% in one period (check the "
+            "value; if the file states percent, pass --percent; if the return is right, pass "
+            "--allow-large-returns)");
+  EXPECT_EQ(error_of("date,a\n2021-01,1\n2021-02,1500\n2021-03,-2\n", kPercent),
+            "f.csv:3:2: return 1500% is above +1,000% in one period (check the value; if the "
+            "return is right, pass --allow-large-returns)");
+  EXPECT_EQ(error_of("date,px\n2021-01,100\n2021-02,100\n2021-03,1200\n", kLevels),
+            "f.csv:4:2: level 1200 after 100 on line 3 gives a return of +1100%, above +1,000% "
+            "in one period (check the level; if it is right, pass --allow-large-returns)");
+  SeriesFileOptions factor = options_for(SeriesKind::factor, ValueUnit::decimal);
+  EXPECT_EQ(error_of("date,smb\n2021-01,0.01\n2021-02,11\n2021-03,-0.02\n", factor),
+            "f.csv:3:2: return 11 (+1100%) is above +1,000% in one period (check the value; if "
+            "the file states percent, pass --percent; if the return is right, pass "
+            "--allow-large-returns)");
+  // +1,000% itself is allowed, and so is anything with the option.
+  EXPECT_EQ(error_of("date,a\n2021-01,0.01\n2021-02,10\n2021-03,-0.02\n"), "no error");
+  EXPECT_EQ(error_of("date,px\n2021-01,100\n2021-02,1100\n", kLevels), "no error");
+  for (SeriesFileOptions options : {kDecimal, factor}) {
+    options.allow_large_returns = true;
+    const SeriesFile file =
+        parse_series_file("f.csv", "date,a\n2021-01,0.01\n2021-02,1e300\n2021-03,-0.02\n", options);
+    EXPECT_EQ(file.columns[0].values, (std::vector<double>{0.01, 1e300, -0.02}));
+  }
+  SeriesFileOptions levels = kLevels;
+  levels.allow_large_returns = true;
+  EXPECT_EQ(parse_series_file("f.csv", "date,px\n2021-01,0.01\n2021-02,1e300\n", levels)
+                .columns[0]
+                .values,
+            (std::vector<double>{1e300 / 0.01 - 1}));
+  // Rates keep their own plausible range, which refuses absurd yields.
+  EXPECT_EQ(error_of("date,1M\n2021-01,4\n2021-02,1e300\n", kRatePercent),
+            "f.csv:3:2: rate 1e300 is outside the plausible range -5 to 50 (percent) (check the "
+            "value; if the file states decimals (0.05 for 5%), pass --decimal)");
+}
+
 TEST(SeriesFileErrors, LooksLikePercentOrLevels) {
   // |1.5|, |2.3|, |-0.4|, |3.1|, |0.8|: median 1.5.
   EXPECT_EQ(fixture_error("looks_like_percent.csv"),
