@@ -377,6 +377,41 @@ TEST_F(EvaluateTest, FailedEvaluationExits6AndRecordsNothing) {
   EXPECT_EQ(count("SELECT count(*) FROM run_coefficients"), coefficients);
 }
 
+// A return that is finite but absurd (confirmed at ingest with --allow-large-returns) makes
+// the regression overflow: the evaluation must say it cannot be estimated, before anything is
+// recorded, and not end on a constraint of the runs table.
+TEST_F(EvaluateTest, NonFiniteEstimateExits6AndRecordsNothing) {
+  const std::vector<std::string> rows = lines_of(read_file(evaluate_fixture("strategies.csv")));
+  std::string csv = "date,absurd\n";
+  for (std::size_t t = 1; t < rows.size(); ++t)
+    csv += rows[t].substr(0, rows[t].find(',')) + (t == 60 ? ",1e300\n" : ",0.01\n");
+  const std::string file = dir_.write("absurd.csv", csv).string();
+  const CommandResult refused = cli({"ingest", "strategy", file});
+  ASSERT_EQ(refused.exit_code, 3) << refused.err;
+  ASSERT_EQ(cli({"ingest", "strategy", file, "--allow-large-returns"}).exit_code, 0);
+
+  evaluate_one({"trend-fast"});
+  const long long runs = count("SELECT count(*) FROM runs");
+  const long long coefficients = count("SELECT count(*) FROM run_coefficients");
+  for (const auto& strategies :
+       std::vector<std::vector<std::string>>{{"absurd"}, {"trend-slow", "absurd", "carry"}}) {
+    std::vector<std::string> args{"evaluate"};
+    args.insert(args.end(), strategies.begin(), strategies.end());
+    args.insert(args.end(), {"--benchmark", "market", "--rate", "bills"});
+    const CommandResult r = cli(args);
+    EXPECT_EQ(r.exit_code, 6) << r.err;
+    EXPECT_TRUE(contains(
+        r.err, "1 of " + std::to_string(strategies.size()) + " strategies cannot be evaluated"))
+        << r.err;
+    EXPECT_TRUE(contains(r.err, "\n  absurd: cannot estimate")) << r.err;
+    EXPECT_TRUE(contains(r.err, "not a finite number")) << r.err;
+    EXPECT_TRUE(contains(r.err, "no run was recorded")) << r.err;
+    EXPECT_FALSE(contains(r.err, "constraint")) << r.err;
+    EXPECT_EQ(count("SELECT count(*) FROM runs"), runs);
+    EXPECT_EQ(count("SELECT count(*) FROM run_coefficients"), coefficients);
+  }
+}
+
 // More strategies than one chunk (128): each chunk is read while the one before is evaluated,
 // and its runs are recorded while the next is evaluated. The runs still come out in name
 // order with consecutive ids, each bit for bit what evaluating that strategy alone gives, and
