@@ -7,9 +7,11 @@
 
 #include "cli/commands.h"
 #include "cli/ingest.h"
+#include "cli/option_text.h"
 #include "core/error.h"
 #include "core/series_file.h"
 #include "core/sha256.h"
+#include "core/text.h"
 #include "ledger/series_store.h"
 
 namespace alphatrail::cli {
@@ -72,6 +74,23 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
   return parse;
 }
 
+// Checks the text of the request that the ledger stores: the names, the note and the file's
+// path (recorded as the source of the versions).
+void check_stored_text(const IngestRequest& o) {
+  if (!o.name.empty()) require_storable_name("--name", o.name);
+  if (!o.tenor.empty()) require_storable_name("--tenor", o.tenor);
+  require_storable_text("--note", o.note);
+  if (const auto problem = core::text_problem(o.file)) {
+    const bool utf8 = problem->fault == core::TextFault::not_utf8;
+    throw Error(ExitCode::usage,
+                fmt::format("file '{}': byte {} of the path is {} ({}) (the ledger records the "
+                            "path: rename the file, or link to it under a name {})",
+                            core::printable_text(o.file), problem->byte,
+                            utf8 ? "not valid UTF-8" : "a control character", problem->detail,
+                            utf8 ? "in UTF-8" : "without control characters"));
+  }
+}
+
 std::string stored_unit(core::SeriesKind kind, core::ValueUnit unit) {
   if (kind != core::SeriesKind::rate) return "decimal return";
   return unit == core::ValueUnit::percent ? "percent yield" : "decimal yield";
@@ -87,6 +106,7 @@ void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& 
     throw Error(ExitCode::usage,
                 fmt::format("a {} file is one named {}: give it a name with --name", o.kind,
                             kind == core::SeriesKind::rate ? "rate curve" : "factor set"));
+  check_stored_text(o);
   const core::SeriesFileOptions parse = parse_options(o, kind);
 
   const std::string bytes = read_input_file(o.file);

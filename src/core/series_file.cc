@@ -17,6 +17,7 @@
 #include "core/csv.h"
 #include "core/error.h"
 #include "core/parallel.h"
+#include "core/text.h"
 
 namespace alphatrail::core {
 
@@ -117,34 +118,16 @@ std::string quoted(std::string_view text) {
   return fmt::format("'{}'", text);
 }
 
-// Returns the first control character of a name (a line break, a tab...), or 0.
-char control_character(std::string_view name) {
-  for (const char c : name)
-    if (static_cast<unsigned char>(c) < 0x20 || c == 0x7f) return c;
-  return 0;
-}
-
-// Writes a name with its control characters escaped, so a message stays on one line.
-std::string printable(std::string_view name) {
-  std::string out;
-  for (const char c : name) {
-    if (c == '\n') {
-      out += "\\n";
-    } else if (c == '\r') {
-      out += "\\r";
-    } else if (c == '\t') {
-      out += "\\t";
-    } else if (control_character(std::string_view(&c, 1)) != 0) {
-      out += fmt::format("\\x{:02x}", static_cast<unsigned char>(c));
-    } else {
-      out += c;
-    }
+// The fix of a problem of a column name in the header.
+const char* header_name_fix(TextFault fault) {
+  switch (fault) {
+    case TextFault::not_utf8: return "save the file as UTF-8, or rename the column in the header";
+    case TextFault::control: return "rename the column in the header: a name must fit on one line";
+    case TextFault::blank: return "rename the column in the header with a visible name";
+    case TextFault::outer_space:
+      return "rename the column in the header without the white space around it";
   }
-  return out;
-}
-
-std::string what_control(char c) {
-  return c == '\n' || c == '\r' ? "a line break" : c == '\t' ? "a tab" : "a control character";
+  return "rename the column in the header";
 }
 
 std::string month_or_day(Day day, bool month_only) {
@@ -333,15 +316,16 @@ Layout make_layout(const std::string& file, const CsvRecord& header,
       layout.value_fields.push_back(i);
       layout.names.push_back(names[i]);
     }
-  // A name with a line break could not be typed on a command line, would break table output
-  // and could forge the "column: NAME" lines the content hash is made of.
+  // Names are stored: text a JSON writer cannot write would break every JSON output of the
+  // ledger, and a name with a line break could not be typed on a command line, would break
+  // table output and could forge the "column: NAME" lines the content hash is made of.
   if (options.rename.empty()) {
     for (std::size_t j = 0; j < layout.names.size(); ++j)
-      if (const char c = control_character(layout.names[j]); c != 0)
-        throw InputError(
-            file, line, static_cast<long>(layout.value_fields[j]) + 1,
-            fmt::format("column name '{}' holds {}", printable(layout.names[j]), what_control(c)),
-            "rename the column in the header: a name must fit on one line");
+      if (const auto problem = name_problem(layout.names[j]))
+        throw InputError(file, line, static_cast<long>(layout.value_fields[j]) + 1,
+                         fmt::format("column name '{}': {}", printable_text(layout.names[j]),
+                                     describe_text_problem(*problem)),
+                         header_name_fix(problem->fault));
   }
   if (layout.value_fields.empty())
     throw InputError(file, line, 0, "the header names only the date column",
@@ -353,12 +337,12 @@ Layout make_layout(const std::string& file, const CsvRecord& header,
                        fmt::format("a new name fits a single series, but the file has {}: {}",
                                    layout.names.size(), join_names(layout.names)),
                        "pick one column with --columns, or keep the names of the header");
-    if (const char c = control_character(options.rename); c != 0)
-      throw InputError(
-          file, 0, 0,
-          fmt::format("the new name '{}' holds {}", printable(options.rename), what_control(c)),
-          "give a name that fits on one line");
-    layout.names[0] = std::string(trim(options.rename));
+    if (const auto problem = name_problem(options.rename))
+      throw InputError(file, 0, 0,
+                       fmt::format("the new name '{}': {}", printable_text(options.rename),
+                                   describe_text_problem(*problem)),
+                       text_problem_fix(problem->fault));
+    layout.names[0] = options.rename;
   }
 
   if (options.kind == SeriesKind::rate) {

@@ -8,6 +8,8 @@
 // them (the unit is metadata). NaN marks a missing value. Each column is trimmed of leading and
 // trailing missing values; dates are sorted ascending.
 //
+// Column names are header cells trimmed of spaces and tabs; each selected one must be a
+// storable name (core/text.h: UTF-8, no control characters, no white space around it).
 // Every value of the result is finite, and every return above -1 and at most kLargestReturn
 // unless allowed: values derived from valid cells (returns from levels) are checked too.
 //
@@ -72,7 +74,9 @@ struct SeriesFileOptions {
   std::vector<std::string> columns;     // empty: every other column; the result keeps file order
   ValueUnit unit = ValueUnit::decimal;  // rates: percent or decimal only (see default_unit)
   RateQuote quote = RateQuote::yield;   // rates only; metadata, values are not converted
-  std::string rename;  // new name of the single series column (error when there are several)
+  // New name of the single series column (error when there are several); a storable name as
+  // core/text.h defines it, used as it is.
+  std::string rename;
   // Accept a return above kLargestReturn in one period (returns only; rates have their range).
   bool allow_large_returns = false;
   // Threads for reading rows (only files without quotes in the rows are split): 0 picks

@@ -478,6 +478,119 @@ TEST_F(IngestTest, HeaderNameWithALineBreakIsRejected) {
   expect_rejected({"factor", file, "--name", "ff"}, at(file, 1, 2), "name");
 }
 
+// --- stored text: UTF-8 without control characters ---------------------------------------
+
+// A file header in Latin-1 (e9 is é there) was stored, after which every JSON output of the
+// ledger failed: nothing stored may be text a JSON writer cannot write.
+TEST_F(IngestTest, HeaderNameThatIsNotUtf8IsRejected) {
+  const std::string file = write("latin1.csv", "date,caf\xe9-strat\n2021-01-31,0.01\n");
+  expect_rejected({"strategy", file},
+                  at(file, 1, 2) + "column name 'caf\\xe9-strat': byte 4 is not valid UTF-8 (0xe9)",
+                  "save the file as UTF-8");
+  EXPECT_EQ(count(ledger_, "SELECT count(*) FROM series"), 1);  // the seed only
+  // Each class of ill-formed UTF-8, a C1 control and white space that trimming leaves, in the
+  // column names of a factor set (they become the terms of every run).
+  const struct {
+    const char* name;
+    const char* problem;
+  } cases[] = {
+      {"hml\xc0\xaf",
+       "column name 'hml\\xc0\\xaf': byte 4 is not valid UTF-8 (0xc0 0xaf, an "
+       "overlong encoding)"},
+      {"\xed\xa0\x80x",
+       "column name '\\xed\\xa0\\x80x': byte 1 is not valid UTF-8 (0xed 0xa0 "
+       "0x80, a surrogate (U+D800))"},
+      {"x\xf4\x90\x80\x80",
+       "column name 'x\\xf4\\x90\\x80\\x80': byte 2 is not valid UTF-8 "
+       "(0xf4 0x90 0x80 0x80, above U+10FFFF)"},
+      {"a\xc2\x85"
+       "b",
+       "column name 'a\\u0085b': byte 2 is a control character (U+0085)"},
+      {"hml\xc2\xa0",
+       "column name 'hml\xc2\xa0': the name ends with white space (U+00A0 at "
+       "byte 4)"},
+  };
+  for (const auto& c : cases) {
+    const std::string f =
+        write("ff.csv", std::string("date,smb,") + c.name + "\n2021-01-31,0.01,0.02\n");
+    expect_rejected({"factor", f, "--name", "ff"}, at(f, 1, 3) + c.problem, "rename the column");
+  }
+}
+
+class IngestTextTest : public IngestTest {
+ protected:
+  // Checks that an ingest fails as a usage error (exit 2) with exactly `message`, before the
+  // ledger is opened: a seeded ledger keeps its content and a missing one is not created.
+  void expect_usage_error(const std::vector<std::string>& args, const std::string& message) {
+    seed();
+    const std::string before = dump_ledger(ledger_);
+    const CommandResult r = ingest(args);
+    EXPECT_EQ(r.exit_code, 2) << r.err;
+    EXPECT_EQ(r.err, "alphatrail: error: " + message + "\n");
+    EXPECT_EQ(r.out, "");
+    EXPECT_EQ(dump_ledger(ledger_), before);
+    const fs::path absent = dir_ / "absent.db";
+    EXPECT_EQ(ingest_into(absent, args).exit_code, 2);
+    EXPECT_FALSE(fs::exists(absent)) << "a refused ingest created the ledger";
+  }
+};
+
+TEST_F(IngestTextTest, OptionTextThatIsNotUtf8OrHoldsControlsIsAUsageError) {
+  const std::string file = write("a.csv", "date,a\n2021-01-31,0.01\n");
+  const std::string rates = write("r.csv", "date,x\n2021-01-31,4\n");
+  const std::string utf8 = " (write the text in UTF-8)";
+  const std::string one_line =
+      " (leave out control characters, tabs and line breaks: the text must fit on one line)";
+  expect_usage_error({"strategy", file, "--note", "revis\xe9"},
+                     "--note: byte 6 is not valid UTF-8 (0xe9)" + utf8);
+  expect_usage_error({"strategy", file, "--note", "two\nlines"},
+                     "--note: byte 4 is a control character (U+000A, a line break)" + one_line);
+  expect_usage_error({"strategy", file, "--name", "caf\xe9"},
+                     "--name: byte 4 is not valid UTF-8 (0xe9)" + utf8);
+  expect_usage_error({"factor", file, "--name", "f\x1b[31m"},
+                     "--name: byte 2 is a control character (U+001B)" + one_line);
+  expect_usage_error({"rate", rates, "--name", "bills", "--tenor", "1M\t"},
+                     "--tenor: byte 3 is a control character (U+0009, a tab)" + one_line);
+  const std::string latin1_path = write("caf\xe9.csv", "date,a\n2021-01-31,0.01\n");
+  expect_usage_error({"strategy", latin1_path},
+                     "file '" + (dir_ / "caf\\xe9.csv").string() + "': byte " +
+                         std::to_string((dir_ / "caf").string().size() + 1) +
+                         " of the path is not valid UTF-8 (0xe9) (the ledger records the path: "
+                         "rename the file, or link to it under a name in UTF-8)");
+}
+
+TEST_F(IngestTextTest, BlankNamesAndNamesWithWhiteSpaceAroundThemAreUsageErrors) {
+  const std::string file = write("a.csv", "date,a\n2021-01-31,0.01\n");
+  const std::string blank = "the name is blank (give a name with at least one visible character)";
+  expect_usage_error({"strategy", file, "--name", "   "}, "--name: " + blank);
+  expect_usage_error({"factor", file, "--name", " "}, "--name: " + blank);
+  expect_usage_error({"rate", file, "--name", "\xc2\xa0"}, "--name: " + blank);
+  expect_usage_error({"strategy", file, "--name", " momentum"},
+                     "--name: the name begins with white space (U+0020 at byte 1) (remove the "
+                     "white space around the name)");
+  expect_usage_error({"factor", file, "--name", "ff "},
+                     "--name: the name ends with white space (U+0020 at byte 3) (remove the "
+                     "white space around the name)");
+  EXPECT_EQ(count(ledger_, "SELECT count(*) FROM series WHERE trim(name) = ''"), 0);
+}
+
+TEST_F(IngestTextTest, Utf8NamesAndNotesAreStoredAsTheyAre) {
+  const std::string file = write("cafe.csv",
+                                 "date,caf\xc3\xa9-strat,\xe6\x97\xa5\xe6\x9c\xac\n"
+                                 "2021-01-31,0.01,0.02\n2021-02-28,0.02,0.03\n");
+  const CommandResult r =
+      ingest({"strategy", file, "--note", "r\xc3\xa9vis\xc3\xa9 \xe2\x80\x94 from the desk"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_EQ(text(ledger_, "SELECT group_concat(name, ',') FROM series"),
+            "caf\xc3\xa9-strat,\xe6\x97\xa5\xe6\x9c\xac");
+  EXPECT_EQ(text(ledger_, "SELECT DISTINCT note FROM series_versions"),
+            "r\xc3\xa9vis\xc3\xa9 \xe2\x80\x94 from the desk");
+  const CommandResult json =
+      run_alphatrail({"--ledger", ledger_.string(), "series", "--format", "json"});
+  EXPECT_EQ(json.exit_code, 0) << json.err;
+  EXPECT_TRUE(contains(json.out, "caf\xc3\xa9-strat")) << json.out;
+}
+
 // --- accepted files ----------------------------------------------------------------------
 
 TEST_F(IngestTest, DatesOutOfOrderAreSortedWithANote) {

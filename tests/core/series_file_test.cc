@@ -327,19 +327,54 @@ TEST(SeriesFileErrors, NoHeader) {
 
 TEST(SeriesFileErrors, NameWithALineBreak) {
   EXPECT_EQ(fixture_error("name_with_line_break.csv"),
-            "fixtures/ingest/name_with_line_break.csv:1:2: column name 'x\\ny' holds a line "
-            "break (rename the column in the header: a name must fit on one line)");
+            "fixtures/ingest/name_with_line_break.csv:1:2: column name 'x\\ny': byte 2 is a "
+            "control character (U+000A, a line break) (rename the column in the header: a name "
+            "must fit on one line)");
   EXPECT_EQ(error_of("date,a\tb\n2021-01,0.01\n"),
-            "f.csv:1:2: column name 'a\\tb' holds a tab (rename the column in the header: a "
-            "name must fit on one line)");
+            "f.csv:1:2: column name 'a\\tb': byte 2 is a control character (U+0009, a tab) "
+            "(rename the column in the header: a name must fit on one line)");
   // A new name replaces the header's, and is checked instead.
   SeriesFileOptions options = kDecimal;
   options.rename = "ok";
   EXPECT_EQ(parse_fixture("name_with_line_break.csv", options).columns[0].name, "ok");
   options.rename = "a\x01";
   EXPECT_EQ(error_of("date,x\n2021-01,0.01\n", options),
-            "f.csv: the new name 'a\\x01' holds a control character (give a name that fits on "
-            "one line)");
+            "f.csv: the new name 'a\\x01': byte 2 is a control character (U+0001) (leave out "
+            "control characters, tabs and line breaks: the text must fit on one line)");
+}
+
+TEST(SeriesFileErrors, NameThatIsNotStorableText) {
+  // Byte N of the name as it is stored: the header cell trimmed of spaces and tabs.
+  EXPECT_EQ(error_of("date,  caf\xe9-strat\n2021-01,0.01\n"),
+            "f.csv:1:2: column name 'caf\\xe9-strat': byte 4 is not valid UTF-8 (0xe9) (save "
+            "the file as UTF-8, or rename the column in the header)");
+  EXPECT_EQ(error_of("date,a,\"b\xc2\x85\"\n2021-01,0.01,0.02\n"),
+            "f.csv:1:3: column name 'b\\u0085': byte 2 is a control character (U+0085) (rename "
+            "the column in the header: a name must fit on one line)");
+  EXPECT_EQ(error_of("date,\xc2\xa0"
+                     "a\n2021-01,0.01\n"),
+            "f.csv:1:2: column name '\xc2\xa0"
+            "a': the name begins with white space (U+00A0 at "
+            "byte 1) (rename the column in the header without the white space around it)");
+  // Columns that are not read are not stored, whatever their names.
+  SeriesFileOptions some = kDecimal;
+  some.columns = {"a"};
+  EXPECT_EQ(error_of("date,a,caf\xe9\n2021-01,0.01,0.02\n", some), "no error");
+  // UTF-8 names are kept byte for byte.
+  EXPECT_EQ(parse_series_file("f.csv", "date,caf\xc3\xa9-strat\n2021-01,0.01\n", kDecimal)
+                .columns[0]
+                .name,
+            "caf\xc3\xa9-strat");
+  // A new name is used as given: blank or with white space around it, it is refused.
+  SeriesFileOptions options = kDecimal;
+  options.rename = "   ";
+  EXPECT_EQ(error_of("date,x\n2021-01,0.01\n", options),
+            "f.csv: the new name '   ': the name is blank (give a name with at least one visible "
+            "character)");
+  options.rename = "x ";
+  EXPECT_EQ(error_of("date,x\n2021-01,0.01\n", options),
+            "f.csv: the new name 'x ': the name ends with white space (U+0020 at byte 2) (remove "
+            "the white space around the name)");
 }
 
 TEST(SeriesFileErrors, DuplicateColumnName) {
