@@ -591,6 +591,19 @@ TEST_F(IngestTextTest, Utf8NamesAndNotesAreStoredAsTheyAre) {
   EXPECT_TRUE(contains(json.out, "caf\xc3\xa9-strat")) << json.out;
 }
 
+// $USER is stored as who ingested; a name a JSON writer cannot write is stored escaped.
+TEST_F(IngestTextTest, UserNameThatIsNotUtf8IsStoredEscaped) {
+  const std::string file = write("a.csv", "date,a\n2021-01-31,0.01\n");
+  // env(1) replaces USER; run_alphatrail's env would add a second one after the first.
+  const CommandResult r = run_program({"/usr/bin/env", "USER=caf\xe9", ALPHATRAIL_BINARY,
+                                       "--ledger", ledger_.string(), "ingest", "strategy", file});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_EQ(text(ledger_, "SELECT ingested_by FROM series_versions"), "caf\\xe9");
+  const CommandResult json =
+      run_alphatrail({"--ledger", ledger_.string(), "series", "a", "--format", "json"});
+  EXPECT_EQ(json.exit_code, 0) << json.err;
+}
+
 // --- accepted files ----------------------------------------------------------------------
 
 TEST_F(IngestTest, DatesOutOfOrderAreSortedWithANote) {
