@@ -8,6 +8,7 @@
 
 #include "cli/commands.h"
 #include "cli/evaluate.h"
+#include "cli/option_text.h"
 #include "cli/output.h"
 #include "core/error.h"
 #include "core/timings.h"
@@ -18,6 +19,9 @@ namespace {
 
 void run_evaluate_command(const EvaluateRequest& request, Format format,
                           const GlobalOptions& global) {
+  // Text the runs store, checked before the ledger is opened; an empty study is none.
+  if (!request.study.empty()) require_storable_name("--study", request.study);
+  require_storable_text("--note", request.note);
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
                                      ledger::OpenMode::existing, std::cerr);
   const auto runs = evaluate_and_record(ledger, request, isatty(2) != 0);

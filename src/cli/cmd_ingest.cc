@@ -7,9 +7,11 @@
 
 #include "cli/commands.h"
 #include "cli/ingest.h"
+#include "cli/option_text.h"
 #include "core/error.h"
 #include "core/series_file.h"
 #include "core/sha256.h"
+#include "core/text.h"
 #include "ledger/series_store.h"
 
 namespace alphatrail::cli {
@@ -52,6 +54,11 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
     throw Error(ExitCode::usage, "--percent and --levels exclude each other: levels have no unit");
   if (!is_rate && o.quote != "yield")
     throw Error(ExitCode::usage, "--quote applies to rate files only");
+  if (is_rate && o.allow_large_returns)
+    throw Error(ExitCode::usage,
+                "--allow-large-returns is for returns; rate files hold yields, checked against "
+                "their plausible range");
+  parse.allow_large_returns = o.allow_large_returns;
   parse.unit = is_rate     ? (o.decimal ? core::ValueUnit::decimal : core::ValueUnit::percent)
                : o.levels  ? core::ValueUnit::levels
                : o.percent ? core::ValueUnit::percent
@@ -65,6 +72,23 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
   if (!o.tenor.empty() && !is_rate)
     throw Error(ExitCode::usage, "--tenor applies to rate files only");
   return parse;
+}
+
+// Checks the text of the request that the ledger stores: the names, the note and the file's
+// path (recorded as the source of the versions).
+void check_stored_text(const IngestRequest& o) {
+  if (!o.name.empty()) require_storable_name("--name", o.name);
+  if (!o.tenor.empty()) require_storable_name("--tenor", o.tenor);
+  require_storable_text("--note", o.note);
+  if (const auto problem = core::text_problem(o.file)) {
+    const bool utf8 = problem->fault == core::TextFault::not_utf8;
+    throw Error(ExitCode::usage,
+                fmt::format("file '{}': byte {} of the path is {} ({}) (the ledger records the "
+                            "path: rename the file, or link to it under a name {})",
+                            core::printable_text(o.file), problem->byte,
+                            utf8 ? "not valid UTF-8" : "a control character", problem->detail,
+                            utf8 ? "in UTF-8" : "without control characters"));
+  }
 }
 
 std::string stored_unit(core::SeriesKind kind, core::ValueUnit unit) {
@@ -81,6 +105,7 @@ CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
     throw Error(ExitCode::usage,
                 fmt::format("a {} file is one named {}: give it a name with --name", o.kind,
                             kind == core::SeriesKind::rate ? "rate curve" : "factor set"));
+  check_stored_text(o);
   const core::SeriesFileOptions parse = parse_options(o, kind);
 
   const std::string bytes = read_input_file(o.file);
@@ -156,6 +181,9 @@ void setup_ingest(CLI::App& app, const GlobalOptions& global) {
   cmd->add_flag("--percent", o->percent, "Returns are in percent (default: decimals)");
   cmd->add_flag("--levels", o->levels, "Values are prices, NAV or index levels, not returns");
   cmd->add_flag("--decimal", o->decimal, "Rate yields are decimals (default: percent)");
+  cmd->add_flag("--allow-large-returns", o->allow_large_returns,
+                "Accept returns above +1,000% in one period (refused by default as most likely "
+                "a wrong value or unit)");
   cmd->add_option("--quote", o->quote, "Rate quote: yield (default) or discount (bank discount)")
       ->check(CLI::IsMember({"yield", "discount"}));
   cmd->add_option("--note", o->note, "Note stored with the new versions");

@@ -22,6 +22,7 @@ struct IngestRequest {
   bool percent = false;
   bool levels = false;
   bool decimal = false;
+  bool allow_large_returns = false;  // accept a return above +1,000% in one period
   std::string quote = "yield";
   std::string note;
 };

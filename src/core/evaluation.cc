@@ -280,6 +280,30 @@ Design build_design(const Aligned& a, const std::vector<std::string>& factor_nam
   return d;
 }
 
+// Throws Error(estimation) naming every figure of a result that is not a finite number among
+// those a run must hold (NOT NULL in schema/ledger.sql: each coefficient's estimate and
+// standard error, annualized alpha) and the sums they come from. Data with values far beyond
+// the others (a confirmed return of 1e300) overflow the sums of squares; such a result would
+// otherwise reach the ledger as NULL or infinity. Ratios that may be undefined (R-squared of a
+// constant excess return, a Sharpe ratio of zero spread) stay NaN and are recorded as null.
+void require_finite_figures(const OlsResult& fit, const DerivedStatistics& d) {
+  std::vector<std::string> bad;
+  for (std::size_t j = 0; j < fit.coefficients.size(); ++j) {
+    const Coefficient& c = fit.coefficients[j];
+    if (!std::isfinite(c.estimate)) bad.push_back(c.term);
+    if (!std::isfinite(c.std_error)) bad.push_back(c.term + "'s standard error");
+  }
+  if (!std::isfinite(d.alpha_annualized)) bad.push_back("annualized alpha");
+  if (!std::isfinite(fit.residual_std)) bad.push_back("the residual standard deviation");
+  if (!std::isfinite(fit.rss) || !std::isfinite(fit.tss)) bad.push_back("the sums of squares");
+  if (bad.empty()) return;
+  throw Error(ExitCode::estimation,
+              fmt::format("cannot estimate: not a finite number: {} (the data hold values too "
+                          "large to compute with; check the returns for values far beyond the "
+                          "others)",
+                          fmt::join(bad, ", ")));
+}
+
 }  // namespace
 
 EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit, bool keep_series) const {
@@ -338,6 +362,7 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit, bool keep_seri
   d.down_market_beta = st.down_beta;
   d.up_periods = st.up_periods;
   d.down_periods = st.down_periods;
+  require_finite_figures(fit, d);
   if (keep_series) {
     const std::size_t T = keys.size();
     r.keys = keys;
@@ -429,8 +454,14 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
     if (group == groups.end()) group = groups.insert(groups.end(), {keys, {}});
     group->second.push_back(i);
   }
+  // A result with figures that are not finite is that strategy's error, not the batch's.
   const auto finish_member = [&](std::size_t i, OlsResult&& fit) {
-    outcomes[i].result = finish(std::move(prepared[i - begin]), std::move(fit), keep_series);
+    try {
+      outcomes[i].result = finish(std::move(prepared[i - begin]), std::move(fit), keep_series);
+    } catch (const Error& e) {
+      outcomes[i].error = e.what();
+      outcomes[i].error_code = static_cast<int>(e.code());
+    }
   };
   for (const auto& group : groups) {
     const std::vector<std::size_t>& members = group.second;  // named: lambdas capture it

@@ -6,9 +6,11 @@
 // Model: r_s - r_f = alpha + beta (r_m - r_f) + sum_j b_j f_j + e, where f_j are factor
 // returns used as given (factor sets hold zero-investment spread returns).
 //
-// Failure: throws alphatrail::Error(ExitCode::estimation) when the aligned sample is too short
-// or the design is collinear or ill-conditioned, and Error(ExitCode::bad_input) for inputs
-// that cannot be put on the evaluation frequency. Nothing is returned on failure.
+// Failure: throws alphatrail::Error(ExitCode::estimation) when the aligned sample is too short,
+// the design is collinear or ill-conditioned, or a figure every run must hold (an estimate, a
+// standard error, annualized alpha) comes out as no finite number, and
+// Error(ExitCode::bad_input) for inputs that cannot be put on the evaluation frequency.
+// Nothing is returned on failure.
 #pragma once
 
 #include <optional>

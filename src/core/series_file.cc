@@ -17,6 +17,7 @@
 #include "core/csv.h"
 #include "core/error.h"
 #include "core/parallel.h"
+#include "core/text.h"
 
 namespace alphatrail::core {
 
@@ -117,34 +118,16 @@ std::string quoted(std::string_view text) {
   return fmt::format("'{}'", text);
 }
 
-// Returns the first control character of a name (a line break, a tab...), or 0.
-char control_character(std::string_view name) {
-  for (const char c : name)
-    if (static_cast<unsigned char>(c) < 0x20 || c == 0x7f) return c;
-  return 0;
-}
-
-// Writes a name with its control characters escaped, so a message stays on one line.
-std::string printable(std::string_view name) {
-  std::string out;
-  for (const char c : name) {
-    if (c == '\n') {
-      out += "\\n";
-    } else if (c == '\r') {
-      out += "\\r";
-    } else if (c == '\t') {
-      out += "\\t";
-    } else if (control_character(std::string_view(&c, 1)) != 0) {
-      out += fmt::format("\\x{:02x}", static_cast<unsigned char>(c));
-    } else {
-      out += c;
-    }
+// The fix of a problem of a column name in the header.
+const char* header_name_fix(TextFault fault) {
+  switch (fault) {
+    case TextFault::not_utf8: return "save the file as UTF-8, or rename the column in the header";
+    case TextFault::control: return "rename the column in the header: a name must fit on one line";
+    case TextFault::blank: return "rename the column in the header with a visible name";
+    case TextFault::outer_space:
+      return "rename the column in the header without the white space around it";
   }
-  return out;
-}
-
-std::string what_control(char c) {
-  return c == '\n' || c == '\r' ? "a line break" : c == '\t' ? "a tab" : "a control character";
+  return "rename the column in the header";
 }
 
 std::string month_or_day(Day day, bool month_only) {
@@ -235,6 +218,7 @@ struct Layout {
   ValueUnit unit = ValueUnit::decimal;
   double rate_low = 0;  // plausible rate range in the file's unit
   double rate_high = 0;
+  bool allow_large_returns = false;
 };
 
 // The rows of the file in file order, filled by parts of the file at known row offsets.
@@ -251,6 +235,7 @@ Layout make_layout(const std::string& file, const CsvRecord& header,
   layout.file = file;
   layout.kind = options.kind;
   layout.unit = options.unit;
+  layout.allow_large_returns = options.allow_large_returns;
   layout.width = header.fields.size();
   const long line = header.line;
   std::vector<std::string> names;
@@ -331,15 +316,16 @@ Layout make_layout(const std::string& file, const CsvRecord& header,
       layout.value_fields.push_back(i);
       layout.names.push_back(names[i]);
     }
-  // A name with a line break could not be typed on a command line, would break table output
-  // and could forge the "column: NAME" lines the content hash is made of.
+  // Names are stored: text a JSON writer cannot write would break every JSON output of the
+  // ledger, and a name with a line break could not be typed on a command line, would break
+  // table output and could forge the "column: NAME" lines the content hash is made of.
   if (options.rename.empty()) {
     for (std::size_t j = 0; j < layout.names.size(); ++j)
-      if (const char c = control_character(layout.names[j]); c != 0)
-        throw InputError(
-            file, line, static_cast<long>(layout.value_fields[j]) + 1,
-            fmt::format("column name '{}' holds {}", printable(layout.names[j]), what_control(c)),
-            "rename the column in the header: a name must fit on one line");
+      if (const auto problem = name_problem(layout.names[j]))
+        throw InputError(file, line, static_cast<long>(layout.value_fields[j]) + 1,
+                         fmt::format("column name '{}': {}", printable_text(layout.names[j]),
+                                     describe_text_problem(*problem)),
+                         header_name_fix(problem->fault));
   }
   if (layout.value_fields.empty())
     throw InputError(file, line, 0, "the header names only the date column",
@@ -351,12 +337,12 @@ Layout make_layout(const std::string& file, const CsvRecord& header,
                        fmt::format("a new name fits a single series, but the file has {}: {}",
                                    layout.names.size(), join_names(layout.names)),
                        "pick one column with --columns, or keep the names of the header");
-    if (const char c = control_character(options.rename); c != 0)
-      throw InputError(
-          file, 0, 0,
-          fmt::format("the new name '{}' holds {}", printable(options.rename), what_control(c)),
-          "give a name that fits on one line");
-    layout.names[0] = std::string(trim(options.rename));
+    if (const auto problem = name_problem(options.rename))
+      throw InputError(file, 0, 0,
+                       fmt::format("the new name '{}': {}", printable_text(options.rename),
+                                   describe_text_problem(*problem)),
+                       text_problem_fix(problem->fault));
+    layout.names[0] = options.rename;
   }
 
   if (options.kind == SeriesKind::rate) {
@@ -549,6 +535,58 @@ void check_return_scale(const Layout& layout, std::size_t j, const std::vector<d
       "pass --percent, or --levels if these are prices");
 }
 
+constexpr const char* kLargeReturnFix = "if the return is right, pass --allow-large-returns";
+
+// Checks the returns r_t = P_t / P_{t-1} - 1 that a column of levels in date order gives (NaN
+// for missing), before they replace the levels: valid levels can still give no valid return
+// (100 then 1e-300 rounds to -1, 1e-300 then 1e300 overflows), and a return above
+// kLargestReturn needs the option. Points at the level that produced the return.
+void check_level_returns(const Layout& layout, std::size_t j, const std::vector<double>& levels,
+                         const std::vector<long>& lines, const std::vector<std::size_t>& order) {
+  const long column = static_cast<long>(layout.value_fields[j]) + 1;
+  for (std::size_t i = 1; i < levels.size(); ++i) {
+    const double r = levels[i] / levels[i - 1] - 1;
+    if (std::isnan(r) || (r > -1 && r <= kLargestReturn)) continue;
+    if (std::isfinite(r) && r > -1 && layout.allow_large_returns) continue;
+    const long line = lines[order[i]];
+    const std::string what =
+        fmt::format("level {} after {} on line {}", levels[i], levels[i - 1], lines[order[i - 1]]);
+    if (!std::isfinite(r))
+      throw InputError(layout.file, line, column, what + " gives a return too large to represent",
+                       "check the levels");
+    if (r <= -1)
+      throw InputError(layout.file, line, column, what + " gives a return of -100% or less",
+                       "check the level: a simple return must be above -100%");
+    throw InputError(
+        layout.file, line, column,
+        fmt::format("{} gives a return of {:+.4g}%, above +1,000% in one period", what, 100 * r),
+        "check the level; if it is right, pass --allow-large-returns");
+  }
+}
+
+// Refuses a return above kLargestReturn in a column of returns (decimal, percent divided by
+// 100) unless the option allows it: one period's +1,000% is far more often a wrong value or a
+// wrong unit than a real return. `values` are in date order; rates have their own range.
+void check_large_returns(const Layout& layout, std::size_t j, const std::vector<double>& values,
+                         const std::vector<long>& lines, const std::vector<std::size_t>& order) {
+  if (layout.kind == SeriesKind::rate || layout.unit == ValueUnit::levels ||
+      layout.allow_large_returns)
+    return;
+  const long column = static_cast<long>(layout.value_fields[j]) + 1;
+  for (std::size_t i = 0; i < values.size(); ++i) {
+    const double r = values[i];
+    if (!(r > kLargestReturn)) continue;
+    if (layout.unit == ValueUnit::percent)
+      throw InputError(layout.file, lines[order[i]], column,
+                       fmt::format("return {:.6g}% is above +1,000% in one period", 100 * r),
+                       fmt::format("check the value; {}", kLargeReturnFix));
+    throw InputError(layout.file, lines[order[i]], column,
+                     fmt::format("return {} ({:+.4g}%) is above +1,000% in one period", r, 100 * r),
+                     fmt::format("check the value; if the file states percent, pass --percent; {}",
+                                 kLargeReturnFix));
+  }
+}
+
 unsigned thread_count(const SeriesFileOptions& options, std::size_t bytes) {
   if (options.threads > 0) return std::min(options.threads, kMaxExplicitThreads);
   if (bytes < kParallelBytes) return 1;
@@ -688,6 +726,7 @@ SeriesFile parse_series_file(const std::string& display_name, std::string_view c
       v.swap(sorted);
     }
     if (layout.unit == ValueUnit::levels) {
+      check_level_returns(layout, j, v, lines, order);
       // r_t = P_t / P_{t-1} - 1; NaN on either side propagates, so a return after a missing
       // level is missing.
       for (std::size_t i = n - 1; i > 0; --i) v[i] = v[i] / v[i - 1] - 1;
@@ -707,6 +746,7 @@ SeriesFile parse_series_file(const std::string& display_name, std::string_view c
     std::size_t last = n - 1;
     while (std::isnan(v[last])) --last;
     check_return_scale(layout, j, v, header_line);
+    check_large_returns(layout, j, v, lines, order);
     SeriesColumn& out = result.columns[j];
     out.name = layout.names[j];
     out.dates.assign(sorted_dates.begin() + static_cast<std::ptrdiff_t>(first),

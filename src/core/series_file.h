@@ -8,6 +8,11 @@
 // them (the unit is metadata). NaN marks a missing value. Each column is trimmed of leading and
 // trailing missing values; dates are sorted ascending.
 //
+// Column names are header cells trimmed of spaces and tabs; each selected one must be a
+// storable name (core/text.h: UTF-8, no control characters, no white space around it).
+// Every value of the result is finite, and every return above -1 and at most kLargestReturn
+// unless allowed: values derived from valid cells (returns from levels) are checked too.
+//
 // Failure: any problem throws InputError "FILE:LINE:COLUMN: problem (fix)" with the position
 // of the offending cell (LINE is the physical line, the header being line 1; COLUMN the 1-based
 // field index); problems of a whole column point at its header cell, problems of the whole
@@ -59,13 +64,21 @@ ValueUnit default_unit(SeriesKind kind);
 // Example: is_tenor("13W") && is_tenor("1m") && !is_tenor("M1")
 bool is_tenor(std::string_view name);
 
+// The largest return one period may have without SeriesFileOptions::allow_large_returns:
+// +1,000% (10 as a decimal), after percent conversion and for returns from levels.
+inline constexpr double kLargestReturn = 10;
+
 struct SeriesFileOptions {
   SeriesKind kind = SeriesKind::strategy;
   std::string date_column;              // empty: the first column
   std::vector<std::string> columns;     // empty: every other column; the result keeps file order
   ValueUnit unit = ValueUnit::decimal;  // rates: percent or decimal only (see default_unit)
   RateQuote quote = RateQuote::yield;   // rates only; metadata, values are not converted
-  std::string rename;  // new name of the single series column (error when there are several)
+  // New name of the single series column (error when there are several); a storable name as
+  // core/text.h defines it, used as it is.
+  std::string rename;
+  // Accept a return above kLargestReturn in one period (returns only; rates have their range).
+  bool allow_large_returns = false;
   // Threads for reading rows (only files without quotes in the rows are split): 0 picks
   // std::thread::hardware_concurrency(), and one for files under 1 MiB. Any count gives the
   // same result and the same first error.

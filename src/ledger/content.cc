@@ -89,6 +89,16 @@ char* write_little_endian(char* p, Word w) {
                           name, problem));
 }
 
+// Refuses a value the canonical form cannot hold. JSON has no infinity, so text holding one
+// could never be decoded or verified, and versions are immutable: ingest refuses such values
+// with their file position first, so reaching this is a bug of whatever produced the column.
+[[noreturn]] void not_storable(const ColumnData& column, std::size_t i) {
+  throw Error(ExitCode::failure,
+              fmt::format("internal error: column '{}' holds {} on {}, which the ledger cannot "
+                          "store; this is a bug, please report it; nothing was written",
+                          column.name, column.values[i], core::format_date(column.dates[i])));
+}
+
 }  // namespace
 
 PackedColumn encode_packed(const ColumnData& column) {
@@ -102,6 +112,7 @@ PackedColumn encode_packed(const ColumnData& column) {
     // is a function of the JSON and verify can compare bytes.
     const double x =
         std::isnan(column.values[i]) ? std::numeric_limits<double>::quiet_NaN() : column.values[i];
+    if (std::isinf(x)) not_storable(column, i);
     v = write_little_endian(v, std::bit_cast<std::uint64_t>(x));
   }
   return packed;
@@ -165,6 +176,8 @@ std::string encode_values_json(const ColumnData& column) {
     if (std::isnan(v)) {
       std::memcpy(p, "null", 4);
       p += 4;
+    } else if (std::isinf(v)) {
+      not_storable(column, i);
     } else {
       p = fmt::format_to(p, FMT_COMPILE("{}"), v);  // shortest round-trip form
     }

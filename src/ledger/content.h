@@ -28,7 +28,8 @@ struct ContentMeta {
   std::optional<std::string> quote;  // rates: yield | discount
 };
 
-// Encodes a column's observations as canonical JSON.
+// Encodes a column's observations as canonical JSON; throws alphatrail::Error(failure), an
+// internal error, for an infinite value, which JSON cannot hold (NaN is missing: null).
 // Example: {"2021-01-29":0.012,"2021-02-26":null}.
 std::string encode_values_json(const ColumnData& column);
 
@@ -47,7 +48,8 @@ struct PackedColumn {
 inline constexpr core::Day kFirstStoredDay = -719528;
 inline constexpr core::Day kLastStoredDay = 2932896;
 
-// Packs a column's observations; the inverse of decode_packed.
+// Packs a column's observations; the inverse of decode_packed. Refuses an infinite value as
+// encode_values_json does, so that no packed copy holds what its JSON could not.
 // Example: three observations pack into 12 bytes of days and 24 bytes of numbers.
 PackedColumn encode_packed(const ColumnData& column);
 

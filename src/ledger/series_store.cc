@@ -20,6 +20,7 @@
 
 #include "core/error.h"
 #include "core/parallel.h"
+#include "core/text.h"
 
 namespace alphatrail::ledger {
 
@@ -173,8 +174,14 @@ std::string utc_now() {
 }
 
 std::string current_user() {
-  if (const char* user = std::getenv("USER"); user != nullptr && *user != '\0') return user;
-  if (const passwd* pw = getpwuid(getuid()); pw != nullptr) return pw->pw_name;
+  // The environment is no user's typing to refuse: a name that is not storable text is stored
+  // with its bad bytes escaped, so every JSON output can still write it.
+  const auto storable = [](const char* name) {
+    return core::text_problem(name) ? core::printable_text(name) : std::string(name);
+  };
+  if (const char* user = std::getenv("USER"); user != nullptr && *user != '\0')
+    return storable(user);
+  if (const passwd* pw = getpwuid(getuid()); pw != nullptr) return storable(pw->pw_name);
   return "unknown";
 }
 

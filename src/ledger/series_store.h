@@ -102,7 +102,8 @@ std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<Version
 // Returns the current UTC time as ISO 8601 with milliseconds, e.g. 2026-12-02T01:02:03.004Z.
 std::string utc_now();
 
-// Returns the name of the user running the command.
+// Returns the name of the user running the command ($USER, else the account), with bytes that
+// are not storable text (core/text.h) escaped as \xNN.
 std::string current_user();
 
 }  // namespace alphatrail::ledger

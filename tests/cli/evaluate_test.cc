@@ -377,6 +377,112 @@ TEST_F(EvaluateTest, FailedEvaluationExits6AndRecordsNothing) {
   EXPECT_EQ(count("SELECT count(*) FROM run_coefficients"), coefficients);
 }
 
+// A return that is finite but absurd (confirmed at ingest with --allow-large-returns) makes
+// the regression overflow: the evaluation must say it cannot be estimated, before anything is
+// recorded, and not end on a constraint of the runs table.
+TEST_F(EvaluateTest, NonFiniteEstimateExits6AndRecordsNothing) {
+  const std::vector<std::string> rows = lines_of(read_file(evaluate_fixture("strategies.csv")));
+  std::string csv = "date,absurd\n";
+  for (std::size_t t = 1; t < rows.size(); ++t)
+    csv += rows[t].substr(0, rows[t].find(',')) + (t == 60 ? ",1e300\n" : ",0.01\n");
+  const std::string file = dir_.write("absurd.csv", csv).string();
+  const CommandResult refused = cli({"ingest", "strategy", file});
+  ASSERT_EQ(refused.exit_code, 3) << refused.err;
+  ASSERT_EQ(cli({"ingest", "strategy", file, "--allow-large-returns"}).exit_code, 0);
+
+  evaluate_one({"trend-fast"});
+  const long long runs = count("SELECT count(*) FROM runs");
+  const long long coefficients = count("SELECT count(*) FROM run_coefficients");
+  for (const auto& strategies :
+       std::vector<std::vector<std::string>>{{"absurd"}, {"trend-slow", "absurd", "carry"}}) {
+    std::vector<std::string> args{"evaluate"};
+    args.insert(args.end(), strategies.begin(), strategies.end());
+    args.insert(args.end(), {"--benchmark", "market", "--rate", "bills"});
+    const CommandResult r = cli(args);
+    EXPECT_EQ(r.exit_code, 6) << r.err;
+    EXPECT_TRUE(contains(
+        r.err, "1 of " + std::to_string(strategies.size()) + " strategies cannot be evaluated"))
+        << r.err;
+    EXPECT_TRUE(contains(r.err, "\n  absurd: cannot estimate")) << r.err;
+    EXPECT_TRUE(contains(r.err, "not a finite number")) << r.err;
+    EXPECT_TRUE(contains(r.err, "no run was recorded")) << r.err;
+    EXPECT_FALSE(contains(r.err, "constraint")) << r.err;
+    EXPECT_EQ(count("SELECT count(*) FROM runs"), runs);
+    EXPECT_EQ(count("SELECT count(*) FROM run_coefficients"), coefficients);
+  }
+}
+
+// Text evaluate stores (--note, --study) is checked like every stored text: a Latin-1 note
+// used to be recorded, after which every JSON output of the ledger failed.
+TEST_F(EvaluateTest, NoteOrStudyThatCannotBeStoredIsAUsageError) {
+  evaluate_one({"trend-fast"});
+  const long long runs = count("SELECT count(*) FROM runs");
+  const struct {
+    std::vector<std::string> args;
+    std::string message;
+  } cases[] = {
+      {{"--note", "revis\xe9"},
+       "--note: byte 6 is not valid UTF-8 (0xe9) (write the text in UTF-8)"},
+      {{"--study", "trend\tv2"},
+       "--study: byte 6 is a control character (U+0009, a tab) (leave out control characters, "
+       "tabs and line breaks: the text must fit on one line)"},
+      {{"--study", "trend\xc2\x9b"},
+       "--study: byte 6 is a control character (U+009B) (leave out control characters, tabs and "
+       "line breaks: the text must fit on one line)"},
+      {{"--study", "   "},
+       "--study: the name is blank (give a name with at least one visible character)"},
+      {{"--study", "trend "},
+       "--study: the name ends with white space (U+0020 at byte 6) (remove the white space "
+       "around the name)"},
+  };
+  for (const auto& c : cases) {
+    std::vector<std::string> args{"evaluate", "trend-slow", "--benchmark",
+                                  "market",   "--rate",     "bills"};
+    args.insert(args.end(), c.args.begin(), c.args.end());
+    const CommandResult r = cli(args);
+    EXPECT_EQ(r.exit_code, 2) << r.err;
+    EXPECT_EQ(r.err, "alphatrail: error: " + c.message + "\n");
+    EXPECT_EQ(r.out, "");
+  }
+  EXPECT_EQ(count("SELECT count(*) FROM runs"), runs);
+}
+
+// Names, notes and studies in UTF-8 go all the way through: ingest, evaluate, and every JSON
+// output that shows them.
+TEST_F(EvaluateTest, Utf8NamesNotesAndStudiesWorkInEveryJsonOutput) {
+  const std::string name = "caf\xc3\xa9-strat";
+  const std::string note = "r\xc3\xa9vis\xc3\xa9 \xe2\x80\x94 seconde passe";
+  const std::string study = "\xc3\xa9tude \xe6\x97\xa5\xe6\x9c\xac";
+  const std::vector<std::string> rows = lines_of(read_file(evaluate_fixture("strategies.csv")));
+  std::string csv = "date," + name + "\n";
+  for (std::size_t t = 1; t < rows.size(); ++t)
+    csv += rows[t].substr(0, rows[t].find(',', rows[t].find(',') + 1)) + "\n";
+  const CommandResult ingested =
+      cli({"ingest", "strategy", dir_.write("cafe.csv", csv).string(), "--note", note});
+  ASSERT_EQ(ingested.exit_code, 0) << ingested.err;
+
+  const json run = evaluate_one({name, "--note", note, "--study", study});
+  EXPECT_EQ(run["strategy"], name);
+  EXPECT_EQ(run["note"], note);
+  EXPECT_EQ(run["study"], study);
+
+  const CommandResult series = cli({"series", "--format", "json"});
+  ASSERT_EQ(series.exit_code, 0) << series.err;
+  EXPECT_TRUE(contains(json::parse(series.out).dump(), name)) << series.out;
+  const CommandResult history = cli({"series", name, "--format", "json"});
+  ASSERT_EQ(history.exit_code, 0) << history.err;
+  EXPECT_TRUE(contains(json::parse(history.out).dump(), note)) << history.out;
+  const CommandResult runs = cli({"runs", "--format", "json"});
+  ASSERT_EQ(runs.exit_code, 0) << runs.err;
+  const json listed = json::parse(runs.out);
+  ASSERT_FALSE(listed.empty());
+  EXPECT_EQ(listed.back()["strategy"], name);
+  EXPECT_EQ(listed.back()["study"], study);
+  const CommandResult shown = cli({"show", run["run_id"].dump(), "--format", "json"});
+  ASSERT_EQ(shown.exit_code, 0) << shown.err;
+  EXPECT_EQ(json::parse(shown.out)["note"], note);
+}
+
 // More strategies than one chunk (128): each chunk is read while the one before is evaluated,
 // and its runs are recorded while the next is evaluated. The runs still come out in name
 // order with consecutive ids, each bit for bit what evaluating that strategy alone gives, and

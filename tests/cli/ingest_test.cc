@@ -303,6 +303,60 @@ TEST_F(IngestTest, NegativeLevelIsRejected) {
                   "--levels");
 }
 
+TEST_F(IngestTest, LevelsGivingAReturnThatCannotBeStoredAreRejected) {
+  // Every level is positive and finite, but 100 -> 1e-300 is a return of -1 (-100%) and
+  // 1e-300 -> 1e300 overflows: stored, they made invalid JSON and a version that never verifies.
+  const std::string file =
+      write("l.csv", "month,lvl\n2020-01,100\n2020-02,1e-300\n2020-03,1e300\n2020-04,100\n");
+  expect_rejected(
+      {"strategy", file, "--levels"},
+      at(file, 3, 2) + "level 1e-300 after 100 on line 2 gives a return of -100% or less",
+      "above -100%");
+  // Into a ledger that did not exist: nothing stored, so no file either.
+  const fs::path fresh = dir_ / "fresh.db";
+  const CommandResult r = ingest_into(fresh, {"strategy", file, "--levels"});
+  EXPECT_EQ(r.exit_code, 3) << r.err;
+  EXPECT_TRUE(contains(r.err, "l.csv:3:2: ")) << r.err;
+  EXPECT_FALSE(fs::exists(fresh));
+  // The overflow alone is reported on the level that caused it.
+  const std::string overflow = write("o.csv", "month,lvl\n2020-01,1e-300\n2020-02,1e300\n");
+  expect_rejected({"strategy", overflow, "--levels"},
+                  at(overflow, 3, 2) +
+                      "level 1e+300 after 1e-300 on line 2 gives a return too "
+                      "large to represent",
+                  "check the levels");
+}
+
+TEST_F(IngestTest, ReturnAboveOneThousandPercentNeedsTheOption) {
+  const std::string file =
+      write("huge.csv", "date,a\n2021-01-31,0.01\n2021-02-28,1e300\n2021-03-31,-0.02\n");
+  expect_rejected({"strategy", file},
+                  at(file, 3, 2) + "return 1e+300 (+1e+302%) is above +1,000% in one period",
+                  "--allow-large-returns");
+  const std::string factors =
+      write("ff.csv", "date,smb,hml\n2021-01-31,0.01,0.02\n2021-02-28,0.01,25\n2021-03-31,0,0\n");
+  expect_rejected({"factor", factors, "--name", "ff"},
+                  at(factors, 3, 3) + "return 25 (+2500%) is above +1,000% in one period",
+                  "--allow-large-returns");
+  const std::string levels = write("px.csv", "date,px\n2021-01-31,100\n2021-02-28,5000\n");
+  expect_rejected({"benchmark", levels, "--levels"},
+                  at(levels, 3, 2) + "level 5000 after 100 on line 2 gives a return of +4900%",
+                  "--allow-large-returns");
+
+  // Confirmed, the value is stored as it is.
+  const CommandResult r = ingest({"strategy", file, "--allow-large-returns"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  ASSERT_EQ(observations(ledger_, "a", 1).size(), 3u);
+  EXPECT_EQ(*observations(ledger_, "a", 1)[1].value, 1e300);
+  // Rates are no returns: their plausible range decides, with or without the option.
+  const std::string rate = write("rate.csv", "date,1M\n2021-01-31,4\n2021-02-28,1e300\n");
+  expect_rejected({"rate", rate, "--name", "bills"},
+                  at(rate, 3, 2) + "rate 1e300 is outside the plausible range", "--decimal");
+  const CommandResult option = ingest({"rate", rate, "--name", "bills", "--allow-large-returns"});
+  EXPECT_EQ(option.exit_code, 2) << option.err;
+  EXPECT_TRUE(contains(option.err, "--allow-large-returns")) << option.err;
+}
+
 TEST_F(IngestTest, PercentLookingValuesWithoutPercentAreRejected) {
   // Median |value| (1.5 + 2) / 2 = 1.75 > 1 with mixed signs: percent returns, not decimals.
   const std::string file = write("pct.csv",
@@ -422,6 +476,132 @@ TEST_F(IngestTest, HeaderNameWithALineBreakIsRejected) {
   // hash ambiguous ("column: NAME\nJSON\n" lines could be forged by such a name).
   const std::string file = write("nl.csv", "date,\"x\ny\"\n2021-01-31,0.01\n");
   expect_rejected({"factor", file, "--name", "ff"}, at(file, 1, 2), "name");
+}
+
+// --- stored text: UTF-8 without control characters ---------------------------------------
+
+// A file header in Latin-1 (e9 is é there) was stored, after which every JSON output of the
+// ledger failed: nothing stored may be text a JSON writer cannot write.
+TEST_F(IngestTest, HeaderNameThatIsNotUtf8IsRejected) {
+  const std::string file = write("latin1.csv", "date,caf\xe9-strat\n2021-01-31,0.01\n");
+  expect_rejected({"strategy", file},
+                  at(file, 1, 2) + "column name 'caf\\xe9-strat': byte 4 is not valid UTF-8 (0xe9)",
+                  "save the file as UTF-8");
+  EXPECT_EQ(count(ledger_, "SELECT count(*) FROM series"), 1);  // the seed only
+  // Each class of ill-formed UTF-8, a C1 control and white space that trimming leaves, in the
+  // column names of a factor set (they become the terms of every run).
+  const struct {
+    const char* name;
+    const char* problem;
+  } cases[] = {
+      {"hml\xc0\xaf",
+       "column name 'hml\\xc0\\xaf': byte 4 is not valid UTF-8 (0xc0 0xaf, an "
+       "overlong encoding)"},
+      {"\xed\xa0\x80x",
+       "column name '\\xed\\xa0\\x80x': byte 1 is not valid UTF-8 (0xed 0xa0 "
+       "0x80, a surrogate (U+D800))"},
+      {"x\xf4\x90\x80\x80",
+       "column name 'x\\xf4\\x90\\x80\\x80': byte 2 is not valid UTF-8 "
+       "(0xf4 0x90 0x80 0x80, above U+10FFFF)"},
+      {"a\xc2\x85"
+       "b",
+       "column name 'a\\u0085b': byte 2 is a control character (U+0085)"},
+      {"hml\xc2\xa0",
+       "column name 'hml\xc2\xa0': the name ends with white space (U+00A0 at "
+       "byte 4)"},
+  };
+  for (const auto& c : cases) {
+    const std::string f =
+        write("ff.csv", std::string("date,smb,") + c.name + "\n2021-01-31,0.01,0.02\n");
+    expect_rejected({"factor", f, "--name", "ff"}, at(f, 1, 3) + c.problem, "rename the column");
+  }
+}
+
+class IngestTextTest : public IngestTest {
+ protected:
+  // Checks that an ingest fails as a usage error (exit 2) with exactly `message`, before the
+  // ledger is opened: a seeded ledger keeps its content and a missing one is not created.
+  void expect_usage_error(const std::vector<std::string>& args, const std::string& message) {
+    seed();
+    const std::string before = dump_ledger(ledger_);
+    const CommandResult r = ingest(args);
+    EXPECT_EQ(r.exit_code, 2) << r.err;
+    EXPECT_EQ(r.err, "alphatrail: error: " + message + "\n");
+    EXPECT_EQ(r.out, "");
+    EXPECT_EQ(dump_ledger(ledger_), before);
+    const fs::path absent = dir_ / "absent.db";
+    EXPECT_EQ(ingest_into(absent, args).exit_code, 2);
+    EXPECT_FALSE(fs::exists(absent)) << "a refused ingest created the ledger";
+  }
+};
+
+TEST_F(IngestTextTest, OptionTextThatIsNotUtf8OrHoldsControlsIsAUsageError) {
+  const std::string file = write("a.csv", "date,a\n2021-01-31,0.01\n");
+  const std::string rates = write("r.csv", "date,x\n2021-01-31,4\n");
+  const std::string utf8 = " (write the text in UTF-8)";
+  const std::string one_line =
+      " (leave out control characters, tabs and line breaks: the text must fit on one line)";
+  expect_usage_error({"strategy", file, "--note", "revis\xe9"},
+                     "--note: byte 6 is not valid UTF-8 (0xe9)" + utf8);
+  expect_usage_error({"strategy", file, "--note", "two\nlines"},
+                     "--note: byte 4 is a control character (U+000A, a line break)" + one_line);
+  expect_usage_error({"strategy", file, "--name", "caf\xe9"},
+                     "--name: byte 4 is not valid UTF-8 (0xe9)" + utf8);
+  expect_usage_error({"factor", file, "--name", "f\x1b[31m"},
+                     "--name: byte 2 is a control character (U+001B)" + one_line);
+  expect_usage_error({"rate", rates, "--name", "bills", "--tenor", "1M\t"},
+                     "--tenor: byte 3 is a control character (U+0009, a tab)" + one_line);
+  const std::string latin1_path = write("caf\xe9.csv", "date,a\n2021-01-31,0.01\n");
+  expect_usage_error({"strategy", latin1_path},
+                     "file '" + (dir_ / "caf\\xe9.csv").string() + "': byte " +
+                         std::to_string((dir_ / "caf").string().size() + 1) +
+                         " of the path is not valid UTF-8 (0xe9) (the ledger records the path: "
+                         "rename the file, or link to it under a name in UTF-8)");
+}
+
+TEST_F(IngestTextTest, BlankNamesAndNamesWithWhiteSpaceAroundThemAreUsageErrors) {
+  const std::string file = write("a.csv", "date,a\n2021-01-31,0.01\n");
+  const std::string blank = "the name is blank (give a name with at least one visible character)";
+  expect_usage_error({"strategy", file, "--name", "   "}, "--name: " + blank);
+  expect_usage_error({"factor", file, "--name", " "}, "--name: " + blank);
+  expect_usage_error({"rate", file, "--name", "\xc2\xa0"}, "--name: " + blank);
+  expect_usage_error({"strategy", file, "--name", " momentum"},
+                     "--name: the name begins with white space (U+0020 at byte 1) (remove the "
+                     "white space around the name)");
+  expect_usage_error({"factor", file, "--name", "ff "},
+                     "--name: the name ends with white space (U+0020 at byte 3) (remove the "
+                     "white space around the name)");
+  EXPECT_EQ(count(ledger_, "SELECT count(*) FROM series WHERE trim(name) = ''"), 0);
+}
+
+TEST_F(IngestTextTest, Utf8NamesAndNotesAreStoredAsTheyAre) {
+  const std::string file = write("cafe.csv",
+                                 "date,caf\xc3\xa9-strat,\xe6\x97\xa5\xe6\x9c\xac\n"
+                                 "2021-01-31,0.01,0.02\n2021-02-28,0.02,0.03\n");
+  const CommandResult r =
+      ingest({"strategy", file, "--note", "r\xc3\xa9vis\xc3\xa9 \xe2\x80\x94 from the desk"});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_EQ(text(ledger_, "SELECT group_concat(name, ',') FROM series"),
+            "caf\xc3\xa9-strat,\xe6\x97\xa5\xe6\x9c\xac");
+  EXPECT_EQ(text(ledger_, "SELECT DISTINCT note FROM series_versions"),
+            "r\xc3\xa9vis\xc3\xa9 \xe2\x80\x94 from the desk");
+  const CommandResult json =
+      run_alphatrail({"--ledger", ledger_.string(), "series", "--format", "json"});
+  EXPECT_EQ(json.exit_code, 0) << json.err;
+  EXPECT_TRUE(contains(json.out, "caf\xc3\xa9-strat")) << json.out;
+}
+
+// $USER is stored as who ingested; a name a JSON writer cannot write is stored escaped.
+TEST_F(IngestTextTest, UserNameThatIsNotUtf8IsStoredEscaped) {
+  const std::string file = write("a.csv", "date,a\n2021-01-31,0.01\n");
+  // env(1) replaces USER; run_alphatrail's env would add a second one after the first.
+  const CommandResult r = run_program({"/usr/bin/env", "USER=caf\xe9", ALPHATRAIL_BINARY,
+                                       "--ledger", ledger_.string(), "ingest", "strategy", file});
+  ASSERT_EQ(r.exit_code, 0) << r.err;
+  EXPECT_EQ(text(ledger_, "SELECT ingested_by FROM series_versions"), "caf\\xe9");
+  const CommandResult json =
+      run_alphatrail({"--ledger", ledger_.string(), "series", "a", "--format", "json"});
+  EXPECT_EQ(json.exit_code, 0) << json.err;
 }
 
 // --- accepted files ----------------------------------------------------------------------

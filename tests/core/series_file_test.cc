@@ -327,19 +327,54 @@ TEST(SeriesFileErrors, NoHeader) {
 
 TEST(SeriesFileErrors, NameWithALineBreak) {
   EXPECT_EQ(fixture_error("name_with_line_break.csv"),
-            "fixtures/ingest/name_with_line_break.csv:1:2: column name 'x\\ny' holds a line "
-            "break (rename the column in the header: a name must fit on one line)");
+            "fixtures/ingest/name_with_line_break.csv:1:2: column name 'x\\ny': byte 2 is a "
+            "control character (U+000A, a line break) (rename the column in the header: a name "
+            "must fit on one line)");
   EXPECT_EQ(error_of("date,a\tb\n2021-01,0.01\n"),
-            "f.csv:1:2: column name 'a\\tb' holds a tab (rename the column in the header: a "
-            "name must fit on one line)");
+            "f.csv:1:2: column name 'a\\tb': byte 2 is a control character (U+0009, a tab) "
+            "(rename the column in the header: a name must fit on one line)");
   // A new name replaces the header's, and is checked instead.
   SeriesFileOptions options = kDecimal;
   options.rename = "ok";
   EXPECT_EQ(parse_fixture("name_with_line_break.csv", options).columns[0].name, "ok");
   options.rename = "a\x01";
   EXPECT_EQ(error_of("date,x\n2021-01,0.01\n", options),
-            "f.csv: the new name 'a\\x01' holds a control character (give a name that fits on "
-            "one line)");
+            "f.csv: the new name 'a\\x01': byte 2 is a control character (U+0001) (leave out "
+            "control characters, tabs and line breaks: the text must fit on one line)");
+}
+
+TEST(SeriesFileErrors, NameThatIsNotStorableText) {
+  // Byte N of the name as it is stored: the header cell trimmed of spaces and tabs.
+  EXPECT_EQ(error_of("date,  caf\xe9-strat\n2021-01,0.01\n"),
+            "f.csv:1:2: column name 'caf\\xe9-strat': byte 4 is not valid UTF-8 (0xe9) (save "
+            "the file as UTF-8, or rename the column in the header)");
+  EXPECT_EQ(error_of("date,a,\"b\xc2\x85\"\n2021-01,0.01,0.02\n"),
+            "f.csv:1:3: column name 'b\\u0085': byte 2 is a control character (U+0085) (rename "
+            "the column in the header: a name must fit on one line)");
+  EXPECT_EQ(error_of("date,\xc2\xa0"
+                     "a\n2021-01,0.01\n"),
+            "f.csv:1:2: column name '\xc2\xa0"
+            "a': the name begins with white space (U+00A0 at "
+            "byte 1) (rename the column in the header without the white space around it)");
+  // Columns that are not read are not stored, whatever their names.
+  SeriesFileOptions some = kDecimal;
+  some.columns = {"a"};
+  EXPECT_EQ(error_of("date,a,caf\xe9\n2021-01,0.01,0.02\n", some), "no error");
+  // UTF-8 names are kept byte for byte.
+  EXPECT_EQ(parse_series_file("f.csv", "date,caf\xc3\xa9-strat\n2021-01,0.01\n", kDecimal)
+                .columns[0]
+                .name,
+            "caf\xc3\xa9-strat");
+  // A new name is used as given: blank or with white space around it, it is refused.
+  SeriesFileOptions options = kDecimal;
+  options.rename = "   ";
+  EXPECT_EQ(error_of("date,x\n2021-01,0.01\n", options),
+            "f.csv: the new name '   ': the name is blank (give a name with at least one visible "
+            "character)");
+  options.rename = "x ";
+  EXPECT_EQ(error_of("date,x\n2021-01,0.01\n", options),
+            "f.csv: the new name 'x ': the name ends with white space (U+0020 at byte 2) (remove "
+            "the white space around the name)");
 }
 
 TEST(SeriesFileErrors, DuplicateColumnName) {
@@ -442,6 +477,68 @@ TEST(SeriesFileErrors, LevelZeroOrBelow) {
   EXPECT_EQ(error_of("date,nav\n2021-01,100\n", kLevels),
             "f.csv:1:2: column 'nav' has no return: it needs two levels on consecutive rows "
             "(fill it in, or leave it out with --columns)");
+}
+
+TEST(SeriesFileErrors, ReturnFromLevelsOfMinusHundredPercentOrNotFinite) {
+  // Valid levels can still give returns that are no returns: 100 -> 1e-300 rounds to -1 (a
+  // loss of everything) and 1e-300 -> 1e300 overflows. Each names the level that produced it.
+  const std::string text = "month,lvl\n2020-01,100\n2020-02,1e-300\n2020-03,1e300\n2020-04,100\n";
+  EXPECT_EQ(error_of(text, kLevels),
+            "f.csv:3:2: level 1e-300 after 100 on line 2 gives a return of -100% or less (check "
+            "the level: a simple return must be above -100%)");
+  EXPECT_EQ(error_of("month,lvl\n2020-01,1e-300\n2020-02,1e300\n", kLevels),
+            "f.csv:3:2: level 1e+300 after 1e-300 on line 2 gives a return too large to "
+            "represent (check the levels)");
+  // The rows are taken in date order: the level before is the one of the month before.
+  EXPECT_EQ(error_of("month,lvl\n2020-02,1e-300\n2020-01,100\n2020-03,1\n", kLevels),
+            "f.csv:2:2: level 1e-300 after 100 on line 3 gives a return of -100% or less (check "
+            "the level: a simple return must be above -100%)");
+  // A missing level in between gives a missing return, not one across the gap.
+  EXPECT_EQ(error_of("month,lvl\n2020-01,100\n2020-02,\n2020-03,1e-300\n2020-04,1e-300\n", kLevels),
+            "no error");
+}
+
+TEST(SeriesFileErrors, ReturnAboveOneThousandPercent) {
+  // One period's return above +1,000% (10 as a decimal) is almost surely a wrong value or a
+  // wrong unit; a return that is right needs allow_large_returns.
+  EXPECT_EQ(error_of("date,a\n2021-01,0.01\n2021-02,12.5\n2021-03,-0.02\n"),
+            "f.csv:3:2: return 12.5 (+1250%) is above +1,000% in one period (check the value; if "
+            "the file states percent, pass --percent; if the return is right, pass "
+            "--allow-large-returns)");
+  EXPECT_EQ(error_of("date,a\n2021-01,0.01\n2021-02,1e300\n2021-03,-0.02\n"),
+            "f.csv:3:2: return 1e+300 (+1e+302%) is above +1,000% in one period (check the "
+            "value; if the file states percent, pass --percent; if the return is right, pass "
+            "--allow-large-returns)");
+  EXPECT_EQ(error_of("date,a\n2021-01,1\n2021-02,1500\n2021-03,-2\n", kPercent),
+            "f.csv:3:2: return 1500% is above +1,000% in one period (check the value; if the "
+            "return is right, pass --allow-large-returns)");
+  EXPECT_EQ(error_of("date,px\n2021-01,100\n2021-02,100\n2021-03,1200\n", kLevels),
+            "f.csv:4:2: level 1200 after 100 on line 3 gives a return of +1100%, above +1,000% "
+            "in one period (check the level; if it is right, pass --allow-large-returns)");
+  SeriesFileOptions factor = options_for(SeriesKind::factor, ValueUnit::decimal);
+  EXPECT_EQ(error_of("date,smb\n2021-01,0.01\n2021-02,11\n2021-03,-0.02\n", factor),
+            "f.csv:3:2: return 11 (+1100%) is above +1,000% in one period (check the value; if "
+            "the file states percent, pass --percent; if the return is right, pass "
+            "--allow-large-returns)");
+  // +1,000% itself is allowed, and so is anything with the option.
+  EXPECT_EQ(error_of("date,a\n2021-01,0.01\n2021-02,10\n2021-03,-0.02\n"), "no error");
+  EXPECT_EQ(error_of("date,px\n2021-01,100\n2021-02,1100\n", kLevels), "no error");
+  for (SeriesFileOptions options : {kDecimal, factor}) {
+    options.allow_large_returns = true;
+    const SeriesFile file =
+        parse_series_file("f.csv", "date,a\n2021-01,0.01\n2021-02,1e300\n2021-03,-0.02\n", options);
+    EXPECT_EQ(file.columns[0].values, (std::vector<double>{0.01, 1e300, -0.02}));
+  }
+  SeriesFileOptions levels = kLevels;
+  levels.allow_large_returns = true;
+  EXPECT_EQ(parse_series_file("f.csv", "date,px\n2021-01,0.01\n2021-02,1e300\n", levels)
+                .columns[0]
+                .values,
+            (std::vector<double>{1e300 / 0.01 - 1}));
+  // Rates keep their own plausible range, which refuses absurd yields.
+  EXPECT_EQ(error_of("date,1M\n2021-01,4\n2021-02,1e300\n", kRatePercent),
+            "f.csv:3:2: rate 1e300 is outside the plausible range -5 to 50 (percent) (check the "
+            "value; if the file states decimals (0.05 for 5%), pass --decimal)");
 }
 
 TEST(SeriesFileErrors, LooksLikePercentOrLevels) {

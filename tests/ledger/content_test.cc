@@ -173,6 +173,37 @@ TEST(ValuesJson, RejectsDatesOutOfOrderOrRepeated) {
   expect_malformed(R"({"2021-01-31":0.1,"2021-01-31":0.2})");
 }
 
+// Expects `encode` to refuse the column with an internal error that says nothing was written.
+template <typename Encode>
+void expect_refused(const ledger::ColumnData& c, const Encode& encode) {
+  try {
+    encode(c);
+    ADD_FAILURE() << "encoded a column holding " << c.values.back();
+  } catch (const Error& e) {
+    EXPECT_EQ(e.code(), ExitCode::failure) << e.what();
+    const std::string message = e.what();
+    EXPECT_NE(message.find("column '" + c.name + "'"), std::string::npos) << message;
+    EXPECT_NE(message.find("2021-02-28"), std::string::npos) << message;
+    EXPECT_NE(message.find("a bug"), std::string::npos) << message;
+    EXPECT_NE(message.find("nothing was written"), std::string::npos) << message;
+  }
+}
+
+TEST(ValuesJson, RefusesInfinitiesAsAnInternalError) {
+  // JSON has no infinity: text holding one could never be decoded again, so verify would fail
+  // for ever on an immutable version. Ingest refuses such values first; reaching the writer
+  // with one is a bug.
+  const double inf = std::numeric_limits<double>::infinity();
+  for (const double bad : {inf, -inf}) {
+    const auto c = column("r", {day(2021, 1, 31), day(2021, 2, 28)}, {0.01, bad});
+    expect_refused(c, [](const ledger::ColumnData& x) { return ledger::encode_values_json(x); });
+    expect_refused(c, [](const ledger::ColumnData& x) { return ledger::encode_packed(x); });
+  }
+  // NaN is the missing value: written as null, never as a number.
+  const auto missing = column("r", {day(2021, 1, 31), day(2021, 2, 28)}, {0.01, -kNaN});
+  EXPECT_EQ(ledger::encode_values_json(missing), R"({"2021-01-31":0.01,"2021-02-28":null})");
+}
+
 // --- packed form ----------------------------------------------------------------------------
 
 std::string hex(const std::string& bytes) {
