@@ -8,6 +8,7 @@
 #include <iostream>
 
 #include "cli/commands.h"
+#include "cli/exit_codes.h"
 #include "core/error.h"
 #include "ledger/ledger.h"
 #include "version.h"
@@ -16,14 +17,9 @@ namespace alphatrail::cli {
 
 namespace {
 
-constexpr const char* kExitCodes =
-    "Exit codes: 0 ok, 1 internal error, 2 bad command line, 3 invalid input file, 4 ledger "
-    "cannot be opened or is busy, 5 named series or run not found, 6 data cannot be "
-    "estimated, 7 verification found a mismatch.";
-
-int report(ExitCode code, const std::string& message) {
+int report(Failure kind, const std::string& message) {
   std::cerr << "alphatrail: error: " << message << '\n';
-  return static_cast<int>(code);
+  return exit_code(kind);
 }
 
 }  // namespace
@@ -33,7 +29,7 @@ int run_app(int argc, char** argv) {
       "alphatrail: test whether trading strategies earn alpha, and keep a ledger of "
       "every test.",
       "alphatrail"};
-  app.footer(kExitCodes);
+  app.footer(exit_code_footer());
   app.require_subcommand(1);
   app.fallthrough();  // global options may follow the command name
   app.set_version_flag("--version", std::string("alphatrail ") + kEngineVersion);
@@ -67,19 +63,20 @@ int run_app(int argc, char** argv) {
     return app.exit(e);
   } catch (const CLI::ParseError& e) {
     app.exit(e);
-    return static_cast<int>(ExitCode::usage);
+    return exit_code(Failure::invalid_argument);
   } catch (const Error& e) {
-    return report(e.code(), e.what());
+    return report(e.kind(), e.what());
   } catch (const SQLite::Exception& e) {
     if (e.getErrorCode() == SQLITE_BUSY)
-      return report(ExitCode::ledger,
+      return report(Failure::busy,
                     fmt::format("the ledger stayed busy for {} ms (another command is writing); "
                                 "nothing was written; try again or raise "
                                 "ALPHATRAIL_BUSY_TIMEOUT_MS",
                                 ledger::busy_timeout_ms()));
-    return report(ExitCode::ledger, fmt::format("ledger error: {}; nothing was written", e.what()));
+    return report(Failure::unusable_ledger,
+                  fmt::format("ledger error: {}; nothing was written", e.what()));
   } catch (const std::exception& e) {
-    return report(ExitCode::failure, fmt::format("internal error: {}", e.what()));
+    return report(Failure::internal, fmt::format("internal error: {}", e.what()));
   }
 }
 

@@ -43,7 +43,7 @@ bool nothing_at(const std::filesystem::path& path) {
 
 Error not_a_demo_ledger(const std::filesystem::path& path, const std::string& why) {
   return Error(
-      ExitCode::usage,
+      Failure::invalid_argument,
       fmt::format("{} is not a ledger the demo made ({}): the demo replaces only its "
                   "own ledgers and left it as it was; name a new file with --ledger (or remove "
                   "this one yourself if you no longer need it)",
@@ -61,7 +61,7 @@ void check_replaceable(const std::filesystem::path& path) {
     if (!ledger::has_mark(existing, kDemoMark))
       throw not_a_demo_ledger(path, "it has no demo mark");
   } catch (const Error& e) {
-    if (e.code() != ExitCode::ledger) throw;
+    if (e.kind() != Failure::unusable_ledger) throw;
     throw not_a_demo_ledger(path, "it is not an alphatrail ledger of this version");
   }
 }
@@ -82,7 +82,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   const bool replacing = !nothing_at(path);
   if (replacing) {
     if (!options.replace)
-      throw Error(ExitCode::usage,
+      throw Error(Failure::invalid_argument,
                   fmt::format("{} exists; the demo builds a fresh ledger: pass --replace to "
                               "replace it (only a ledger the demo made), or name another with "
                               "--ledger",

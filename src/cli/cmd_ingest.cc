@@ -44,18 +44,19 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
   parse.columns = o.columns;
   const bool is_rate = kind == core::SeriesKind::rate;
   if (is_rate && (o.percent || o.levels))
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 "rate files hold annualized yields, in percent by default: use --decimal for "
                 "decimals (--percent and --levels are for returns)");
   if (!is_rate && o.decimal)
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 "returns are read as decimals by default; --decimal is for rate files");
   if (o.percent && o.levels)
-    throw Error(ExitCode::usage, "--percent and --levels exclude each other: levels have no unit");
+    throw Error(Failure::invalid_argument,
+                "--percent and --levels exclude each other: levels have no unit");
   if (!is_rate && o.quote != "yield")
-    throw Error(ExitCode::usage, "--quote applies to rate files only");
+    throw Error(Failure::invalid_argument, "--quote applies to rate files only");
   if (is_rate && o.allow_large_returns)
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 "--allow-large-returns is for returns; rate files hold yields, checked against "
                 "their plausible range");
   parse.allow_large_returns = o.allow_large_returns;
@@ -70,7 +71,7 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
     parse.rename = o.name;
   }
   if (!o.tenor.empty() && !is_rate)
-    throw Error(ExitCode::usage, "--tenor applies to rate files only");
+    throw Error(Failure::invalid_argument, "--tenor applies to rate files only");
   return parse;
 }
 
@@ -82,7 +83,7 @@ void check_stored_text(const IngestRequest& o) {
   require_storable_text("--note", o.note);
   if (const auto problem = core::text_problem(o.file)) {
     const bool utf8 = problem->fault == core::TextFault::not_utf8;
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 fmt::format("file '{}': byte {} of the path is {} ({}) (the ledger records the "
                             "path: rename the file, or link to it under a name {})",
                             core::printable_text(o.file), problem->byte,
@@ -102,7 +103,7 @@ CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
   const auto kind = *core::parse_series_kind(o.kind);
   const bool is_set = kind == core::SeriesKind::rate || kind == core::SeriesKind::factor;
   if (is_set && o.name.empty())
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 fmt::format("a {} file is one named {}: give it a name with --name", o.kind,
                             kind == core::SeriesKind::rate ? "rate curve" : "factor set"));
   check_stored_text(o);

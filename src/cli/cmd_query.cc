@@ -34,7 +34,7 @@ struct QueryOptions {
 };
 
 Error refusal(const std::string& what) {
-  return Error(ExitCode::usage,
+  return Error(Failure::invalid_argument,
                fmt::format("query only reads, on a read-only connection: {} was refused; "
                            "nothing changed (the ledger is append-only: use ingest and evaluate "
                            "to add to it)",
@@ -42,9 +42,9 @@ Error refusal(const std::string& what) {
 }
 
 Error query_failure(const char* sqlite_message) {
-  return Error(ExitCode::usage, fmt::format("query failed: {}; nothing was changed (see "
-                                            "schema/ledger.sql for the tables and views)",
-                                            sqlite_message));
+  return Error(Failure::invalid_argument, fmt::format("query failed: {}; nothing was changed (see "
+                                                      "schema/ledger.sql for the tables and views)",
+                                                      sqlite_message));
 }
 
 // --- what may run -------------------------------------------------------------------------
@@ -190,14 +190,14 @@ StatementHandle prepare_read(sqlite3* db, const std::string& sql, std::string& r
   if (!refused.empty()) throw refusal(refused);
   if (rc != SQLITE_OK) throw query_failure(sqlite3_errmsg(db));
   if (!statement)
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 "query needs an SQL statement, and the text holds none (it is empty or only "
                 "comments); give one, e.g. alphatrail query \"SELECT * FROM run_summary\"");
   const std::size_t rest = skip_blanks(sql, static_cast<std::size_t>(tail - sql.c_str()));
   if (rest < sql.size()) {
     constexpr std::size_t kShown = 40;
     const std::string more = sql.substr(rest, kShown) + (sql.size() - rest > kShown ? "..." : "");
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 fmt::format("query runs one SQL statement, and more follows the first (`{}`); "
                             "nothing was run: give each statement a query of its own",
                             more));
@@ -400,7 +400,7 @@ void run_query(const QueryOptions& o, const GlobalOptions& global) {
       printer->row(statement.get());
       flusher.printed();
       if (!out)  // a closed pipe or a full disk: an endless query would never stop
-        throw Error(ExitCode::failure, "query stopped: its output could not be written");
+        throw Error(Failure::internal, "query stopped: its output could not be written");
     }
   }
   if (!printer) printer = row_printer(o.format, out, statement.get());  // --limit 0

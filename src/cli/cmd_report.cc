@@ -49,7 +49,7 @@ void check_output(const std::filesystem::path& output, const PageTarget& target)
   for (const char* suffix : {"", "-wal", "-shm", "-journal"}) {
     const std::filesystem::path ledger_file = target.ledger.string() + suffix;
     if (same_file(output, ledger_file))
-      throw Error(ExitCode::usage,
+      throw Error(Failure::invalid_argument,
                   fmt::format("{} is the ledger file {} that the report reads: refusing to write "
                               "the page over it (--force does not apply); name another file "
                               "with -o",
@@ -58,14 +58,14 @@ void check_output(const std::filesystem::path& output, const PageTarget& target)
   std::error_code ec;
   if (!std::filesystem::exists(output, ec) || target.force) return;
   if (!std::filesystem::is_regular_file(output, ec))
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 fmt::format("{} exists and is not a regular file: refusing to write the page "
                             "there; name another file with -o",
                             output.string()));
   std::ifstream in(output, std::ios::binary);
   const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
   if (!report::is_our_page(text))
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 fmt::format("{} exists and is not a report page alphatrail wrote: refusing to "
                             "overwrite it; name another file with -o, or pass --force to "
                             "replace it",
@@ -76,7 +76,7 @@ void check_output(const std::filesystem::path& output, const PageTarget& target)
 void write_page(const std::filesystem::path& output, const std::string& html,
                 const PageTarget& target) {
   check_output(output, target);
-  const Error unwritable(ExitCode::bad_input,
+  const Error unwritable(Failure::bad_input,
                          fmt::format("{}: cannot write the report there; name a writable file "
                                      "with -o",
                                      output.string()));
@@ -163,7 +163,7 @@ void write_strategy_report(ledger::Ledger& ledger, const std::string& strategy,
     in.versions.push_back({v.version, v.ingested_at, v.content_hash, v.source_file, v.note});
   in.runs = load_runs(ledger, {strategy, "", 0, 0});
   if (in.runs.empty())
-    throw Error(ExitCode::not_found,
+    throw Error(Failure::not_found,
                 fmt::format("strategy '{}' has no runs yet; evaluate it first (`alphatrail "
                             "evaluate {} --benchmark ... --rate ...`)",
                             strategy, strategy));
@@ -177,7 +177,7 @@ void write_study_report(ledger::Ledger& ledger, const std::string& study,
   in.study = study;
   in.runs = load_runs(ledger, {"", study, 0, 0});
   if (in.runs.empty())
-    throw Error(ExitCode::not_found,
+    throw Error(Failure::not_found,
                 fmt::format("no run belongs to study '{}'; `alphatrail runs` lists the studies, "
                             "and `evaluate --study NAME` records runs in one",
                             study));
@@ -198,7 +198,7 @@ struct ReportOptions {
 void run_report(const ReportOptions& o, const GlobalOptions& global) {
   const int chosen = (o.run_id != 0) + !o.strategy.empty() + !o.study.empty();
   if (chosen != 1)
-    throw Error(ExitCode::usage,
+    throw Error(Failure::invalid_argument,
                 "name one subject: a RUN id, --strategy NAME or --study NAME (for example "
                 "`alphatrail report 7 -o run-7.html`)");
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),

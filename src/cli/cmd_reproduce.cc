@@ -18,8 +18,7 @@ void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
                                      ledger::OpenMode::read_only, std::cerr);
   const auto row = ledger::read_run_row(ledger, run_id);
   if (!row)
-    throw Error(ExitCode::not_found,
-                fmt::format("no run {}; `alphatrail runs` lists them", run_id));
+    throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", run_id));
   auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
   const auto& p = pending.front();
   const std::string recomputed_hash =
@@ -43,7 +42,7 @@ void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
     std::cout << "reproduced: every coefficient and statistic is identical, bit for bit\n";
     return;
   }
-  throw Error(ExitCode::verify_failed,
+  throw Error(Failure::mismatch,
               fmt::format("run {} does not reproduce: {} value{} differ{}", run_id,
                           differences.size(), differences.size() == 1 ? "" : "s",
                           row->engine_version != kEngineVersion

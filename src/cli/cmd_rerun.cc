@@ -127,14 +127,13 @@ namespace {
 
 void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
   if (o.runs.empty() && !o.all_stale)
-    throw Error(ExitCode::usage, "name the runs to re-run, or pass --all-stale");
+    throw Error(Failure::invalid_argument, "name the runs to re-run, or pass --all-stale");
   const auto path = ledger::resolve_ledger_path(global.ledger);
   const auto runs_to_redo = [&](ledger::Ledger& ledger) {
     if (o.all_stale) return unrevised_stale_runs(ledger);
     for (auto id : o.runs)
       if (!ledger::read_run_row(ledger, id))
-        throw Error(ExitCode::not_found,
-                    fmt::format("no run {}; `alphatrail runs` lists them", id));
+        throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", id));
     return o.runs;
   };
   const auto none_stale = [] {

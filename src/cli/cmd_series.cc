@@ -153,7 +153,8 @@ void run_series(const SeriesOptions& options, const GlobalOptions& global) {
                                      ledger::OpenMode::read_only, std::cerr);
   if (!options.diff.empty()) {
     if (options.name.empty())
-      throw Error(ExitCode::usage, "--diff needs a series name: series NAME --diff V1 V2");
+      throw Error(Failure::invalid_argument,
+                  "--diff needs a series name: series NAME --diff V1 V2");
     print_diff(ledger, options);
   } else if (options.name.empty())
     print_versions(ledger::list_latest_versions(ledger), options.format, false);

@@ -34,7 +34,7 @@ void run_verify(const GlobalOptions& global) {
       "checked {} series versions and {} runs; SQLite integrity check run; chain head {}\n",
       report.versions_checked, report.runs_checked, printable(report.chain_head));
   if (!report.ok())
-    throw Error(ExitCode::verify_failed,
+    throw Error(Failure::mismatch,
                 fmt::format("{} mismatch{} found in {}: the ledger was altered outside "
                             "alphatrail or is damaged; restore it from a copy",
                             report.problems.size(), report.problems.size() == 1 ? "" : "es",

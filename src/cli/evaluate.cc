@@ -27,7 +27,7 @@ namespace {
 using nlohmann::ordered_json;
 
 Error usage(const std::string& message) {
-  return Error(ExitCode::usage, message);
+  return Error(Failure::invalid_argument, message);
 }
 
 bool is_pattern(const std::string& s) {
@@ -56,7 +56,7 @@ std::vector<std::string> resolve_strategies(ledger::Ledger& ledger,
       }
     if (!matched)
       throw Error(
-          ExitCode::not_found,
+          Failure::not_found,
           is_pattern(want)
               ? fmt::format("no strategy matches '{}'; `alphatrail series` lists them", want)
               : fmt::format("no strategy named '{}'; `alphatrail series` lists them", want));
@@ -242,7 +242,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
 
   const auto detected = [](const ledger::VersionInfo& info, const std::string& what) {
     if (!info.frequency)
-      throw Error(ExitCode::bad_input,
+      throw Error(Failure::bad_input,
                   fmt::format("cannot tell the frequency of {} '{}' from its dates; re-ingest it "
                               "with regular dates",
                               what, info.name));
@@ -423,7 +423,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
   }
   if (!ready.empty()) sink(ready, strategies.size());
   if (!failures.empty())
-    throw Error(ExitCode::estimation,
+    throw Error(Failure::cannot_estimate,
                 fmt::format("{} of {} strategies cannot be evaluated, so no run was recorded "
                             "(evaluate the others without them):\n  {}",
                             failures.size(), strategies.size(), fmt::join(failures, "\n  ")));
@@ -728,8 +728,7 @@ namespace alphatrail::cli {
 EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bool pin_versions) {
   const auto row = ledger::read_run_row(ledger, run_id);
   if (!row)
-    throw Error(ExitCode::not_found,
-                fmt::format("no run {}; `alphatrail runs` lists them", run_id));
+    throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", run_id));
   const auto p = nlohmann::json::parse(row->parameters_json);
   EvaluateRequest rq;
   rq.strategies = {row->strategy};

@@ -10,7 +10,7 @@ namespace alphatrail::cli {
 namespace {
 
 [[noreturn]] void refuse(std::string_view option, const core::TextProblem& problem) {
-  throw Error(ExitCode::usage,
+  throw Error(Failure::invalid_argument,
               fmt::format("{}: {} ({})", option, core::describe_text_problem(problem),
                           core::text_problem_fix(problem.fault)));
 }

@@ -15,7 +15,7 @@ namespace {
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 
 [[noreturn]] void bad_input(const std::string& message) {
-  throw Error(ExitCode::bad_input, message);
+  throw Error(Failure::bad_input, message);
 }
 
 void validate(const NamedSeries& input, Frequency f) {
@@ -176,7 +176,7 @@ Aligned classify(Frequency f, const std::vector<std::int64_t>& keys,
 const std::vector<double>& Aligned::column(const std::string& name) const {
   for (std::size_t j = 0; j < names.size(); ++j)
     if (names[j] == name) return *columns[j];
-  throw Error(ExitCode::failure, fmt::format("aligned sample has no input named \"{}\"", name));
+  throw Error(Failure::internal, fmt::format("aligned sample has no input named \"{}\"", name));
 }
 
 Aligned align(const std::vector<NamedSeries>& inputs, const AlignOptions& options) {

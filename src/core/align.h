@@ -2,7 +2,7 @@
 // keeps the complete cases and explains every period it drops and every hole left inside the
 // kept sample. Pure computation; an empty kept sample is not an error here (the caller turns
 // it into one, with the report as its explanation). Inputs of different frequencies or with
-// keys that are not strictly ascending throw alphatrail::Error(ExitCode::bad_input).
+// keys that are not strictly ascending throw alphatrail::Error(Failure::bad_input).
 //
 // Rules (ours):
 // - The periods considered are the union of all input keys (plus nothing else).
@@ -79,7 +79,7 @@ struct Aligned {
   std::vector<SharedColumn> columns;  // (*columns[j])[i]: input j at (*keys)[i], all finite
   AlignReport report;
 
-  // Returns the column of an input by name; throws Error(ExitCode::failure) when unknown.
+  // Returns the column of an input by name; throws Error(Failure::internal) when unknown.
   const std::vector<double>& column(const std::string& name) const;
 };
 

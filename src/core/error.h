@@ -1,5 +1,5 @@
-// Errors that reach the user. Each names the object, the problem and the fix; the CLI maps
-// the kind to a documented exit code.
+// Errors that reach the user. Each names the object, the problem and the fix, and carries
+// a kind; the command line maps the kind to a documented exit code.
 #pragma once
 
 #include <fmt/format.h>
@@ -9,25 +9,27 @@
 
 namespace alphatrail {
 
-// Exit codes, documented in `alphatrail --help` and the README.
-enum class ExitCode : int {
-  ok = 0,
-  failure = 1,        // unexpected internal error
-  usage = 2,          // bad command line
-  bad_input = 3,      // an input file is missing, unreadable or invalid
-  ledger = 4,         // the ledger cannot be opened, is newer than the binary, or is busy
-  not_found = 5,      // a named series, run or study does not exist
-  estimation = 6,     // the data cannot be estimated (too short, collinear, ill-conditioned)
-  verify_failed = 7,  // verification found a mismatch
+// What went wrong, in kinds the callers can act on. The command line maps each kind to its
+// exit code in one table (cli/exit_codes.h); nothing below it knows about exit codes.
+enum class Failure {
+  internal,          // a bug: an invariant broke
+  invalid_argument,  // a request that cannot be carried out as given (an option, a name)
+  bad_input,         // an input file is missing, unreadable or invalid
+  unusable_ledger,   // the ledger file is not a ledger, or of a schema this binary cannot use
+  busy,              // another command held the ledger past the busy timeout
+  not_found,         // a named series, run or study does not exist
+  cannot_estimate,   // the data cannot be estimated (too short, collinear, not finite)
+  mismatch,          // verification found stored content that does not match its hash
+  corruption,        // stored data that cannot be read as what it should be
 };
 
 class Error : public std::runtime_error {
  public:
-  Error(ExitCode code, const std::string& message) : std::runtime_error(message), code_(code) {}
-  ExitCode code() const { return code_; }
+  Error(Failure kind, const std::string& message) : std::runtime_error(message), kind_(kind) {}
+  Failure kind() const { return kind_; }
 
  private:
-  ExitCode code_;
+  Failure kind_;
 };
 
 // An input file problem at a position: "FILE:LINE:COLUMN: problem; fix".
@@ -36,7 +38,7 @@ class InputError : public Error {
  public:
   InputError(const std::string& file, long line, long column, const std::string& problem,
              const std::string& fix)
-      : Error(ExitCode::bad_input, format(file, line, column, problem, fix)) {}
+      : Error(Failure::bad_input, format(file, line, column, problem, fix)) {}
 
  private:
   static std::string format(const std::string& file, long line, long column,

@@ -38,7 +38,7 @@ const char* period_noun(Frequency f) {
 Frequency source_frequency(const ReturnInput& input) {
   if (input.frequency) return *input.frequency;
   if (auto f = detect_frequency(input.data.dates)) return *f;
-  throw Error(ExitCode::bad_input,
+  throw Error(Failure::bad_input,
               fmt::format("cannot tell the frequency of '{}' from its dates (neither daily, "
                           "weekly, monthly nor quarterly); re-ingest it with regular dates",
                           input.name));
@@ -195,7 +195,7 @@ struct Evaluator::Prepared {
   std::vector<std::string> preparation;
   std::vector<std::string> warnings;
   std::string error;  // set when the strategy cannot be put on the frequency
-  int error_code = 0;
+  Failure failure = Failure::internal;
 };
 
 Evaluator::Evaluator(const SharedInputs& shared, Frequency frequency,
@@ -248,7 +248,7 @@ Evaluator::Prepared Evaluator::prepare(const ReturnInput& strategy) const {
     p.aligned = common_->align({"strategy", std::move(s.series)});
   } catch (const Error& e) {
     p.error = e.what();
-    p.error_code = static_cast<int>(e.code());
+    p.failure = e.kind();
   }
   return p;
 }
@@ -297,7 +297,7 @@ void require_finite_figures(const OlsResult& fit, const DerivedStatistics& d) {
   if (!std::isfinite(fit.residual_std)) bad.push_back("the residual standard deviation");
   if (!std::isfinite(fit.rss) || !std::isfinite(fit.tss)) bad.push_back("the sums of squares");
   if (bad.empty()) return;
-  throw Error(ExitCode::estimation,
+  throw Error(Failure::cannot_estimate,
               fmt::format("cannot estimate: not a finite number: {} (the data hold values too "
                           "large to compute with; check the returns for values far beyond the "
                           "others)",
@@ -411,7 +411,7 @@ void Evaluator::add_rolling(EvaluationResult& r, const Aligned& a) const {
 
 EvaluationResult Evaluator::evaluate(const ReturnInput& strategy) const {
   Prepared p = prepare(strategy);
-  if (!p.error.empty()) throw Error(static_cast<ExitCode>(p.error_code), p.error);
+  if (!p.error.empty()) throw Error(p.failure, p.error);
   const Design d = build_design(p.aligned, factor_names_);
   OlsResult fit = fit_ols(d.X, d.y, term_names_, true, settings_.covariance, settings_.confidence);
   return finish(std::move(p), std::move(fit), true);
@@ -445,7 +445,7 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
   for (std::size_t i = begin; i < end; ++i) {
     if (!prepared[i - begin].error.empty()) {
       outcomes[i].error = prepared[i - begin].error;
-      outcomes[i].error_code = prepared[i - begin].error_code;
+      outcomes[i].failure = prepared[i - begin].failure;
       continue;
     }
     const SharedKeys& keys = prepared[i - begin].aligned.keys;
@@ -460,7 +460,7 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
       outcomes[i].result = finish(std::move(prepared[i - begin]), std::move(fit), keep_series);
     } catch (const Error& e) {
       outcomes[i].error = e.what();
-      outcomes[i].error_code = static_cast<int>(e.code());
+      outcomes[i].failure = e.kind();
     }
   };
   for (const auto& group : groups) {
@@ -488,7 +488,7 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
                                             settings_.confidence));
         } catch (const Error& e) {
           outcomes[members[j]].error = e.what();
-          outcomes[members[j]].error_code = static_cast<int>(e.code());
+          outcomes[members[j]].failure = e.kind();
         }
       }
       continue;

@@ -6,10 +6,10 @@
 // Model: r_s - r_f = alpha + beta (r_m - r_f) + sum_j b_j f_j + e, where f_j are factor
 // returns used as given (factor sets hold zero-investment spread returns).
 //
-// Failure: throws alphatrail::Error(ExitCode::estimation) when the aligned sample is too short,
+// Failure: throws alphatrail::Error(Failure::cannot_estimate) when the aligned sample is too short,
 // the design is collinear or ill-conditioned, or a figure every run must hold (an estimate, a
 // standard error, annualized alpha) comes out as no finite number, and
-// Error(ExitCode::bad_input) for inputs that cannot be put on the evaluation frequency.
+// Error(Failure::bad_input) for inputs that cannot be put on the evaluation frequency.
 // Nothing is returned on failure.
 #pragma once
 
@@ -20,6 +20,7 @@
 #include "core/align.h"
 #include "core/annualize.h"
 #include "core/dates.h"
+#include "core/error.h"
 #include "core/rates.h"
 #include "core/regression.h"
 #include "core/resample.h"
@@ -137,7 +138,7 @@ class Evaluator {
   struct Outcome {
     std::optional<EvaluationResult> result;
     std::string error;
-    int error_code = 0;
+    Failure failure = Failure::internal;
   };
   // keep_series = false frees each result's per-period series (keys, excess returns,
   // residuals) to bound memory when evaluating thousands of strategies.

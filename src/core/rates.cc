@@ -13,7 +13,7 @@ namespace alphatrail::core {
 namespace {
 
 [[noreturn]] void bad_input(const std::string& message) {
-  throw Error(ExitCode::bad_input, message);
+  throw Error(Failure::bad_input, message);
 }
 
 // Turns one quoted value into the annualized decimal yield the basis expects.

@@ -24,7 +24,7 @@
 //   reported. NaN yield observations (holidays) are skipped, the staleness limit still applies.
 //
 // Failures: malformed tenors, yields that look like the wrong unit, bank-discount prices of
-// zero or below, and unsorted dates throw alphatrail::Error(ExitCode::bad_input) naming the
+// zero or below, and unsorted dates throw alphatrail::Error(Failure::bad_input) naming the
 // value and the fix.
 #pragma once
 

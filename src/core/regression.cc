@@ -58,7 +58,7 @@ std::string format_general(double value) {
 }
 
 [[noreturn]] void estimation_error(const std::string& message) {
-  throw Error(ExitCode::estimation, message);
+  throw Error(Failure::cannot_estimate, message);
 }
 
 // Everything about the design that does not depend on y: computed once, shared by every
@@ -118,7 +118,7 @@ void check_special_columns(const Eigen::MatrixXd& X, const std::vector<std::stri
     }
   }
   if (has_intercept && intercept < 0) {
-    throw Error(ExitCode::failure,
+    throw Error(Failure::internal,
                 "fit_ols: has_intercept is set but no column of the design is constant; "
                 "add a column of ones or clear has_intercept");
   }
@@ -162,11 +162,11 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
   d.n = static_cast<int>(X.rows());
   d.k = static_cast<int>(X.cols());
   if (static_cast<Eigen::Index>(names.size()) != X.cols()) {
-    throw Error(ExitCode::failure, "fit_ols: " + std::to_string(names.size()) + " names for " +
+    throw Error(Failure::internal, "fit_ols: " + std::to_string(names.size()) + " names for " +
                                        std::to_string(X.cols()) +
                                        " columns; pass one name per column");
   }
-  if (d.k < 1) throw Error(ExitCode::failure, "fit_ols: the design has no column; add a regressor");
+  if (d.k < 1) throw Error(Failure::internal, "fit_ols: the design has no column; add a regressor");
   if (d.n < d.k + 2) {
     estimation_error("sample too short: " + std::to_string(d.n) + " observations for " +
                      std::to_string(d.k) + " coefficients; need at least " +
@@ -385,7 +385,7 @@ OlsResult fit_column(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y
                      const std::string& what, bool keep_series, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
   if (y.size() != d.n) {
-    throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
+    throw Error(Failure::internal, "fit_ols: " + std::to_string(y.size()) + " responses for " +
                                        std::to_string(d.n) +
                                        " design rows; pass one response per row");
   }
@@ -484,7 +484,7 @@ double critical_value(const Design& d, double confidence) {
 
 void check_confidence(double confidence) {
   if (!(confidence > 0 && confidence < 1)) {
-    throw Error(ExitCode::failure, "fit_ols: confidence " + std::to_string(confidence) +
+    throw Error(Failure::internal, "fit_ols: confidence " + std::to_string(confidence) +
                                        " is outside (0, 1); pass e.g. 0.95");
   }
 }
@@ -521,7 +521,7 @@ OlsResult fit_ols(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
                   const CovarianceOptions& opts, double confidence) {
   check_confidence(confidence);
   if (y.size() != X.rows()) {
-    throw Error(ExitCode::failure, "fit_ols: " + std::to_string(y.size()) + " responses for " +
+    throw Error(Failure::internal, "fit_ols: " + std::to_string(y.size()) + " responses for " +
                                        std::to_string(X.rows()) +
                                        " design rows; pass one response per row");
   }
@@ -572,7 +572,7 @@ std::vector<OlsResult> fit_ols_many(const Eigen::MatrixXd& X, const Eigen::Matri
                                     const std::vector<std::string>& names, bool has_intercept,
                                     const CovarianceOptions& opts, double confidence, int threads) {
   if (Y.rows() != X.rows()) {
-    throw Error(ExitCode::failure, "fit_ols_many: " + std::to_string(Y.rows()) +
+    throw Error(Failure::internal, "fit_ols_many: " + std::to_string(Y.rows()) +
                                        " response rows for " + std::to_string(X.rows()) +
                                        " design rows; pass one row per period");
   }

@@ -9,12 +9,12 @@
 // Filip to 7 (tests/core/nist_test.cc).
 //
 // On failure nothing is returned. fit_ols and fit_ols_many throw
-// alphatrail::Error(ExitCode::estimation) with a message that names the problem and the fix
+// alphatrail::Error(Failure::cannot_estimate) with a message that names the problem and the fix
 // when the sample is too short (T < k + 2), a regressor is zero or collinear with others, the
 // design is too ill-conditioned to be solved in double precision, the data hold a non-finite
 // value, the Newey-West lag is out of range, or HC2/HC3 meet an observation of leverage 1.
 // Misuse of the API (sizes that do not match, a confidence outside (0, 1)) throws
-// alphatrail::Error(ExitCode::failure).
+// alphatrail::Error(Failure::internal).
 #pragma once
 
 #include <Eigen/Dense>

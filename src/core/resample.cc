@@ -22,7 +22,7 @@ int fineness(Frequency f) {
 }
 
 [[noreturn]] void bad_input(const std::string& message) {
-  throw Error(ExitCode::bad_input, message);
+  throw Error(Failure::bad_input, message);
 }
 
 void validate(const DatedSeries& s, Frequency source) {

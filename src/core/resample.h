@@ -7,7 +7,7 @@
 // the period) are detected by the rules below, dropped by default and listed in the report.
 // Malformed input (unsorted or duplicate dates, two observations of one period at the same
 // frequency, a return of -100% or less, resampling to a higher frequency) throws
-// alphatrail::Error(ExitCode::bad_input) naming the date or period and the fix.
+// alphatrail::Error(Failure::bad_input) naming the date or period and the fix.
 //
 // Partial period rules (common practice has none; these are ours):
 // - daily source: the first period is partial when more than one weekday (Mon-Fri) of the

@@ -51,13 +51,13 @@ std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::V
                                         const std::vector<std::int64_t>& keys, Frequency f,
                                         const RollingOptions& options) {
   if (X.rows() != y.size() || static_cast<std::size_t>(X.rows()) != keys.size() || X.cols() < 2)
-    throw Error(ExitCode::failure,
+    throw Error(Failure::internal,
                 "rolling_fits: the design, response and keys must have one row per period and "
                 "the design an intercept and a beta column");
   const int N = options.window;
   const std::string problem =
       rolling_window_problem(N, static_cast<int>(X.cols()), options.covariance);
-  if (!problem.empty()) throw Error(ExitCode::usage, problem);
+  if (!problem.empty()) throw Error(Failure::invalid_argument, problem);
 
   const auto T = static_cast<int>(X.rows());
   std::vector<RollingWindow> windows;
@@ -91,7 +91,7 @@ std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::V
       w.beta_ci_high = b.ci_high;
     } catch (const Error& e) {
       // One stretch of the sample that cannot be estimated must not lose the whole run.
-      if (e.code() != ExitCode::estimation) throw;
+      if (e.kind() != Failure::cannot_estimate) throw;
       set_unestimated(w);
       w.problem = e.what();
     }

@@ -9,8 +9,8 @@
 // small-sample setting and confidence; Newey-West lags follow the run's rule, the automatic
 // floor(4 (N/100)^(2/9)) applied to N, or the run's fixed lag.
 //
-// Failure: rolling_fits throws Error(ExitCode::usage) when the window cannot hold the model
-// (see rolling_window_problem). A window that cannot be estimated (collinear regressors in
+// Failure: rolling_fits throws Error(Failure::invalid_argument) when the window cannot hold the
+// model (see rolling_window_problem). A window that cannot be estimated (collinear regressors in
 // that stretch, leverage 1 under HC2/HC3) does not fail the run: its figures are NaN and
 // `problem` says why.
 #pragma once

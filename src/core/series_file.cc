@@ -598,7 +598,7 @@ unsigned thread_count(const SeriesFileOptions& options, std::size_t bytes) {
 SeriesFile parse_series_file(const std::string& display_name, std::string_view content,
                              const SeriesFileOptions& options) {
   if (options.kind == SeriesKind::rate && options.unit == ValueUnit::levels)
-    throw Error(ExitCode::usage, "rates are read as percent or decimal, not as levels");
+    throw Error(Failure::invalid_argument, "rates are read as percent or decimal, not as levels");
 
   CsvReader reader(display_name, content);
   CsvRecord header;

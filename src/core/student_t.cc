@@ -16,14 +16,13 @@ constexpr double inf_value = std::numeric_limits<double>::infinity();
 
 // Boost.Math computes in long double by default; double arithmetic is accurate to a few ulps
 // here and several times faster, which counts when thousands of runs each need p-values.
-using DoublePolicy =
-    boost::math::policies::policy<boost::math::policies::promote_double<false>>;
+using DoublePolicy = boost::math::policies::policy<boost::math::policies::promote_double<false>>;
 using StudentT = boost::math::students_t_distribution<double, DoublePolicy>;
 using Normal = boost::math::normal_distribution<double, DoublePolicy>;
 
 void check_df(double df) {
   if (!(df > 0)) {
-    throw Error(ExitCode::failure, "Student t: degrees of freedom must be positive, got " +
+    throw Error(Failure::internal, "Student t: degrees of freedom must be positive, got " +
                                        std::to_string(df) + "; fit with more observations");
   }
 }
@@ -34,7 +33,7 @@ double student_t_quantile(double p, double df) {
   if (std::isnan(p) || std::isnan(df)) return nan_value;
   check_df(df);
   if (p < 0 || p > 1) {
-    throw Error(ExitCode::failure, "Student t: probability " + std::to_string(p) +
+    throw Error(Failure::internal, "Student t: probability " + std::to_string(p) +
                                        " is outside [0, 1]; pass a probability");
   }
   if (p == 0) return -inf_value;

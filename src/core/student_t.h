@@ -1,7 +1,7 @@
 // Student's t distribution: quantiles and two-sided p-values for regression inference.
 // Pure computation on Boost.Math. An infinite number of degrees of freedom means the standard
 // normal distribution. Arguments outside the domain (p outside [0, 1], df <= 0) throw
-// alphatrail::Error(ExitCode::failure); NaN arguments give NaN.
+// alphatrail::Error(Failure::internal); NaN arguments give NaN.
 #pragma once
 
 namespace alphatrail::core {

@@ -50,7 +50,7 @@ std::optional<core::Day> read_date(const char* p) {
 }
 
 [[noreturn]] void malformed(const std::string& name, std::size_t at) {
-  throw Error(ExitCode::ledger,
+  throw Error(Failure::unusable_ledger,
               fmt::format("stored observations of column '{}' are malformed at byte {}; run "
                           "`alphatrail verify` and restore the ledger from a copy",
                           name, at));
@@ -83,7 +83,7 @@ char* write_little_endian(char* p, Word w) {
 }
 
 [[noreturn]] void corrupted_packing(const std::string& name, const std::string& problem) {
-  throw Error(ExitCode::ledger,
+  throw Error(Failure::unusable_ledger,
               fmt::format("the packed copy of column '{}' is corrupted: {}; run `alphatrail "
                           "verify` and restore the ledger from a copy",
                           name, problem));
@@ -93,7 +93,7 @@ char* write_little_endian(char* p, Word w) {
 // could never be decoded or verified, and versions are immutable: ingest refuses such values
 // with their file position first, so reaching this is a bug of whatever produced the column.
 [[noreturn]] void not_storable(const ColumnData& column, std::size_t i) {
-  throw Error(ExitCode::failure,
+  throw Error(Failure::internal,
               fmt::format("internal error: column '{}' holds {} on {}, which the ledger cannot "
                           "store; this is a bug, please report it; nothing was written",
                           column.name, column.values[i], core::format_date(column.dates[i])));

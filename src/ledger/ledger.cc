@@ -22,7 +22,7 @@ namespace alphatrail::ledger {
 namespace {
 
 Error ledger_error(const std::string& message) {
-  return Error(ExitCode::ledger, message);
+  return Error(Failure::unusable_ledger, message);
 }
 
 bool looks_like_sqlite(const std::filesystem::path& path) {
@@ -118,7 +118,8 @@ int check_identity(const Identity& id, const std::filesystem::path& path, OpenMo
 }
 
 Error busy_error(const std::filesystem::path& path) {
-  return ledger_error(
+  return Error(
+      Failure::busy,
       fmt::format("ledger {} stayed busy for {} ms (another command is writing); try again, or "
                   "raise ALPHATRAIL_BUSY_TIMEOUT_MS",
                   path.string(), busy_timeout_ms()));

@@ -3,7 +3,7 @@
 // A Ledger owns one SQLite connection. Opening checks the file's application_id and refuses a
 // ledger newer than this binary. Opening to write upgrades an older ledger in one transaction
 // (saying so on the notice stream); opening read-only writes nothing and refuses an older
-// ledger instead. Failures throw alphatrail::Error with ExitCode::ledger.
+// ledger instead. Failures throw alphatrail::Error with Failure::unusable_ledger.
 #pragma once
 
 #include <SQLiteCpp/Database.h>

@@ -653,8 +653,8 @@ int count_strategy_runs(Ledger& ledger, const std::string& strategy) {
 ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
   const auto row = read_run_row(ledger, run_id);
   if (!row)
-    throw Error(ExitCode::not_found, fmt::format("no run {} in {}; `alphatrail runs` lists them",
-                                                 run_id, ledger.path().string()));
+    throw Error(Failure::not_found, fmt::format("no run {} in {}; `alphatrail runs` lists them",
+                                                run_id, ledger.path().string()));
   ordered_json inputs = ordered_json::array();
   SQLite::Statement q(ledger.db(),
                       "SELECT i.role, i.position, s.name, v.version, v.content_hash, i.columns, "

@@ -222,7 +222,7 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
       series_id = find_series.getColumn(0).getInt64();
       const std::string kind = find_series.getColumn(1).getString();
       if (kind != v.meta.kind)
-        throw Error(ExitCode::bad_input,
+        throw Error(Failure::bad_input,
                     fmt::format("{}: series '{}' already exists as a {} series, not {}; rename "
                                 "the column or use --name",
                                 source.file, v.name, kind, v.meta.kind));
@@ -320,7 +320,7 @@ std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name
   std::vector<VersionInfo> out;
   while (q.executeStep()) out.push_back(read_version_info(q));
   if (out.empty())
-    throw Error(ExitCode::not_found,
+    throw Error(Failure::not_found,
                 fmt::format("no series named '{}' in {}; `alphatrail series` lists them", name,
                             ledger.path().string()));
   return out;
@@ -362,7 +362,7 @@ class PackedReader {
     if (rc == SQLITE_OK && bytes > 0)
       rc = sqlite3_blob_read(handle, out, static_cast<int>(bytes), 0);
     if (rc != SQLITE_OK)
-      throw Error(ExitCode::ledger,
+      throw Error(Failure::unusable_ledger,
                   fmt::format("cannot read the packed copy of column '{}': {}; run `alphatrail "
                               "verify`",
                               name, sqlite3_errstr(rc)));
@@ -388,7 +388,7 @@ VersionInfo find_version(Ledger& ledger, const VersionRequest& request) {
   }
   if (!q->executeStep()) {
     if (version) version_history(ledger, name);  // names an unknown series first
-    throw Error(ExitCode::not_found,
+    throw Error(Failure::not_found,
                 version
                     ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
                                   "lists its versions",

@@ -52,7 +52,7 @@ using Paths = std::vector<std::vector<Point>>;
 
 void require_length(const char* chart, const std::string& what, std::size_t got, std::size_t want) {
   if (got != want)
-    throw Error(ExitCode::failure,
+    throw Error(Failure::internal,
                 fmt::format("{} chart: {} has {} values but {} were expected; give one value per "
                             "period or item",
                             chart, what, got, want));

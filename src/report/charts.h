@@ -12,7 +12,7 @@
 // Values come in decimal (0.012 = 1.2%) and are drawn in percent unless the input says
 // otherwise; NaN means a missing period and is skipped, never drawn as zero.
 // Inputs whose vectors must be of one length and are not throw
-// alphatrail::Error(ExitCode::failure) naming the chart and the lengths (a caller bug).
+// alphatrail::Error(Failure::internal) naming the chart and the lengths (a caller bug).
 #pragma once
 
 #include <cstddef>

@@ -210,7 +210,7 @@ TEST(Align, RejectsMixedFrequenciesUnsortedKeysAndDuplicateNames) {
     align(inputs);
     FAIL() << "expected an error";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::bad_input);
+    EXPECT_EQ(e.kind(), Failure::bad_input);
     EXPECT_NE(std::string(e.what()).find("\"benchmark\" is quarterly but the evaluation is "
                                          "monthly"),
               std::string::npos)

@@ -360,7 +360,7 @@ TEST(EvaluationSample, ShortSampleWarningBelow36Months) {
   EXPECT_EQ(short_sample_threshold(Frequency::daily), 756);
 }
 
-// T < k + 2 cannot be estimated: Error with ExitCode::estimation; T = k + 2 can.
+// T < k + 2 cannot be estimated: Error with Failure::cannot_estimate; T = k + 2 can.
 TEST(EvaluationSample, TooShortThrowsEstimationError) {
   const World w = make_world(4);
   const Evaluator ev(w.shared, Frequency::monthly,
@@ -372,7 +372,7 @@ TEST(EvaluationSample, TooShortThrowsEstimationError) {
     ev.evaluate(returns("short", three, three_values));
     FAIL() << "3 observations for 2 coefficients were estimated";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::estimation) << e.what();
+    EXPECT_EQ(e.kind(), Failure::cannot_estimate) << e.what();
     EXPECT_NE(std::string(e.what()).find("too short"), std::string::npos) << e.what();
   }
   EXPECT_EQ(ev.evaluate(returns("four", w.dates, values)).sample.observations, 4);
@@ -393,7 +393,7 @@ TEST(EvaluationSample, CollinearFactorThrowsNamingTheRegressors) {
     FAIL() << "a factor equal to the market excess was accepted";
   } catch (const Error& e) {
     const std::string m = e.what();
-    EXPECT_EQ(e.code(), ExitCode::estimation) << m;
+    EXPECT_EQ(e.kind(), Failure::cannot_estimate) << m;
     EXPECT_NE(m.find("collinear"), std::string::npos) << m;
     EXPECT_NE(m.find("'beta'"), std::string::npos) << m;
     EXPECT_NE(m.find("'MKT'"), std::string::npos) << m;
@@ -451,7 +451,7 @@ TEST(EvaluationMany, BitIdenticalToEvaluateForEachStrategy) {
     }
     EXPECT_EQ(outcomes[3].result->sample.observations, T - 1);
     EXPECT_FALSE(outcomes.back().result.has_value());
-    EXPECT_EQ(outcomes.back().error_code, static_cast<int>(ExitCode::estimation));
+    EXPECT_EQ(outcomes.back().failure, Failure::cannot_estimate);
     EXPECT_NE(outcomes.back().error.find("too short"), std::string::npos) << outcomes.back().error;
   }
 }

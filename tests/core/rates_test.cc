@@ -1,16 +1,20 @@
 #include "core/rates.h"
 
-#include <cmath>
-
 #include <gtest/gtest.h>
+
+#include <cmath>
 
 #include "core/error.h"
 
 namespace alphatrail::core {
 namespace {
 
-Day day(const char* iso) { return parse_date(iso).day; }
-std::int64_t month(const char* iso) { return period_key(Frequency::monthly, parse_date(iso).day); }
+Day day(const char* iso) {
+  return parse_date(iso).day;
+}
+std::int64_t month(const char* iso) {
+  return period_key(Frequency::monthly, parse_date(iso).day);
+}
 
 TEST(Rates, MatchesThePerPeriodCheckValuesOfTheGuide) {
   // GUIDE.md section 2, computed, for y = 5%.
@@ -42,7 +46,7 @@ TEST(Rates, ParsesTenors) {
   try {
     parse_tenor("3X");
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::bad_input);
+    EXPECT_EQ(e.kind(), Failure::bad_input);
     EXPECT_NE(std::string(e.what()).find("tenor \"3X\""), std::string::npos) << e.what();
   }
 }
@@ -130,8 +134,8 @@ TEST(Rates, ReportsPeriodsWithoutAYieldAndStaleYields) {
   EXPECT_EQ(r.stale, std::vector<std::int64_t>{month("2021-04-01")});
   EXPECT_FALSE(r.used[3]);
   c.max_age_days = 100;  // a looser limit keeps April
-  EXPECT_FALSE(std::isnan(per_period_rates(y, c, Frequency::monthly, {month("2021-04-01")})
-                              .series.values[0]));
+  EXPECT_FALSE(std::isnan(
+      per_period_rates(y, c, Frequency::monthly, {month("2021-04-01")}).series.values[0]));
 }
 
 TEST(Rates, CountsActualDaysForTheAct360Basis) {
@@ -174,8 +178,8 @@ TEST(Rates, Act360OnABankDiscountGivesBackTheBillsHoldingReturn) {
   EXPECT_NEAR(r.series.values[0], 0.0128007, 5e-8);
   // The same discount with the simple basis uses the bond-equivalent yield: 0.0513434 / 4.
   c.basis = RateBasis::simple;
-  EXPECT_NEAR(per_period_rates(y, c, Frequency::quarterly, {q2}).series.values[0],
-              0.0513434 / 4, 5e-8);
+  EXPECT_NEAR(per_period_rates(y, c, Frequency::quarterly, {q2}).series.values[0], 0.0513434 / 4,
+              5e-8);
 }
 
 TEST(Rates, SkipsMissingYieldsWithinTheStalenessLimit) {
@@ -197,7 +201,7 @@ TEST(Rates, RejectsYieldsThatLookLikeTheWrongUnit) {
     per_period_rates(y, c, Frequency::monthly, {month("2021-02-01")});
     FAIL() << "expected an error";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::bad_input);
+    EXPECT_EQ(e.kind(), Failure::bad_input);
     EXPECT_NE(std::string(e.what()).find("almost surely in percent"), std::string::npos)
         << e.what();
   }
@@ -205,8 +209,9 @@ TEST(Rates, RejectsYieldsThatLookLikeTheWrongUnit) {
   c.quote = RateQuote::discount;  // without a tenor
   EXPECT_THROW(per_period_rates(y, c, Frequency::monthly, {month("2021-02-01")}), Error);
   c.quote = RateQuote::yield;
-  EXPECT_THROW(per_period_rates(y, c, Frequency::monthly, {month("2021-03-01"), month("2021-02-01")}),
-               Error);  // keys not ascending
+  EXPECT_THROW(
+      per_period_rates(y, c, Frequency::monthly, {month("2021-03-01"), month("2021-02-01")}),
+      Error);  // keys not ascending
 }
 
 TEST(Rates, NamesAndParsesConventions) {

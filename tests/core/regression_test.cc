@@ -55,7 +55,7 @@ std::string estimation_message(F f) {
   try {
     f();
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::estimation) << e.what();
+    EXPECT_EQ(e.kind(), Failure::cannot_estimate) << e.what();
     return e.what();
   } catch (const std::exception& e) {
     ADD_FAILURE() << "unexpected exception: " << e.what();

@@ -1,16 +1,20 @@
 #include "core/resample.h"
 
-#include <cmath>
-
 #include <gtest/gtest.h>
+
+#include <cmath>
 
 #include "core/error.h"
 
 namespace alphatrail::core {
 namespace {
 
-Day day(const char* iso) { return parse_date(iso).day; }
-std::int64_t month(const char* iso) { return period_key(Frequency::monthly, parse_date(iso).day); }
+Day day(const char* iso) {
+  return parse_date(iso).day;
+}
+std::int64_t month(const char* iso) {
+  return period_key(Frequency::monthly, parse_date(iso).day);
+}
 
 // Every weekday from first to last (inclusive), each with the same return.
 DatedSeries business_days(const char* first, const char* last, double r) {
@@ -178,7 +182,7 @@ TEST(Resample, RejectsTwoObservationsOfOnePeriodAtTheSameFrequency) {
     compound_returns(s, Frequency::monthly, Frequency::monthly);
     FAIL() << "expected an error";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::bad_input);
+    EXPECT_EQ(e.kind(), Failure::bad_input);
     EXPECT_NE(std::string(e.what()).find("period 2021-03 (2021-03-01 and 2021-03-31)"),
               std::string::npos)
         << e.what();
@@ -191,7 +195,7 @@ TEST(Resample, RefusesToResampleToAHigherFrequency) {
     compound_returns(s, Frequency::daily, Frequency::monthly);
     FAIL() << "expected an error";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::bad_input);
+    EXPECT_EQ(e.kind(), Failure::bad_input);
     EXPECT_NE(std::string(e.what()).find("cannot turn monthly returns into daily returns"),
               std::string::npos)
         << e.what();

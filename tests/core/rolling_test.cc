@@ -105,7 +105,7 @@ TEST(RollingWindowRule, WindowThatCannotHoldTheModelIsRefused) {
     rolling_fits(d.X, d.y, d.names, d.keys, Frequency::monthly, options(4, {}));
     FAIL() << "a 4-period window for 3 coefficients was accepted";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::usage) << e.what();
+    EXPECT_EQ(e.kind(), Failure::invalid_argument) << e.what();
   }
 }
 

@@ -23,9 +23,11 @@ namespace {
 namespace ledger = alphatrail::ledger;
 namespace core = alphatrail::core;
 using alphatrail::Error;
-using alphatrail::ExitCode;
+using alphatrail::Failure;
 
-core::Day day(int y, int m, int d) { return core::to_day({y, m, d}); }
+core::Day day(int y, int m, int d) {
+  return core::to_day({y, m, d});
+}
 
 ledger::ColumnData column(const std::string& name, std::vector<core::Day> dates,
                           std::vector<double> values) {
@@ -43,9 +45,10 @@ const double kNaN = std::numeric_limits<double>::quiet_NaN();
 // --- encoding -----------------------------------------------------------------------------
 
 TEST(ValuesJson, EncodesDatesAscendingAndNullForMissing) {
-  const auto c = column("a", {day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)},
-                        {0.1, kNaN, 1e-05});
-  EXPECT_EQ(ledger::encode_values_json(c), R"({"2021-01-31":0.1,"2021-02-28":null,"2021-03-31":1e-05})");
+  const auto c =
+      column("a", {day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}, {0.1, kNaN, 1e-05});
+  EXPECT_EQ(ledger::encode_values_json(c),
+            R"({"2021-01-31":0.1,"2021-02-28":null,"2021-03-31":1e-05})");
 }
 
 TEST(ValuesJson, EncodesTheShortestRoundTripForm) {
@@ -81,9 +84,18 @@ TEST(ValuesJson, EncodesEmptyColumnAsEmptyObjectAndPadsYears) {
 // --- decoding -----------------------------------------------------------------------------
 
 TEST(ValuesJson, RoundTripsBitForBit) {
-  std::vector<double> values{0.1,   -0.0,  0.0,   1.0 / 3, 0.1 + 0.2, 5e-324, -5e-324,
-                             2.2250738585072014e-308,      std::numeric_limits<double>::max(),
-                             -1e-300, 1e21, 123456789.125};
+  std::vector<double> values{0.1,
+                             -0.0,
+                             0.0,
+                             1.0 / 3,
+                             0.1 + 0.2,
+                             5e-324,
+                             -5e-324,
+                             2.2250738585072014e-308,
+                             std::numeric_limits<double>::max(),
+                             -1e-300,
+                             1e21,
+                             123456789.125};
   std::mt19937_64 random(20211231);
   while (values.size() < 2000) {
     const std::uint64_t b = random();
@@ -93,7 +105,8 @@ TEST(ValuesJson, RoundTripsBitForBit) {
   }
   values.push_back(kNaN);
   std::vector<core::Day> dates;
-  for (std::size_t i = 0; i < values.size(); ++i) dates.push_back(day(2000, 1, 1) + static_cast<int>(i));
+  for (std::size_t i = 0; i < values.size(); ++i)
+    dates.push_back(day(2000, 1, 1) + static_cast<int>(i));
   const auto original = column("r", dates, values);
 
   const std::string json = ledger::encode_values_json(original);
@@ -121,7 +134,7 @@ void expect_malformed(const std::string& json) {
     const auto c = ledger::decode_values_json("col-x", json);
     ADD_FAILURE() << "accepted malformed text: " << json << " (" << c.dates.size() << " dates)";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::ledger) << json;
+    EXPECT_EQ(e.kind(), Failure::unusable_ledger) << json;
     EXPECT_NE(std::string(e.what()).find("column 'col-x' are malformed at byte"), std::string::npos)
         << e.what();
     EXPECT_NE(std::string(e.what()).find("alphatrail verify"), std::string::npos) << e.what();
@@ -144,8 +157,8 @@ TEST(ValuesJson, RejectsMalformedText) {
            R"({"2021-01-31":nul})",
            R"({"2021-01-31":0.1}})",
            R"({"2021-01-31":0.1},)",
-           R"({"2021-02-30":0.1})",   // not a calendar date
-           R"({"2021-01":0.1})",      // a month is not a stored date
+           R"({"2021-02-30":0.1})",  // not a calendar date
+           R"({"2021-01":0.1})",     // a month is not a stored date
            R"({"2021-1-31":0.1})",
            R"({"2021-01-31x":0.1})",
            R"({2021-01-31:0.1})",
@@ -180,7 +193,7 @@ void expect_refused(const ledger::ColumnData& c, const Encode& encode) {
     encode(c);
     ADD_FAILURE() << "encoded a column holding " << c.values.back();
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::failure) << e.what();
+    EXPECT_EQ(e.kind(), Failure::internal) << e.what();
     const std::string message = e.what();
     EXPECT_NE(message.find("column '" + c.name + "'"), std::string::npos) << message;
     EXPECT_NE(message.find("2021-02-28"), std::string::npos) << message;
@@ -337,7 +350,7 @@ void expect_corrupted(const std::string& days, const std::string& numbers,
     ADD_FAILURE() << "accepted " << days.size() << " bytes of days and " << numbers.size()
                   << " of numbers (" << c.dates.size() << " dates)";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::ledger);
+    EXPECT_EQ(e.kind(), Failure::unusable_ledger);
     const std::string what = e.what();
     EXPECT_NE(what.find("the packed copy of column 'col-y' is corrupted: " + problem),
               std::string::npos)
@@ -393,9 +406,8 @@ TEST(PackedColumn, RejectsDaysBeyondTheStoredYears) {
 
 struct Content {
   ledger::ContentMeta meta{"strategy", "decimal return", std::nullopt};
-  std::vector<ledger::ColumnData> columns{
-      column("fund-one", {day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)},
-             {0.01, -0.005, 0.012})};
+  std::vector<ledger::ColumnData> columns{column(
+      "fund-one", {day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}, {0.01, -0.005, 0.012})};
 
   std::string hash() const {
     std::vector<ledger::EncodedColumn> encoded;

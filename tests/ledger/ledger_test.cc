@@ -26,7 +26,7 @@ namespace {
 namespace fs = std::filesystem;
 namespace ledger = alphatrail::ledger;
 using alphatrail::Error;
-using alphatrail::ExitCode;
+using alphatrail::Failure;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
 using alphatrail::testing::read_file;
@@ -247,7 +247,7 @@ TEST(LedgerOpen, ExistingAndReadOnlyNeedAFile) {
       ledger::Ledger::open(path, mode, notices);
       ADD_FAILURE() << "opened a missing ledger";
     } catch (const Error& e) {
-      EXPECT_EQ(e.code(), ExitCode::ledger);
+      EXPECT_EQ(e.kind(), Failure::unusable_ledger);
       EXPECT_TRUE(contains(e.what(), "no ledger at " + path.string())) << e.what();
     }
     EXPECT_FALSE(fs::exists(path));
@@ -295,7 +295,7 @@ TEST(LedgerOpen, ReadOnlyRefusesWhatItWouldHaveToChange) {
       ledger::Ledger::open(c.path, ledger::OpenMode::read_only, notices);
       ADD_FAILURE() << "opened read-only";
     } catch (const Error& e) {
-      EXPECT_EQ(e.code(), ExitCode::ledger);
+      EXPECT_EQ(e.kind(), Failure::unusable_ledger);
       EXPECT_TRUE(contains(e.what(), c.problem)) << e.what();
       EXPECT_TRUE(contains(e.what(), "`alphatrail init --ledger " + c.path.string() + "`"))
           << e.what();
@@ -321,7 +321,7 @@ TEST(LedgerOpen, NewerLedgerIsRefused) {
       ledger::Ledger::open(path, mode, notices);
       ADD_FAILURE() << "opened a ledger newer than the binary";
     } catch (const Error& e) {
-      EXPECT_EQ(e.code(), ExitCode::ledger);
+      EXPECT_EQ(e.kind(), Failure::unusable_ledger);
       EXPECT_TRUE(contains(e.what(), "schema version 999")) << e.what();
     }
   }

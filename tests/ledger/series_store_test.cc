@@ -24,7 +24,7 @@ namespace {
 namespace ledger = alphatrail::ledger;
 namespace core = alphatrail::core;
 using alphatrail::Error;
-using alphatrail::ExitCode;
+using alphatrail::Failure;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::source_path;
 
@@ -143,7 +143,7 @@ TEST_F(SeriesStore, NameOfAnotherKindRollsBackTheBatch) {
     store({returns("new-one", {0.02}, "benchmark"), returns("fund", {0.01}, "benchmark")});
     ADD_FAILURE() << "stored a benchmark under a strategy's name";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::bad_input);
+    EXPECT_EQ(e.kind(), Failure::bad_input);
     EXPECT_EQ(std::string(e.what()),
               "input.csv: series 'fund' already exists as a strategy series, not benchmark; "
               "rename the column or use --name");
@@ -281,7 +281,7 @@ TEST_F(SeriesStore, UnknownNamesAndVersionsAreNotFound) {
       call();
       ADD_FAILURE() << "found: " << message;
     } catch (const Error& e) {
-      EXPECT_EQ(e.code(), ExitCode::not_found);
+      EXPECT_EQ(e.kind(), Failure::not_found);
       EXPECT_NE(std::string(e.what()).find(message), std::string::npos) << e.what();
     }
   };
@@ -360,7 +360,7 @@ TEST_F(SeriesStore, LoadsManyVersionsAsLoadVersionDoes) {
     ledger::load_versions(ledger_, wanted);
     ADD_FAILURE() << "an unknown series was loaded";
   } catch (const Error& e) {
-    EXPECT_EQ(e.code(), ExitCode::not_found);
+    EXPECT_EQ(e.kind(), Failure::not_found);
     EXPECT_NE(std::string(e.what()).find("no series named 'missing'"), std::string::npos);
   }
 }
@@ -499,7 +499,7 @@ TEST_F(SeriesStore, CorruptedPackedCopyIsALedgerErrorNamingTheColumn) {
       ADD_FAILURE() << "loaded a corrupted packed copy: " << loaded.columns[0].values.size()
                     << " values";
     } catch (const Error& e) {
-      EXPECT_EQ(e.code(), ExitCode::ledger);
+      EXPECT_EQ(e.kind(), Failure::unusable_ledger);
       EXPECT_NE(
           std::string(e.what()).find("the packed copy of column 'fund' is corrupted: " + problem),
           std::string::npos)
