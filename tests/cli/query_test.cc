@@ -23,6 +23,7 @@
 
 #include "core/sha256.h"
 #include "ledger/ledger.h"
+#include "support/ledger_fixtures.h"
 #include "support/test_support.h"
 
 extern char** environ;

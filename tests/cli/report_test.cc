@@ -8,6 +8,7 @@
 #include <regex>
 
 #include "support/browser.h"
+#include "support/ledger_fixtures.h"
 #include "support/test_support.h"
 
 namespace alphatrail::testing {

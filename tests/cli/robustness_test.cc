@@ -29,6 +29,7 @@
 #include <thread>
 #include <vector>
 
+#include "support/ledger_fixtures.h"
 #include "support/test_support.h"
 
 namespace {

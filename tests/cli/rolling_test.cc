@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "support/ledger_fixtures.h"
 #include "support/test_support.h"
 
 namespace {

@@ -13,6 +13,7 @@
 #include <string>
 #include <vector>
 
+#include "support/ledger_fixtures.h"
 #include "support/test_support.h"
 
 namespace {

@@ -30,6 +30,7 @@
 #include "core/dates.h"
 #include "core/sha256.h"
 #include "ledger/content.h"
+#include "support/ledger_fixtures.h"
 #include "support/test_support.h"
 
 namespace {

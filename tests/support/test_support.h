@@ -64,36 +64,6 @@ pid_t start_alphatrail(const std::vector<std::string>& args,
 // Waits for a started process and returns its wait status (see waitpid).
 int wait_for(pid_t pid);
 
-// Builds the six-run ledger the track-record tests start from, from the demo's data files
-// (the demo at `demo` also restates and re-runs; `ledger` stops after the first six runs).
-// Returns an error text, empty on success.
-std::string build_six_run_ledger(const std::filesystem::path& demo,
-                                 const std::filesystem::path& ledger);
-
-// Copies a ledger file and its write-ahead log over `to` (dropping to's old -wal and -shm).
-void copy_ledger(const std::filesystem::path& from, const std::filesystem::path& to);
-
-// Tests on the six-run ledger: built once per suite by build_six_run_ledger; each test works on
-// its own copy at ledger_path().
-class SixRunLedgerTest : public ::testing::Test {
- protected:
-  static void SetUpTestSuite();
-  static void TearDownTestSuite();
-  void SetUp() override;
-
-  static std::filesystem::path demo();           // the demo ledger the six runs' files came from
-  static std::filesystem::path base();           // the six-run ledger, never modified
-  static std::filesystem::path benchmark_csv();  // the demo's benchmark levels file
-  std::filesystem::path ledger_path() const { return scratch_ / "ledger.db"; }
-  std::string ledger() const { return ledger_path().string(); }
-
-  ScratchDir scratch_;
-
- private:
-  static inline ScratchDir* dir_ = nullptr;
-  static inline std::string problem_;
-};
-
 // Returns true when text holds part.
 bool contains(const std::string& text, const std::string& part);
 
@@ -112,14 +82,5 @@ std::vector<std::vector<double>> read_number_rows(const std::filesystem::path& f
 // Example: month_ends(2020, 12, 2) is 2020-12-31, 2021-01-31.
 core::Day month_end(int year, int month);
 std::vector<core::Day> month_ends(int year, int month, int n);
-
-// Returns the path of a file in fixtures/evaluate.
-std::string evaluate_fixture(const std::string& name);
-
-// Ingests fixtures/evaluate into a ledger (created when missing): strategies trend-fast,
-// trend-slow, carry (2010-01 .. 2019-12) and tiny (3 months); benchmark "market" from levels;
-// rate curve "bills" (1M, 3M, percent); factor set "ff" (SMB, HML). Returns an error text,
-// empty on success.
-std::string ingest_evaluate_fixtures(const std::filesystem::path& ledger);
 
 }  // namespace alphatrail::testing
