@@ -320,10 +320,9 @@ TEST_F(ConcurrentRerunTest, ARerunRacingIngestsUsesOneSnapshot) {
   int ingests = 0;
   for (pid_t done = 0; done == 0 && ingests < 400; done = waitpid(rerun, &status, WNOHANG)) {
     const char* file = ingests % 2 == 0 ? "revised-again.csv" : "revised.csv";
-    const CommandResult r = at(ledger_path(),
-                               {"ingest", "benchmark", (many() / file).string(), "--levels",
-                                "--name", kBenchmark},
-                               env);
+    const CommandResult r = at(
+        ledger_path(),
+        {"ingest", "benchmark", (many() / file).string(), "--levels", "--name", kBenchmark}, env);
     ASSERT_EQ(r.exit_code, 0) << r.err;
     ++ingests;
   }
@@ -333,11 +332,10 @@ TEST_F(ConcurrentRerunTest, ARerunRacingIngestsUsesOneSnapshot) {
 
   EXPECT_EQ(scalar(ledger_path(), "SELECT count(*) FROM runs WHERE revises_run_id IS NOT NULL"),
             300);
-  EXPECT_EQ(scalar(ledger_path(),
-                   fmt::format("SELECT count(DISTINCT i.version) FROM runs r JOIN "
-                               "run_input_versions i ON i.run_id = r.run_id WHERE "
-                               "r.revises_run_id IS NOT NULL AND i.series = '{}'",
-                               kBenchmark)),
+  EXPECT_EQ(scalar(ledger_path(), fmt::format("SELECT count(DISTINCT i.version) FROM runs r JOIN "
+                                              "run_input_versions i ON i.run_id = r.run_id WHERE "
+                                              "r.revises_run_id IS NOT NULL AND i.series = '{}'",
+                                              kBenchmark)),
             1)
       << "the re-runs used more than one version of the benchmark (" << ingests
       << " revisions landed while the rerun worked)";

@@ -20,8 +20,8 @@ namespace {
 
 namespace fs = std::filesystem;
 using alphatrail::ledger::current_schema_version;
-using alphatrail::testing::contains;
 using alphatrail::testing::CommandResult;
+using alphatrail::testing::contains;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
@@ -45,7 +45,9 @@ std::string bytes_of(const fs::path& path) {
   return all;
 }
 
-std::string version_text() { return std::to_string(current_schema_version()); }
+std::string version_text() {
+  return std::to_string(current_schema_version());
+}
 
 // The commands that open the ledger read-only, with the arguments each needs.
 const std::vector<std::vector<std::string>>& reading_commands() {
@@ -127,8 +129,8 @@ TEST(InitCommand, CreatesALedgerWithItsMarks) {
   const fs::path ledger = dir / "new.db";
   const CommandResult r = run_alphatrail({"--ledger", ledger.string(), "init"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  EXPECT_EQ(r.out, "created ledger " + ledger.string() + " (schema version " + version_text() +
-                       ")\n");
+  EXPECT_EQ(r.out,
+            "created ledger " + ledger.string() + " (schema version " + version_text() + ")\n");
   EXPECT_EQ(r.err, "");
   EXPECT_EQ(pragma(ledger, "application_id"), 0x4154524C);  // "ATRL"
   EXPECT_EQ(pragma(ledger, "user_version"), current_schema_version());
@@ -136,10 +138,10 @@ TEST(InitCommand, CreatesALedgerWithItsMarks) {
   EXPECT_EQ(journal_mode(ledger), "wal");
   SQLite::Database db(ledger.string(), SQLite::OPEN_READONLY);
   for (const char* name : {"series", "series_versions", "version_columns", "observations"})
-    EXPECT_EQ(db.execAndGet(std::string("SELECT count(*) FROM sqlite_master WHERE name = '") +
-                            name + "'")
-                  .getInt(),
-              1)
+    EXPECT_EQ(
+        db.execAndGet(std::string("SELECT count(*) FROM sqlite_master WHERE name = '") + name + "'")
+            .getInt(),
+        1)
         << name;
   EXPECT_EQ(db.execAndGet("SELECT count(*) FROM series").getInt(), 0);
 }
@@ -181,8 +183,8 @@ TEST(InitCommand, EmptyFileBecomesANewLedger) {
   const fs::path ledger = dir.write("empty.db", "");
   const CommandResult r = run_alphatrail({"--ledger", ledger.string(), "init"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
-  EXPECT_EQ(r.out, "created ledger " + ledger.string() + " (schema version " + version_text() +
-                       ")\n");
+  EXPECT_EQ(r.out,
+            "created ledger " + ledger.string() + " (schema version " + version_text() + ")\n");
   EXPECT_EQ(pragma(ledger, "user_version"), current_schema_version());
   EXPECT_EQ(pragma(ledger, "application_id"), 0x4154524C);
 }
@@ -245,7 +247,8 @@ TEST(LedgerFile, NewerLedgerIsRefusedAndLeftUntouched) {
   }
   expect_every_command_refuses(dir, ledger,
                                "has schema version 999, newer than this alphatrail (it knows up "
-                               "to " + version_text() + "); use a newer alphatrail binary");
+                               "to " +
+                                   version_text() + "); use a newer alphatrail binary");
   EXPECT_EQ(pragma(ledger, "user_version"), 999);
 }
 
@@ -302,7 +305,8 @@ class V1Fixture : public ::testing::Test {
                         "SELECT date, value FROM observations WHERE series = 'fund-one' AND "
                         "version = 1 ORDER BY date");
     std::vector<std::pair<std::string, double>> rows;
-    while (q.executeStep()) rows.emplace_back(q.getColumn(0).getString(), q.getColumn(1).getDouble());
+    while (q.executeStep())
+      rows.emplace_back(q.getColumn(0).getString(), q.getColumn(1).getDouble());
     ASSERT_EQ(rows.size(), 3u);
     EXPECT_EQ(rows[0].first, "2021-01-31");
     EXPECT_DOUBLE_EQ(rows[0].second, 0.01);
@@ -371,10 +375,10 @@ TEST_F(V1Fixture, InitReportsTheUpgradeOnStdout) {
 }
 
 TEST_F(V1Fixture, IngestAddsBesideTheOldData) {
-  const std::string csv =
-      dir_.write("fund-one.csv", "date,fund-one\n2021-01-31,0.01\n2021-02-28,-0.005\n"
-                                 "2021-03-31,0.012\n2021-04-30,0.003\n")
-          .string();
+  const std::string csv = dir_.write("fund-one.csv",
+                                     "date,fund-one\n2021-01-31,0.01\n2021-02-28,-0.005\n"
+                                     "2021-03-31,0.012\n2021-04-30,0.003\n")
+                              .string();
   const CommandResult r = run_alphatrail({"--ledger", ledger_.string(), "ingest", "strategy", csv});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   if (fixture_version_ < current_schema_version()) {
@@ -386,10 +390,10 @@ TEST_F(V1Fixture, IngestAddsBesideTheOldData) {
 
 TEST_F(V1Fixture, SameContentAsTheFixtureIsUnchanged) {
   // The content hash of a version ingested by an earlier binary must not drift.
-  const std::string csv =
-      dir_.write("fund-one.csv", "date,fund-one\n2021-01-31,0.01\n2021-02-28,-0.005\n"
-                                 "2021-03-31,0.012\n")
-          .string();
+  const std::string csv = dir_.write("fund-one.csv",
+                                     "date,fund-one\n2021-01-31,0.01\n2021-02-28,-0.005\n"
+                                     "2021-03-31,0.012\n")
+                              .string();
   const CommandResult r = run_alphatrail({"--ledger", ledger_.string(), "ingest", "strategy", csv});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_TRUE(contains(r.out, "strategy fund-one: unchanged (version 1, 56ab984b7a4f)")) << r.out;

@@ -16,13 +16,15 @@
 namespace {
 
 namespace fs = std::filesystem;
+using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
 using alphatrail::testing::lines_of;
-using alphatrail::testing::CommandResult;
 using alphatrail::testing::run_alphatrail;
 using alphatrail::testing::ScratchDir;
 
-bool is_hex64(const std::string& s) { return std::regex_match(s, std::regex("[0-9a-f]{64}")); }
+bool is_hex64(const std::string& s) {
+  return std::regex_match(s, std::regex("[0-9a-f]{64}"));
+}
 
 class SeriesTest : public ::testing::Test {
  protected:

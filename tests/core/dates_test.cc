@@ -10,7 +10,8 @@ TEST(Dates, RoundTripsCivilDates) {
     EXPECT_EQ(to_day(to_civil(d)), d);
   }
   EXPECT_EQ(to_day({1970, 1, 1}), 0);
-  EXPECT_EQ(to_day({2000, 3, 1}), 11017);  // computed: 30 years of days incl. 7 leap days + Jan/Feb 2000
+  EXPECT_EQ(to_day({2000, 3, 1}),
+            11017);  // computed: 30 years of days incl. 7 leap days + Jan/Feb 2000
 }
 
 TEST(Dates, ParsesIsoDatesAndMonths) {

@@ -7,12 +7,16 @@
 namespace alphatrail::core {
 namespace {
 
-Day d(const char* text) { return parse_date(text).day; }
+Day d(const char* text) {
+  return parse_date(text).day;
+}
 
 TEST(SeriesDiff, FindsAddedRemovedAndChangedPeriodsLargestFirst) {
-  const SeriesColumn v1{"b", {d("2021-01-31"), d("2021-02-28"), d("2021-03-31"), d("2021-04-30")},
+  const SeriesColumn v1{"b",
+                        {d("2021-01-31"), d("2021-02-28"), d("2021-03-31"), d("2021-04-30")},
                         {0.01, 0.02, 0.03, NAN}};
-  const SeriesColumn v2{"b", {d("2021-02-28"), d("2021-03-31"), d("2021-04-30"), d("2021-05-31")},
+  const SeriesColumn v2{"b",
+                        {d("2021-02-28"), d("2021-03-31"), d("2021-04-30"), d("2021-05-31")},
                         {0.025, 0.031, 0.04, 0.05}};
   const ColumnDiff diff = diff_column(v1, v2);
   ASSERT_EQ(diff.removed.size(), 1u);
