@@ -16,26 +16,26 @@
 namespace alphatrail::core {
 namespace {
 
-constexpr double nan_value = std::numeric_limits<double>::quiet_NaN();
+constexpr double kNanValue = std::numeric_limits<double>::quiet_NaN();
 
 // A pivot of the scaled QR at or below this fraction of the largest one counts as zero: the
 // regressors are collinear (exactly, up to rounding of the data).
-constexpr double collinear_tolerance = 1e-13;
+constexpr double kCollinearTolerance = 1e-13;
 // Above this 2-norm condition number of the column-scaled design, refuse: the rounding of the
 // inputs to double alone (relative 1e-16 each) may move the solution by cond * 1e-16, so fewer
 // than 6 of its digits would be determined by the data. (NIST Filip, 5e9, keeps 7 digits.)
-constexpr double condition_limit = 1e10;
+constexpr double kConditionLimit = 1e10;
 // Refinement of the least-squares solution: at most this many passes after the first solve;
 // stop once a correction is this small or stops shrinking; refuse when the last correction
-// is larger than trusted_correction of the solution (fewer than about 9 digits settled).
-// A design whose column-scaled condition number is at most refine_above is solved by the QR
+// is larger than kTrustedCorrection of the solution (fewer than about 9 digits settled).
+// A design whose column-scaled condition number is at most kRefineAbove is solved by the QR
 // alone: Householder QR is backward stable, so its solution is off by about
 // (cond + cond^2 |r| / (|X| |beta|)) 1e-16 relative, 12 digits or more at cond 100 (Golub &
 // Van Loan, Matrix Computations, 4th ed., section 5.3.7). Above it the solution is refined.
-constexpr double refine_above = 100;
-constexpr int max_refinements = 6;
-constexpr double settled_correction = 1e-12;
-constexpr double trusted_correction = 1e-9;
+constexpr double kRefineAbove = 100;
+constexpr int kMaxRefinements = 6;
+constexpr double kSettledCorrection = 1e-12;
+constexpr double kTrustedCorrection = 1e-9;
 
 std::string quoted(const std::string& name) {
   return "'" + name + "'";
@@ -177,7 +177,7 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
 
   d.scale = X.colwise().norm().transpose();
   Eigen::MatrixXd scaled = X * d.scale.cwiseInverse().asDiagonal();
-  d.qr.setThreshold(collinear_tolerance);
+  d.qr.setThreshold(kCollinearTolerance);
   d.qr.compute(scaled);
   const Eigen::Index rank = d.qr.rank();
   if (rank < d.k) collinear_error(d, rank);
@@ -186,7 +186,7 @@ Design factorize(const Eigen::MatrixXd& X, const std::vector<std::string>& names
   Eigen::JacobiSVD<Eigen::MatrixXd> svd(d.upper);
   const auto& sv = svd.singularValues();
   d.condition_number = sv(0) / sv(sv.size() - 1);
-  if (!(d.condition_number <= condition_limit)) {
+  if (!(d.condition_number <= kConditionLimit)) {
     estimation_error(
         "design is too ill-conditioned (condition number " + format_general(d.condition_number) +
         " after scaling the columns) for double precision; rescale or drop regressors");
@@ -216,7 +216,7 @@ struct Workspace {
 // digits that the plain solve loses on ill-conditioned or large-residual problems (NIST
 // Wampler5) and shows whether the answer can be trusted: when the corrections do not settle,
 // the design is refused as too ill-conditioned. A well-conditioned design (condition number
-// up to refine_above) needs no refinement; a moderately conditioned one takes one pass.
+// up to kRefineAbove) needs no refinement; a moderately conditioned one takes one pass.
 void solve_refined(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y,
                    Eigen::VectorXd& beta, Eigen::VectorXd& r, Workspace& ws) {
   const Eigen::MatrixXd& X = *d.X;
@@ -228,7 +228,7 @@ void solve_refined(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y,
   Eigen::VectorXd gs = Eigen::VectorXd::Zero(d.k);  // pass 0: g = -X' r = 0
   std::vector<long double> g(static_cast<std::size_t>(d.k));
   double correction = std::numeric_limits<double>::infinity();
-  for (int pass = 0; pass <= max_refinements; ++pass) {
+  for (int pass = 0; pass <= kMaxRefinements; ++pass) {
     if (pass > 0) {
       // f = y - r - X beta and g = -X' r, accumulated in extended precision.
       std::fill(g.begin(), g.end(), 0.0L);
@@ -256,12 +256,12 @@ void solve_refined(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y,
     const double previous = correction;
     correction = size > 0 ? w.norm() / size : 0.0;
     if (pass == 0) {
-      if (d.condition_number <= refine_above) return;
+      if (d.condition_number <= kRefineAbove) return;
       continue;
     }
-    if (correction <= settled_correction || correction > 0.5 * previous) break;
+    if (correction <= kSettledCorrection || correction > 0.5 * previous) break;
   }
-  if (!(correction <= trusted_correction)) {
+  if (!(correction <= kTrustedCorrection)) {
     estimation_error(
         "design is too ill-conditioned (condition number " + format_general(d.condition_number) +
         " after scaling the columns) for double precision: the solution does not settle "
@@ -419,7 +419,7 @@ OlsResult fit_column(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y
     res.tss = y.squaredNorm();
   }
   const double dfd = res.df;
-  res.r_squared = res.tss > 0 ? 1 - res.rss / res.tss : nan_value;
+  res.r_squared = res.tss > 0 ? 1 - res.rss / res.tss : kNanValue;
   const double centered = d.has_intercept ? 1.0 : 0.0;
   res.adj_r_squared = 1 - (1 - res.r_squared) * (d.n - centered) / dfd;
   const double s2 = res.rss / dfd;
@@ -429,7 +429,7 @@ OlsResult fit_column(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y
   if (q_tested > 0) {
     res.f_stat = ((res.tss - res.rss) / q_tested) / s2;
     if (std::isnan(res.f_stat)) {
-      res.f_p_value = nan_value;
+      res.f_p_value = kNanValue;
     } else if (std::isinf(res.f_stat)) {
       res.f_p_value = 0;
     } else {
@@ -439,8 +439,8 @@ OlsResult fit_column(const Design& d, const Eigen::Ref<const Eigen::VectorXd>& y
       res.f_p_value = boost::math::cdf(boost::math::complement(f, std::max(0.0, res.f_stat)));
     }
   } else {
-    res.f_stat = nan_value;
-    res.f_p_value = nan_value;
+    res.f_stat = kNanValue;
+    res.f_p_value = kNanValue;
   }
 
   const double small_sample_factor = static_cast<double>(d.n) / static_cast<double>(d.n - d.k);

@@ -11,7 +11,7 @@ namespace alphatrail::core {
 
 namespace {
 
-constexpr double nan_value = std::numeric_limits<double>::quiet_NaN();
+constexpr double kNanValue = std::numeric_limits<double>::quiet_NaN();
 
 // The lag a window uses, known before fitting so that a failed window still reports it.
 int window_lags(const CovarianceOptions& c, int window) {
@@ -23,7 +23,7 @@ void set_unestimated(RollingWindow& w) {
   for (double* v : {&w.alpha, &w.alpha_std_error, &w.alpha_ci_low, &w.alpha_ci_high,
                     &w.alpha_annualized, &w.alpha_annualized_ci_low, &w.alpha_annualized_ci_high,
                     &w.beta, &w.beta_std_error, &w.beta_ci_low, &w.beta_ci_high})
-    *v = nan_value;
+    *v = kNanValue;
 }
 
 }  // namespace
@@ -62,7 +62,8 @@ std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::V
   const auto T = static_cast<int>(X.rows());
   std::vector<RollingWindow> windows;
   if (T < N) return windows;
-  windows.reserve(static_cast<std::size_t>(T - N + 1));
+  const int window_count = T - N + 1;
+  windows.reserve(static_cast<std::size_t>(window_count));
   const int P = options.periods_per_year;
   for (int start = 0; start + N <= T; ++start) {
     RollingWindow w;

@@ -27,7 +27,7 @@ std::string Sha256::hex() {
   EVP_DigestFinal_ex(static_cast<EVP_MD_CTX*>(context_), digest.data(), &size);
   static constexpr char kHex[] = "0123456789abcdef";
   std::string text;
-  text.reserve(size * 2);
+  text.reserve(static_cast<std::size_t>(size) * 2);
   for (unsigned int i = 0; i < size; ++i) {
     text.push_back(kHex[digest[i] >> 4]);
     text.push_back(kHex[digest[i] & 15]);

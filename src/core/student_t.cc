@@ -11,8 +11,8 @@
 namespace alphatrail::core {
 namespace {
 
-constexpr double nan_value = std::numeric_limits<double>::quiet_NaN();
-constexpr double inf_value = std::numeric_limits<double>::infinity();
+constexpr double kNanValue = std::numeric_limits<double>::quiet_NaN();
+constexpr double kInfValue = std::numeric_limits<double>::infinity();
 
 // Boost.Math computes in long double by default; double arithmetic is accurate to a few ulps
 // here and several times faster, which counts when thousands of runs each need p-values.
@@ -30,20 +30,20 @@ void check_df(double df) {
 }  // namespace
 
 double student_t_quantile(double p, double df) {
-  if (std::isnan(p) || std::isnan(df)) return nan_value;
+  if (std::isnan(p) || std::isnan(df)) return kNanValue;
   check_df(df);
   if (p < 0 || p > 1) {
     throw Error(Failure::internal, "Student t: probability " + std::to_string(p) +
                                        " is outside [0, 1]; pass a probability");
   }
-  if (p == 0) return -inf_value;
-  if (p == 1) return inf_value;
+  if (p == 0) return -kInfValue;
+  if (p == 1) return kInfValue;
   if (std::isinf(df)) return boost::math::quantile(Normal(), p);
   return boost::math::quantile(StudentT(df), p);
 }
 
 double student_t_two_sided_p(double t, double df) {
-  if (std::isnan(t) || std::isnan(df)) return nan_value;
+  if (std::isnan(t) || std::isnan(df)) return kNanValue;
   check_df(df);
   const double a = std::fabs(t);
   if (std::isinf(a)) return 0.0;

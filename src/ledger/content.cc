@@ -174,7 +174,8 @@ std::string encode_values_json(const ColumnData& column) {
     *p++ = ':';
     const double v = column.values[i];
     if (std::isnan(v)) {
-      std::memcpy(p, "null", 4);
+      // JSON text, not a C string: no terminator belongs here.
+      std::memcpy(p, "null", 4);  // NOLINT(bugprone-not-null-terminated-result)
       p += 4;
     } else if (std::isinf(v)) {
       not_storable(column, i);
