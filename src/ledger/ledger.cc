@@ -93,7 +93,9 @@ std::optional<Identity> identity_from_first_page(const std::filesystem::path& pa
 int check_identity(const Identity& id, const std::filesystem::path& path, OpenMode mode) {
   const std::string name = path.string();
   if (id.application_id == 0 && id.user_version == 0 && !id.has_objects) {
-    if (mode != OpenMode::read_only) return 0;
+    // Only a command that creates ledgers (init, ingest) makes an empty database one; evaluate
+    // or rerun on it would turn it into a ledger and then fail for want of series.
+    if (mode == OpenMode::create) return 0;
     throw ledger_error(
         fmt::format("{} is an empty SQLite database, not an alphatrail ledger; make it one with "
                     "`alphatrail init --ledger {}`, or name another with --ledger",

@@ -26,7 +26,7 @@ inline constexpr int kNewLedgerPageSize = 16384;
 
 enum class OpenMode {
   create,    // create the file if missing (and say so), migrate
-  existing,  // the file must exist, migrate
+  existing,  // the file must be a ledger (an empty SQLite database is refused), migrate
   // The file must be a ledger at the current schema version: opened with SQLITE_OPEN_READONLY
   // and PRAGMA query_only, nothing written (no journal mode, no migration). An older ledger, an
   // empty file or database and any other file are refused; `alphatrail init` upgrades an older

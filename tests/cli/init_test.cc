@@ -218,6 +218,31 @@ TEST(LedgerFile, ReadingCommandsRefuseAnEmptySqliteDatabase) {
   EXPECT_EQ(pragma(ledger, "application_id"), 0);
 }
 
+TEST(LedgerFile, EvaluateAndRerunRefuseAnEmptySqliteDatabase) {
+  // Only init and ingest make an empty database a ledger: evaluate and rerun would otherwise
+  // write the whole schema into it and then fail for want of series.
+  ScratchDir dir;
+  const fs::path ledger = dir / "blank.db";
+  {
+    SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
+    db.exec("CREATE TABLE scratch (x)");
+    db.exec("DROP TABLE scratch");
+  }
+  ASSERT_GT(fs::file_size(ledger), 0u);
+  ASSERT_EQ(schema_objects(ledger), 0);
+  const std::string before = read_file(ledger);
+  for (const auto& args : std::vector<std::vector<std::string>>{
+           {"evaluate", "x", "--benchmark", "b", "--rate", "r"}, {"rerun", "--all-stale"}}) {
+    std::vector<std::string> all{"--ledger", ledger.string()};
+    all.insert(all.end(), args.begin(), args.end());
+    const CommandResult r = run_alphatrail(all);
+    EXPECT_EQ(r.exit_code, 4) << args.front() << ": " << r.err;
+    EXPECT_TRUE(contains(r.err, "is an empty SQLite database, not an alphatrail ledger")) << r.err;
+    EXPECT_EQ(read_file(ledger), before) << args.front() << " wrote to the file";
+    EXPECT_EQ(schema_objects(ledger), 0);
+  }
+}
+
 TEST(LedgerFile, ReadingCommandsRefuseAnotherApplicationsDatabase) {
   ScratchDir dir;
   const fs::path ledger = dir / "app.db";
