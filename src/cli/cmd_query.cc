@@ -284,7 +284,8 @@ class JsonRows : public RowPrinter {
     }
     // Indented one level deeper, as inside the array (JSON text holds no raw line breaks).
     std::string text = rows_ == 0 ? "\n  " : ",\n  ";
-    for (const char c : object.dump(2)) {
+    // Text that is not UTF-8 (a blob cast to text) prints as U+FFFD rather than failing.
+    for (const char c : object.dump(2, ' ', false, nlohmann::json::error_handler_t::replace)) {
       text += c;
       if (c == '\n') text += "  ";
     }

@@ -127,7 +127,9 @@ void print_csv(std::ostream& out, const Table& table) {
 }
 
 void print_json(std::ostream& out, const nlohmann::ordered_json& value) {
-  out << value.dump(2) << '\n';
+  // Stored text is UTF-8 by the ingest rules; anything else (a ledger edited outside
+  // alphatrail) prints as U+FFFD instead of failing the whole listing.
+  out << value.dump(2, ' ', false, nlohmann::json::error_handler_t::replace) << '\n';
 }
 
 nlohmann::ordered_json json_number(double value) {

@@ -133,6 +133,18 @@ TEST_F(QueryTest, SyntaxErrorSaysQueryFailed) {
   EXPECT_EQ(r.out, "");
 }
 
+TEST_F(QueryTest, TextThatIsNotUtf8PrintsInEveryFormat) {
+  // SQL can make bytes that are not UTF-8 (a blob cast to text): JSON shows them as U+FFFD
+  // instead of failing with an internal error; table and CSV pass the bytes through.
+  const std::string sql = "SELECT CAST(x'6361fe' AS TEXT) AS t";
+  const CommandResult json = query({sql, "--format", "json"});
+  EXPECT_EQ(json.exit_code, 0) << json.err;
+  EXPECT_TRUE(contains(json.out, "\"t\": \"ca\xef\xbf\xbd\"")) << json.out;
+  const CommandResult csv = query({sql, "--format", "csv"});
+  EXPECT_EQ(csv.exit_code, 0) << csv.err;
+  EXPECT_EQ(csv.out, "t\nca\xfe\n");
+}
+
 // --- reads only ------------------------------------------------------------------------------
 
 TEST_F(QueryTest, PragmasThatReportRun) {
