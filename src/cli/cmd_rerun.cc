@@ -87,7 +87,9 @@ void print_reruns(std::ostream& out, const std::vector<RerunOutcome>& outcomes, 
   for (const auto& [before, after, level] : outcomes) {
     const std::string conclusion =
         verdict(before.alpha_p, after.alpha_p, before.alpha, after.alpha, level);
-    const auto pair = [](const std::string& a, const std::string& b) { return a + " -> " + b; };
+    const auto pair = [](const std::string& a, const std::string& b) {
+      return fmt::format("{} -> {}", a, b);
+    };
     table.rows.push_back({std::to_string(before.run_id), std::to_string(after.run_id),
                           after.strategy,
                           pair(fmt::format("{:+.2f}%", 100 * before.alpha_annualized),

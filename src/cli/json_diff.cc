@@ -12,15 +12,17 @@ std::vector<JsonDifference> json_differences(const nlohmann::ordered_json& a,
     out.insert(out.end(), more.begin(), more.end());
   };
   if (a.is_object() && b.is_object()) {
+    const auto child = [&](const std::string& key) {
+      return path.empty() ? key : fmt::format("{}.{}", path, key);
+    };
     for (const auto& [key, value] : a.items()) {
-      const std::string child = path.empty() ? key : path + "." + key;
       if (b.contains(key))
-        add(json_differences(value, b.at(key), child));
+        add(json_differences(value, b.at(key), child(key)));
       else
-        out.push_back({child, value, nullptr});
+        out.push_back({child(key), value, nullptr});
     }
     for (const auto& [key, value] : b.items())
-      if (!a.contains(key)) out.push_back({path.empty() ? key : path + "." + key, nullptr, value});
+      if (!a.contains(key)) out.push_back({child(key), nullptr, value});
     return out;
   }
   if (a.is_array() && b.is_array() && a.size() == b.size()) {

@@ -337,6 +337,7 @@ std::string band_chart(const BandInput& in, const Frame& f) {
   std::string band;  // each run: along the upper bound, then back along the lower one
   for (const auto& run : band_runs) {
     std::vector<Point> outline;
+    outline.reserve(2 * run.size());
     for (std::size_t i : run) outline.push_back(at(in.upper, i));
     for (auto it = run.rbegin(); it != run.rend(); ++it) outline.push_back(at(in.lower, *it));
     band += path_data(outline, true);
