@@ -1,4 +1,3 @@
-#include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 #include <unistd.h>
 
@@ -22,25 +21,10 @@ struct RerunOptions {
   Format format = Format::table;
 };
 
-// Stale runs that no later run revises yet.
-std::vector<std::int64_t> unrevised_stale_runs(ledger::Ledger& ledger) {
-  std::vector<std::int64_t> ids;
-  SQLite::Statement q(ledger.db(),
-                      "SELECT run_id FROM run_summary s WHERE stale AND NOT EXISTS (SELECT 1 "
-                      "FROM runs r WHERE r.revises_run_id = s.run_id) ORDER BY run_id");
-  while (q.executeStep()) ids.push_back(q.getColumn(0).getInt64());
-  return ids;
-}
-
 std::string revisions_of(ledger::Ledger& ledger, std::int64_t run_id) {
   std::vector<std::string> parts;
-  SQLite::Statement q(ledger.db(),
-                      "SELECT series, version, latest_version FROM run_input_versions WHERE "
-                      "run_id = ? AND latest_version > version");
-  q.bind(1, run_id);
-  while (q.executeStep())
-    parts.push_back(fmt::format("{} v{} -> v{}", q.getColumn(0).getString(),
-                                q.getColumn(1).getInt(), q.getColumn(2).getInt()));
+  for (const auto& n : ledger::newer_input_versions(ledger, run_id))
+    parts.push_back(fmt::format("{} v{} -> v{}", n.series, n.version, n.latest_version));
   return parts.empty() ? "no newer input versions" : fmt::format("{}", fmt::join(parts, ", "));
 }
 
@@ -132,7 +116,7 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
     throw Error(Failure::invalid_argument, "name the runs to re-run, or pass --all-stale");
   const auto path = ledger::resolve_ledger_path(global.ledger);
   const auto runs_to_redo = [&](ledger::Ledger& ledger) {
-    if (o.all_stale) return unrevised_stale_runs(ledger);
+    if (o.all_stale) return ledger::unrevised_stale_runs(ledger);
     for (auto id : o.runs)
       if (!ledger::read_run_row(ledger, id))
         throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", id));

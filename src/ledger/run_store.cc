@@ -698,14 +698,12 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
 std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter) {
   SQLite::Statement q(
       ledger.db(),
-      "SELECT r.run_id, r.created_at, r.strategy, r.benchmark, coalesce(r.study, ''), "
-      "r.inputs_hash, r.frequency, r.observations, r.alpha, r.alpha_annualized, r.alpha_t, "
-      "r.alpha_p, r.beta, r.r_squared, r.errors, r.lags, r.revises_run_id, CASE WHEN ?5 THEN "
-      "EXISTS (SELECT 1 FROM run_inputs i JOIN series_versions v ON v.version_id = i.version_id "
-      "WHERE i.run_id = r.run_id AND EXISTS (SELECT 1 FROM series_versions w WHERE w.series_id = "
-      "v.series_id AND w.version > v.version)) ELSE 0 END FROM runs r WHERE (?1 = '' OR r.strategy "
-      "= ?1) AND (?2 = '' OR "
-      "r.study = ?2) AND r.run_id BETWEEN ?3 AND ?4 ORDER BY r.run_id");
+      // run_summary holds the one definition of stale; CASE evaluates it only when asked.
+      "SELECT s.run_id, s.created_at, s.strategy, s.benchmark, coalesce(s.study, ''), "
+      "s.inputs_hash, s.frequency, s.observations, s.alpha, s.alpha_annualized, s.alpha_t, "
+      "s.alpha_p, s.beta, s.r_squared, s.errors, s.lags, s.revises_run_id, CASE WHEN ?5 THEN "
+      "s.stale ELSE 0 END FROM run_summary s WHERE (?1 = '' OR s.strategy = ?1) AND (?2 = '' OR "
+      "s.study = ?2) AND s.run_id BETWEEN ?3 AND ?4 ORDER BY s.run_id");
   q.bind(1, filter.strategy);
   q.bind(2, filter.study);
   // Plain bounds, so that SQLite reads only the rows in range.
@@ -735,6 +733,26 @@ std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter) {
     s.stale = q.getColumn(17).getInt() != 0;
     out.push_back(s);
   }
+  return out;
+}
+
+std::vector<std::int64_t> unrevised_stale_runs(Ledger& ledger) {
+  std::vector<std::int64_t> ids;
+  SQLite::Statement q(ledger.db(),
+                      "SELECT run_id FROM run_summary s WHERE stale AND NOT EXISTS (SELECT 1 "
+                      "FROM runs r WHERE r.revises_run_id = s.run_id) ORDER BY run_id");
+  while (q.executeStep()) ids.push_back(q.getColumn(0).getInt64());
+  return ids;
+}
+
+std::vector<NewerInput> newer_input_versions(Ledger& ledger, std::int64_t run_id) {
+  std::vector<NewerInput> out;
+  SQLite::Statement q(ledger.db(),
+                      "SELECT series, version, latest_version FROM run_input_versions WHERE "
+                      "run_id = ? AND latest_version > version");
+  q.bind(1, run_id);
+  while (q.executeStep())
+    out.push_back({q.getColumn(0).getString(), q.getColumn(1).getInt(), q.getColumn(2).getInt()});
   return out;
 }
 

@@ -110,6 +110,20 @@ struct RunSummary {
 // Returns the runs matching the filter, oldest first.
 std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter);
 
+// Returns the stale runs (an input has a newer version than the run used: the run_summary
+// view's definition) that no later run revises yet, oldest first.
+std::vector<std::int64_t> unrevised_stale_runs(Ledger& ledger);
+
+// An input of a run with a newer version than the one the run used.
+struct NewerInput {
+  std::string series;
+  int version = 0;         // the version the run used
+  int latest_version = 0;  // the newest version there is
+};
+
+// Returns the inputs of a run that have newer versions, in the run's input order.
+std::vector<NewerInput> newer_input_versions(Ledger& ledger, std::int64_t run_id);
+
 // A run as stored: every field its record hash covers.
 struct RunRow {
   std::int64_t run_id = 0;
