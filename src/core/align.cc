@@ -285,13 +285,7 @@ std::vector<std::int64_t> period_keys_between(Frequency f, Day from, Day to) {
 }
 
 std::string count_label(Frequency f, std::int64_t n) {
-  const char* unit = "period";
-  switch (f) {
-    case Frequency::daily: unit = "business day"; break;
-    case Frequency::weekly: unit = "week"; break;
-    case Frequency::monthly: unit = "month"; break;
-    case Frequency::quarterly: unit = "quarter"; break;
-  }
+  const std::string unit = f == Frequency::daily ? "business day" : period_noun(f);
   return fmt::format("{} {}{}", n, unit, n == 1 ? "" : "s");
 }
 

@@ -94,6 +94,16 @@ const char* frequency_name(Frequency f) {
   return "unknown";
 }
 
+const char* period_noun(Frequency f) {
+  switch (f) {
+    case Frequency::daily: return "day";
+    case Frequency::weekly: return "week";
+    case Frequency::monthly: return "month";
+    case Frequency::quarterly: return "quarter";
+  }
+  return "period";
+}
+
 std::optional<Frequency> parse_frequency(std::string_view name) {
   if (name == "daily") return Frequency::daily;
   if (name == "weekly") return Frequency::weekly;

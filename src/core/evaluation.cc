@@ -25,16 +25,6 @@ int coarseness(Frequency f) {
   return 2;
 }
 
-const char* period_noun(Frequency f) {
-  switch (f) {
-    case Frequency::daily: return "day";
-    case Frequency::weekly: return "week";
-    case Frequency::monthly: return "month";
-    case Frequency::quarterly: return "quarter";
-  }
-  return "period";
-}
-
 Frequency source_frequency(const ReturnInput& input) {
   if (input.frequency) return *input.frequency;
   if (auto f = detect_frequency(input.data.dates)) return *f;

@@ -41,11 +41,8 @@ std::string p_text(double p) {
 
 // "month" for a monthly run; the unit of "% per month".
 std::string period_noun(const ordered_json& run) {
-  const std::string f = run["sample"]["frequency"];
-  if (f == "daily") return "day";
-  if (f == "weekly") return "week";
-  if (f == "quarterly") return "quarter";
-  return "month";
+  const auto f = core::parse_frequency(run["sample"]["frequency"].get<std::string>());
+  return f ? core::period_noun(*f) : "period";
 }
 
 int periods_per_year(const ordered_json& run) {
