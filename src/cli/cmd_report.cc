@@ -56,12 +56,15 @@ void check_output(const std::filesystem::path& output, const PageTarget& target)
                               output.string(), ledger_file.string()));
   }
   std::error_code ec;
-  if (!std::filesystem::exists(output, ec) || target.force) return;
+  if (!std::filesystem::exists(output, ec)) return;
+  // A device, a folder or a pipe is never replaced, --force or not (as root, renaming over
+  // /dev/null would replace the device itself).
   if (!std::filesystem::is_regular_file(output, ec))
     throw Error(Failure::invalid_argument,
                 fmt::format("{} exists and is not a regular file: refusing to write the page "
-                            "there; name another file with -o",
+                            "there (--force does not apply); name another file with -o",
                             output.string()));
+  if (target.force) return;
   std::ifstream in(output, std::ios::binary);
   const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
   if (!report::is_our_page(text))

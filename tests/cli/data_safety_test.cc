@@ -134,12 +134,20 @@ TEST_F(ReportOutputTest, ReplacesAPageItWroteAndWritesNewFiles) {
   const CommandResult over_old =
       at(ledger_path(), {"report", "2", "-o", (scratch_ / "old.html").string()});
   EXPECT_EQ(over_old.exit_code, 0) << over_old.err;
-  // A folder is never replaced.
+  // A folder or a device is never replaced, not even with --force.
   fs::create_directory(scratch_ / "folder.html");
-  const CommandResult folder =
-      at(ledger_path(), {"report", "1", "-o", (scratch_ / "folder.html").string()});
-  EXPECT_EQ(folder.exit_code, 2) << folder.out;
+  for (const bool force : {false, true}) {
+    for (const std::string target :
+         {(scratch_ / "folder.html").string(), std::string("/dev/null")}) {
+      std::vector<std::string> args{"report", "1", "-o", target};
+      if (force) args.push_back("--force");
+      const CommandResult r = at(ledger_path(), args);
+      EXPECT_EQ(r.exit_code, 2) << target << (force ? " --force: " : ": ") << r.out;
+      EXPECT_TRUE(contains(r.err, "is not a regular file")) << r.err;
+    }
+  }
   EXPECT_TRUE(fs::is_directory(scratch_ / "folder.html"));
+  EXPECT_TRUE(fs::is_character_file("/dev/null"));
 }
 
 // ---------------------------------------------------------------------------------------
