@@ -94,6 +94,20 @@ const char* frequency_name(Frequency f) {
   return "unknown";
 }
 
+bool is_finer(Frequency a, Frequency b) {
+  // The one order of the frequencies, finest first.
+  const auto fineness = [](Frequency f) {
+    switch (f) {
+      case Frequency::daily: return 0;
+      case Frequency::weekly: return 1;
+      case Frequency::monthly: return 2;
+      case Frequency::quarterly: return 3;
+    }
+    return 0;
+  };
+  return fineness(a) < fineness(b);
+}
+
 const char* period_noun(Frequency f) {
   switch (f) {
     case Frequency::daily: return "day";

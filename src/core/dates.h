@@ -48,6 +48,9 @@ std::string format_date(Day day);
 const char* frequency_name(Frequency f);
 // Parses a frequency name; nullopt when unknown.
 std::optional<Frequency> parse_frequency(std::string_view name);
+// Returns true when frequency a is finer than b (daily < weekly < monthly < quarterly).
+// Example: is_finer(Frequency::daily, Frequency::monthly) == true.
+bool is_finer(Frequency a, Frequency b);
 // Returns the noun of one period: "day", "week", "month", "quarter" (as in "% per month").
 const char* period_noun(Frequency f);
 // Returns the conventional number of periods per year: 252, 52, 12, 4 (common practice).

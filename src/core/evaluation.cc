@@ -14,17 +14,6 @@ namespace alphatrail::core {
 
 namespace {
 
-// Orders frequencies from the highest (daily) to the lowest (quarterly).
-int coarseness(Frequency f) {
-  switch (f) {
-    case Frequency::daily: return 0;
-    case Frequency::weekly: return 1;
-    case Frequency::monthly: return 2;
-    case Frequency::quarterly: return 3;
-  }
-  return 2;
-}
-
 Frequency source_frequency(const ReturnInput& input) {
   if (input.frequency) return *input.frequency;
   if (auto f = detect_frequency(input.data.dates)) return *f;
@@ -171,7 +160,7 @@ std::string describe_rate(const RateInput& rate, const EvaluationSettings& s, Fr
 Frequency lowest_frequency(const std::vector<Frequency>& frequencies) {
   Frequency lowest = Frequency::daily;
   for (Frequency f : frequencies)
-    if (coarseness(f) > coarseness(lowest)) lowest = f;
+    if (is_finer(lowest, f)) lowest = f;
   return lowest;
 }
 

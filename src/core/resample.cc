@@ -11,16 +11,6 @@ namespace alphatrail::core {
 
 namespace {
 
-int fineness(Frequency f) {
-  switch (f) {
-    case Frequency::daily: return 0;
-    case Frequency::weekly: return 1;
-    case Frequency::monthly: return 2;
-    case Frequency::quarterly: return 3;
-  }
-  return 0;
-}
-
 [[noreturn]] void bad_input(const std::string& message) {
   throw Error(Failure::bad_input, message);
 }
@@ -84,10 +74,6 @@ bool hole_between(Frequency source, Day prev, Day cur) {
 }
 
 }  // namespace
-
-bool is_finer(Frequency a, Frequency b) {
-  return fineness(a) < fineness(b);
-}
 
 int weekdays_between(Day first, Day last) {
   if (last < first) return 0;

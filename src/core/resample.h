@@ -82,10 +82,6 @@ Resampled compound_returns(const DatedSeries& returns, Frequency target, Frequen
 // Example: "2021-03: partial first period (series starts 2021-03-15), dropped".
 std::vector<std::string> describe(const ResampleReport& report, Frequency target);
 
-// Returns true when frequency a is finer than b (daily < weekly < monthly < quarterly).
-// Example: is_finer(Frequency::daily, Frequency::monthly) == true.
-bool is_finer(Frequency a, Frequency b);
-
 // Returns the number of weekdays (Monday to Friday) in the closed range [first, last].
 // Example: weekdays_between(<Mon 2021-03-01>, <Sun 2021-03-07>) == 5; 0 when last < first.
 int weekdays_between(Day first, Day last);

@@ -137,7 +137,7 @@ TEST_F(ReportOutputTest, ReplacesAPageItWroteAndWritesNewFiles) {
   // A folder or a device is never replaced, not even with --force.
   fs::create_directory(scratch_ / "folder.html");
   for (const bool force : {false, true}) {
-    for (const std::string target :
+    for (const std::string& target :
          {(scratch_ / "folder.html").string(), std::string("/dev/null")}) {
       std::vector<std::string> args{"report", "1", "-o", target};
       if (force) args.push_back("--force");
