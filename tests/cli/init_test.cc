@@ -124,6 +124,13 @@ void expect_every_command_refuses(const ScratchDir& dir, const fs::path& ledger,
   }
 }
 
+// Makes an SQLite file whose schema holds nothing (a table created and dropped again).
+void make_blank_sqlite(const fs::path& path) {
+  SQLite::Database db(path.string(), SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
+  db.exec("CREATE TABLE scratch (x)");
+  db.exec("DROP TABLE scratch");
+}
+
 TEST(InitCommand, CreatesALedgerWithItsMarks) {
   ScratchDir dir;
   const fs::path ledger = dir / "new.db";
@@ -199,14 +206,9 @@ TEST(LedgerFile, ReadingCommandsRefuseAnEmptyFile) {
 }
 
 TEST(LedgerFile, ReadingCommandsRefuseAnEmptySqliteDatabase) {
-  // An SQLite file whose schema holds nothing: a table created and dropped again.
   ScratchDir dir;
   const fs::path ledger = dir / "blank.db";
-  {
-    SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
-    db.exec("CREATE TABLE scratch (x)");
-    db.exec("DROP TABLE scratch");
-  }
+  make_blank_sqlite(ledger);
   ASSERT_GT(fs::file_size(ledger), 0u);
   ASSERT_EQ(schema_objects(ledger), 0);
   expect_reading_commands_refuse(
@@ -223,11 +225,7 @@ TEST(LedgerFile, EvaluateAndRerunRefuseAnEmptySqliteDatabase) {
   // write the whole schema into it and then fail for want of series.
   ScratchDir dir;
   const fs::path ledger = dir / "blank.db";
-  {
-    SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE | SQLite::OPEN_CREATE);
-    db.exec("CREATE TABLE scratch (x)");
-    db.exec("DROP TABLE scratch");
-  }
+  make_blank_sqlite(ledger);
   ASSERT_GT(fs::file_size(ledger), 0u);
   ASSERT_EQ(schema_objects(ledger), 0);
   const std::string before = read_file(ledger);
