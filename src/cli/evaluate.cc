@@ -18,6 +18,8 @@
 #include "core/timings.h"
 #include "ledger/run_store.h"
 #include "ledger/series_store.h"
+#include "record/run_parameters.h"
+#include "record/stored_result.h"
 #include "report/reports.h"
 
 namespace alphatrail::cli {
@@ -277,34 +279,25 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
         throw usage(fmt::format("--rolling {}: {} ({} data)", rq.rolling, problem,
                                 core::frequency_name(f)));
     }
-    nlohmann::json factor_params = nlohmann::json::array();
-    for (const auto& fc : factors)
-      factor_params.push_back({{"set", fc.version.info.name}, {"columns", fc.columns}});
-    const nlohmann::json parameters = {
-        {"model", factors.empty() ? "single-index" : "multi-factor"},
-        {"frequency", core::frequency_name(f)},
-        {"frequency_rule", rq.frequency.empty() ? "lowest among the inputs" : "given"},
-        {"from",
-         settings.from ? nlohmann::json(core::format_date(*settings.from)) : nlohmann::json()},
-        {"to", settings.to ? nlohmann::json(core::format_date(*settings.to)) : nlohmann::json()},
-        {"errors", core::error_kind_name(settings.covariance.kind)},
-        {"lags",
-         rq.lags == "auto" ? nlohmann::json("auto") : nlohmann::json(settings.covariance.lags)},
-        {"lag_rule", "floor(4 (T/100)^(2/9))"},
-        {"small_sample", settings.covariance.small_sample},
-        {"confidence", settings.confidence},
-        {"rate_basis", core::rate_basis_name(settings.rate_basis)},
-        {"rate_timing", core::rate_timing_name(settings.rate_timing)},
-        {"rate_tenor", plan.tenor},
-        {"tenor_rule", plan.tenor_given ? "given" : "closest to the period length"},
-        {"annualize", core::annualize_name(settings.annualize)},
-        {"factors", factor_params},
-        {"alignment", "complete cases by calendar period (exact dates for daily)"},
-        {"partial_periods", "dropped"},
-        {"returns", "simple returns, compounded within a period"},
-        {"rolling_window",
-         plan.rolling_window > 0 ? nlohmann::json(plan.rolling_window) : nlohmann::json()}};
-    plan.parameters_json = parameters.dump();
+    record::RunParameters parameters;
+    parameters.frequency = f;
+    parameters.frequency_rule = rq.frequency.empty() ? record::FrequencyRule::lowest_among_inputs
+                                                     : record::FrequencyRule::given;
+    parameters.from = settings.from;
+    parameters.to = settings.to;
+    parameters.errors = settings.covariance.kind;
+    if (rq.lags != "auto") parameters.lags = settings.covariance.lags;
+    parameters.small_sample = settings.covariance.small_sample;
+    parameters.confidence = settings.confidence;
+    parameters.rate_basis = settings.rate_basis;
+    parameters.rate_timing = settings.rate_timing;
+    parameters.rate_tenor = plan.tenor;
+    parameters.tenor_rule =
+        plan.tenor_given ? record::TenorRule::given : record::TenorRule::closest_to_period_length;
+    parameters.annualize = settings.annualize;
+    for (const auto& fc : factors) parameters.factors.push_back({fc.version.info.name, fc.columns});
+    if (plan.rolling_window > 0) parameters.rolling_window = plan.rolling_window;
+    plan.parameters_json = record::parameters_text(parameters);
   }
 
   std::string factor_label;
@@ -729,30 +722,29 @@ EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bo
   const auto row = ledger::read_run_row(ledger, run_id);
   if (!row)
     throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", run_id));
-  const auto p = nlohmann::json::parse(row->parameters_json);
+  // The one reader of stored parameters: a field it cannot read stops here (exit 8) rather
+  // than deep in the evaluation. Re-runs and reproductions read the stored result too.
+  const auto p = record::read_parameters(run_id, row->engine_version, row->parameters_json);
+  record::read_result(run_id, row->result_json);
   EvaluateRequest rq;
   rq.strategies = {row->strategy};
   rq.benchmark = row->benchmark;
-  const std::string tenor = p.at("rate_tenor");
   const std::string curve = row->rate.substr(0, row->rate.rfind(':'));
-  rq.rate = p.at("tenor_rule") == "given" ? curve + ":" + tenor : curve;
-  for (const auto& f : p.at("factors"))
-    rq.factors.push_back(
-        fmt::format("{}:{}", f.at("set").get<std::string>(),
-                    fmt::join(f.at("columns").get<std::vector<std::string>>(), ",")));
-  if (p.at("frequency_rule") == "given") rq.frequency = p.at("frequency");
-  if (p.at("from").is_string()) rq.from = p.at("from");
-  if (p.at("to").is_string()) rq.to = p.at("to");
-  rq.errors = p.at("errors");
-  rq.lags = p.at("lags").is_string() ? "auto" : std::to_string(p.at("lags").get<int>());
-  rq.small_sample = p.at("small_sample").get<bool>() ? "on" : "off";
-  rq.confidence = p.at("confidence");
-  rq.rate_basis = p.at("rate_basis");
-  rq.rate_timing = p.at("rate_timing");
-  rq.annualize = p.at("annualize");
-  // Runs recorded before engine 0.2.0 have no rolling_window: they had no rolling estimates.
-  if (p.contains("rolling_window") && p.at("rolling_window").is_number())
-    rq.rolling = std::to_string(p.at("rolling_window").get<int>());
+  rq.rate = p.tenor_rule == record::TenorRule::given ? curve + ":" + p.rate_tenor : curve;
+  for (const auto& f : p.factors)
+    rq.factors.push_back(fmt::format("{}:{}", f.set, fmt::join(f.columns, ",")));
+  if (p.frequency_rule == record::FrequencyRule::given)
+    rq.frequency = core::frequency_name(p.frequency);
+  if (p.from) rq.from = core::format_date(*p.from);
+  if (p.to) rq.to = core::format_date(*p.to);
+  rq.errors = core::error_kind_name(p.errors);
+  rq.lags = p.lags ? std::to_string(*p.lags) : "auto";
+  rq.small_sample = p.small_sample ? "on" : "off";
+  rq.confidence = p.confidence;
+  rq.rate_basis = core::rate_basis_name(p.rate_basis);
+  rq.rate_timing = core::rate_timing_name(p.rate_timing);
+  rq.annualize = core::annualize_name(p.annualize);
+  if (p.rolling_window) rq.rolling = std::to_string(*p.rolling_window);
   rq.study = row->study.value_or("");
   rq.note = row->note.value_or("");
   if (pin_versions)
