@@ -678,7 +678,8 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
                       {"latest_version", q.getColumn(8).getInt()}});
   // Both stored texts are read checked: a field that is not what the engine writes stops here,
   // naming the run and the field, so that every reader of the run object may read it by key.
-  record::read_parameters(run_id, row->engine_version, row->parameters_json);
+  ordered_json parameters;
+  record::read_parameters(run_id, row->engine_version, row->parameters_json, &parameters);
   const auto result = record::read_result(run_id, row->result_json);
   ordered_json run = {
       {"run_id", row->run_id},
@@ -692,7 +693,7 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
       {"study", row->study ? ordered_json(*row->study) : ordered_json()},
       {"note", row->note ? ordered_json(*row->note) : ordered_json()},
       {"revises_run_id", row->revises_run_id ? ordered_json(*row->revises_run_id) : ordered_json()},
-      {"parameters", ordered_json::parse(row->parameters_json)},
+      {"parameters", std::move(parameters)},
       {"inputs", inputs}};
   for (const auto& [key, value] : result.items()) run[key] = value;
   if (!run.contains("rolling")) run["rolling"] = nullptr;  // runs recorded before engine 0.2.0

@@ -113,8 +113,8 @@ std::string parameters_text(const RunParameters& p) {
 }
 
 RunParameters read_parameters(std::int64_t run_id, std::string_view engine_version,
-                              std::string_view text) {
-  const StoredJson s(run_id, "parameters", text);
+                              std::string_view text, nlohmann::ordered_json* document) {
+  StoredJson s(run_id, "parameters", text);
   const auto& root = s.root();
   constexpr auto kIntMax = std::numeric_limits<int>::max();
   RunParameters p;
@@ -189,6 +189,7 @@ RunParameters read_parameters(std::int64_t run_id, std::string_view engine_versi
   } else {
     s.member(root, "", "rolling_window");  // throws: missing
   }
+  if (document) *document = s.take();
   return p;
 }
 

@@ -10,6 +10,7 @@
 #pragma once
 
 #include <cstdint>
+#include <nlohmann/json.hpp>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -60,11 +61,12 @@ struct RunParameters {
 // Example: parameters_text(p) starts {"alignment":"complete cases by calendar period ...
 std::string parameters_text(const RunParameters& p);
 
-// Reads the stored parameters text of run `run_id`, recorded by engine `engine_version`.
+// Reads the stored parameters text of run `run_id`, recorded by engine `engine_version`, and
+// with `document` also hands back the text as read (its keys in stored order, for showing).
 // Throws StoredTextError naming the run and the field when the text is not what the writer
 // writes.
 RunParameters read_parameters(std::int64_t run_id, std::string_view engine_version,
-                              std::string_view text);
+                              std::string_view text, nlohmann::ordered_json* document = nullptr);
 
 // The wire names, as the command line and the stored text spell them.
 const char* frequency_rule_name(FrequencyRule r);
