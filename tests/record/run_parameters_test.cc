@@ -5,6 +5,7 @@
 
 #include <gtest/gtest.h>
 
+#include <functional>
 #include <nlohmann/json.hpp>
 #include <string>
 
@@ -201,6 +202,60 @@ TEST(StoredResult, NamesTheRunAndTheFieldItCannotRead) {
   EXPECT_EQ(problem("{}"), "stored result: field 'sample' is missing");
   EXPECT_EQ(problem(R"({"sample":{"first":3}})"),
             "stored result: field 'sample.first' holds 3 (a whole number), not text");
+}
+
+// A result as result_json_text writes it, with one window of rolling estimates.
+const std::string kResult =
+    R"j({"sample":{"first":"2000-01","last":"2000-03","observations":3,"frequency":"monthly",)j"
+    R"j("periods_per_year":12,"dropped":1,"dropped_by_reason":{"missing":1},)j"
+    R"j("dropped_periods":[{"period":"2000-04","reason":"missing"}],"gaps":[]},)j"
+    R"j("coefficients":[{"term":"alpha","estimate":0.1,"std_error":null,"t_stat":null,)j"
+    R"j("p_value":null,"ci_low":null,"ci_high":null},{"term":"beta","estimate":1,)j"
+    R"j("std_error":0.1,"t_stat":10,"p_value":0.01,"ci_low":0.8,"ci_high":1.2}],)j"
+    R"j("statistics":{"r_squared":0.5,"adj_r_squared":0.4,"residual_std":0.01,"f_stat":null,)j"
+    R"j("f_p_value":null,"observations":3,"coefficients":2,"degrees_of_freedom":1,)j"
+    R"j("errors":"hc3","lags":0,"small_sample_factor":false,"confidence":0.95,)j"
+    R"j("condition_number":1.5,"alpha_annualized":0.2,"appraisal_ratio":null,)j"
+    R"j("sharpe_strategy":0.5,"sharpe_benchmark":0.4,"treynor_ratio":null,)j"
+    R"j("tracking_error":0.1,"information_ratio":0.2,"correlation":0.7,)j"
+    R"j("mean_excess_strategy":0.01,"mean_excess_benchmark":0.01,"up_market_beta":null,)j"
+    R"j("down_market_beta":null,"up_periods":2,"down_periods":1},"reading":["a"],)j"
+    R"j("preparation":["b"],"warnings":[],"rolling":{"window":2,"errors":"hc3",)j"
+    R"j("lag_rule":"fixed","confidence":0.95,"annualize":"compound","windows":[{"end":"2000-02",)j"
+    R"j("first":"2000-01","observations":2,"lags":0,"alpha":null,"alpha_std_error":null,)j"
+    R"j("alpha_ci_low":null,"alpha_ci_high":null,"alpha_annualized":null,)j"
+    R"j("alpha_annualized_ci_low":null,"alpha_annualized_ci_high":null,"beta":1,)j"
+    R"j("beta_std_error":null,"beta_ci_low":null,"beta_ci_high":null}]}})j";
+
+TEST(StoredResult, ReadsWhatTheEngineWritesWithOrWithoutRollingEstimates) {
+  EXPECT_EQ(read_result(4, kResult).dump(), kResult);
+  auto j = nlohmann::ordered_json::parse(kResult);
+  j["rolling"] = nullptr;
+  EXPECT_EQ(read_result(4, j.dump()).dump(), j.dump());
+  j.erase("rolling");  // recorded before engine 0.2.0
+  EXPECT_EQ(read_result(4, j.dump()).dump(), j.dump());
+}
+
+TEST(StoredResult, RefusesANegativeCountAndAnUnknownName) {
+  const auto problem = [](const std::function<void(nlohmann::ordered_json&)>& edit) {
+    auto j = nlohmann::ordered_json::parse(kResult);
+    edit(j);
+    try {
+      read_result(4, j.dump());
+    } catch (const StoredTextError& e) {
+      return e.problem();
+    }
+    return std::string();
+  };
+  EXPECT_EQ(problem([](auto& j) { j["sample"]["dropped_by_reason"]["missing"] = -1; }),
+            "stored result: field 'sample.dropped_by_reason.missing' holds -1, out of range (0 or "
+            "more)");
+  EXPECT_EQ(problem([](auto& j) { j["rolling"]["lag_rule"] = "sometimes"; }),
+            "stored result: field 'rolling.lag_rule' holds \"sometimes\", not one of auto, fixed");
+  EXPECT_EQ(problem([](auto& j) { j["rolling"]["windows"][0].erase("beta"); }),
+            "stored result: field 'rolling.windows[0].beta' is missing");
+  EXPECT_EQ(problem([](auto& j) { j["coefficients"].erase(1); }),
+            "stored result: field 'coefficients' holds fewer than alpha and beta");
 }
 
 }  // namespace
