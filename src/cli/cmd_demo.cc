@@ -126,11 +126,12 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
     EvaluateRequest request;
     request.benchmark = kDemoBenchmark;
     request.rate = kDemoRate;
-    request.factors = {kDemoFactors};
+    request.factors = {{kDemoFactors, {}}};  // every column of the set
     request.strategies = {"trend-*"};
     request.study = kDemoStudy;
     request.note = "demo: trend look-back variants";
-    request.rolling = "auto";  // three-year rolling alpha and beta, kept for the later commands
+    // Three-year rolling alpha and beta, kept for the later commands.
+    request.rolling = {RollingChoice::Mode::automatic, 0};
     std::cout << fmt::format(
         "\n$ alphatrail evaluate 'trend-*' --benchmark {} --rate {} --factor {} "
         "--study {} --rolling auto\n",

@@ -145,7 +145,7 @@ void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
   in.rolling_from_run = in.rolling.is_object();
   if (!in.rolling_from_run) {
     // Recorded without --rolling: compute the default window for the page (and say so).
-    request.rolling = "auto";
+    request.rolling = {RollingChoice::Mode::automatic, 0};
     try {
       in.rolling =
           ledger::result_json(evaluate_request(ledger, request).front().result, {})["rolling"];

@@ -7,6 +7,7 @@
 #include "cli/evaluate.h"
 #include "cli/json_diff.h"
 #include "core/error.h"
+#include "record/stored_result.h"
 #include "version.h"
 
 namespace alphatrail::cli {
@@ -25,7 +26,7 @@ void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
       ledger::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
 
   // The reading counts runs in the ledger, so compare the figures, not the words.
-  auto stored = nlohmann::ordered_json::parse(row->result_json);
+  auto stored = record::read_result(run_id, row->result_json);
   auto fresh = ledger::result_json(p.result, {});
   for (auto* j : {&stored, &fresh}) j->erase("reading");
   const auto differences = json_differences(stored, fresh);

@@ -18,6 +18,8 @@
 #include "core/timings.h"
 #include "ledger/run_store.h"
 #include "ledger/series_store.h"
+#include "record/run_parameters.h"
+#include "record/stored_result.h"
 #include "report/reports.h"
 
 namespace alphatrail::cli {
@@ -90,26 +92,6 @@ core::ReturnInput to_return_input(std::string name, ledger::ColumnData&& column,
   return in;
 }
 
-std::pair<std::string, std::string> split_colon(const std::string& s) {
-  const auto colon = s.find(':');
-  if (colon == std::string::npos) return {s, ""};
-  return {s.substr(0, colon), s.substr(colon + 1)};
-}
-
-std::vector<std::string> split_commas(const std::string& s) {
-  std::vector<std::string> out;
-  std::size_t start = 0;
-  while (start <= s.size()) {
-    const auto comma = s.find(',', start);
-    std::string part =
-        s.substr(start, comma == std::string::npos ? std::string::npos : comma - start);
-    if (!part.empty()) out.push_back(part);
-    if (comma == std::string::npos) break;
-    start = comma + 1;
-  }
-  return out;
-}
-
 std::optional<core::Day> parse_bound(const std::string& text, const char* option, bool is_start) {
   if (text.empty()) return std::nullopt;
   const auto d = core::parse_date(text);
@@ -120,23 +102,6 @@ std::optional<core::Day> parse_bound(const std::string& text, const char* option
     return core::to_day({c.year, c.month, 1});
   }
   return d.day;
-}
-
-// Parses --rolling: 0 for off, -1 for auto (three years at the evaluation frequency), else
-// the window in periods (checked against the model once the frequency is known).
-int parse_rolling(const std::string& text) {
-  if (text == "off") return 0;
-  if (text == "auto") return -1;
-  try {
-    std::size_t used = 0;
-    const int n = std::stoi(text, &used);
-    if (used == text.size() && n > 0) return n;
-  } catch (const std::exception&) {
-  }
-  throw usage(
-      fmt::format("--rolling {}: write a whole number of periods per window, auto (three years of "
-                  "periods) or off",
-                  text));
 }
 
 struct FactorChoice {
@@ -177,37 +142,38 @@ using RunSink = std::function<void(std::vector<PendingRun>& chunk, std::size_t t
 void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, const RunSink& sink) {
   core::mark_phase("evaluate: start");
   core::EvaluationSettings settings;
-  settings.covariance.kind = *core::parse_error_kind(rq.errors);
-  if (rq.lags != "auto") {
-    try {
-      std::size_t used = 0;
-      settings.covariance.lags = std::stoi(rq.lags, &used);
-      if (used != rq.lags.size() || settings.covariance.lags < 0) throw std::invalid_argument("");
-    } catch (const std::exception&) {
+  settings.covariance.kind = rq.errors;
+  if (rq.lags) {
+    if (*rq.lags < 0)
       throw usage(
-          fmt::format("--lags {}: write a whole number of lags (0 or more) or auto", rq.lags));
-    }
+          fmt::format("--lags {}: write a whole number of lags (0 or more) or auto", *rq.lags));
+    settings.covariance.lags = *rq.lags;
     if (settings.covariance.kind != core::ErrorKind::newey_west)
       throw usage("--lags applies to --errors newey-west only");
   }
-  settings.covariance.small_sample = rq.small_sample == "on";
+  settings.covariance.small_sample = rq.small_sample;
   if (settings.covariance.small_sample && settings.covariance.kind != core::ErrorKind::newey_west)
     throw usage(
         "--small-sample applies to Newey-West errors (HC1 is HC0 with the factor; "
         "classic, HC0 and HC3 never take it)");
   settings.confidence = rq.confidence;
-  settings.rate_basis = *core::parse_rate_basis(rq.rate_basis);
-  settings.rate_timing = *core::parse_rate_timing(rq.rate_timing);
-  settings.annualize = *core::parse_annualize(rq.annualize);
+  settings.rate_basis = rq.rate_basis;
+  settings.rate_timing = rq.rate_timing;
+  settings.annualize = rq.annualize;
   settings.from = parse_bound(rq.from, "--from", true);
   settings.to = parse_bound(rq.to, "--to", false);
   if (settings.from && settings.to && *settings.to < *settings.from)
     throw usage("--to comes before --from; swap them");
-  const int rolling = parse_rolling(rq.rolling);
+  if (rq.rolling.mode == RollingChoice::Mode::periods && rq.rolling.periods <= 0)
+    throw usage(
+        fmt::format("--rolling {}: write a whole number of periods per window, auto "
+                    "(three years of periods) or off",
+                    rq.rolling.periods));
 
   const auto strategy_names = resolve_strategies(ledger, rq.strategies);
   auto benchmark = load_kind(ledger, rq, rq.benchmark, {"benchmark", "strategy"}, "benchmark");
-  const auto [rate_name, rate_tenor] = split_colon(rq.rate);
+  const std::string& rate_name = rq.rate;
+  const std::string& rate_tenor = rq.rate_tenor;
   auto rate = load_kind(ledger, rq, rate_name, {"rate"}, "rate");
   if (!rate_tenor.empty() && std::find(rate.info.columns.begin(), rate.info.columns.end(),
                                        rate_tenor) == rate.info.columns.end())
@@ -217,8 +183,8 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
   std::vector<FactorChoice> factors;
   std::set<std::string> factor_terms;
   for (const auto& spec : rq.factors) {
-    const auto [set_name, cols] = split_colon(spec);
-    FactorChoice choice{load_kind(ledger, rq, set_name, {"factor"}, "factor"), split_commas(cols)};
+    const std::string& set_name = spec.set;
+    FactorChoice choice{load_kind(ledger, rq, set_name, {"factor"}, "factor"), spec.columns};
     if (choice.columns.empty()) choice.columns = choice.version.info.columns;
     for (const auto& c : choice.columns) {
       if (std::find(choice.version.info.columns.begin(), choice.version.info.columns.end(), c) ==
@@ -255,8 +221,8 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
   std::map<core::Frequency, Plan> plans;
   for (std::size_t i = 0; i < strategies.size(); ++i) {
     core::Frequency f;
-    if (!rq.frequency.empty()) {
-      f = *core::parse_frequency(rq.frequency);
+    if (rq.frequency) {
+      f = *rq.frequency;
     } else {
       auto all = shared_frequencies;
       all.push_back(detected(strategies[i], "strategy"));
@@ -269,42 +235,36 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
   for (auto& [f, plan] : plans) {
     plan.tenor_given = !rate_tenor.empty();
     plan.tenor = plan.tenor_given ? rate_tenor : core::choose_tenor(rate.info.columns, f).label;
-    plan.rolling_window = rolling == -1 ? core::default_rolling_window(f) : rolling;
+    plan.rolling_window = rq.rolling.mode == RollingChoice::Mode::automatic
+                              ? core::default_rolling_window(f)
+                          : rq.rolling.mode == RollingChoice::Mode::periods ? rq.rolling.periods
+                                                                            : 0;
     if (plan.rolling_window > 0) {
       const auto problem = core::rolling_window_problem(
           plan.rolling_window, static_cast<int>(2 + factor_terms.size()), settings.covariance);
       if (!problem.empty())
-        throw usage(fmt::format("--rolling {}: {} ({} data)", rq.rolling, problem,
+        throw usage(fmt::format("--rolling {}: {} ({} data)", rq.rolling.text(), problem,
                                 core::frequency_name(f)));
     }
-    nlohmann::json factor_params = nlohmann::json::array();
-    for (const auto& fc : factors)
-      factor_params.push_back({{"set", fc.version.info.name}, {"columns", fc.columns}});
-    const nlohmann::json parameters = {
-        {"model", factors.empty() ? "single-index" : "multi-factor"},
-        {"frequency", core::frequency_name(f)},
-        {"frequency_rule", rq.frequency.empty() ? "lowest among the inputs" : "given"},
-        {"from",
-         settings.from ? nlohmann::json(core::format_date(*settings.from)) : nlohmann::json()},
-        {"to", settings.to ? nlohmann::json(core::format_date(*settings.to)) : nlohmann::json()},
-        {"errors", core::error_kind_name(settings.covariance.kind)},
-        {"lags",
-         rq.lags == "auto" ? nlohmann::json("auto") : nlohmann::json(settings.covariance.lags)},
-        {"lag_rule", "floor(4 (T/100)^(2/9))"},
-        {"small_sample", settings.covariance.small_sample},
-        {"confidence", settings.confidence},
-        {"rate_basis", core::rate_basis_name(settings.rate_basis)},
-        {"rate_timing", core::rate_timing_name(settings.rate_timing)},
-        {"rate_tenor", plan.tenor},
-        {"tenor_rule", plan.tenor_given ? "given" : "closest to the period length"},
-        {"annualize", core::annualize_name(settings.annualize)},
-        {"factors", factor_params},
-        {"alignment", "complete cases by calendar period (exact dates for daily)"},
-        {"partial_periods", "dropped"},
-        {"returns", "simple returns, compounded within a period"},
-        {"rolling_window",
-         plan.rolling_window > 0 ? nlohmann::json(plan.rolling_window) : nlohmann::json()}};
-    plan.parameters_json = parameters.dump();
+    record::RunParameters parameters;
+    parameters.frequency = f;
+    parameters.frequency_rule =
+        rq.frequency ? record::FrequencyRule::given : record::FrequencyRule::lowest_among_inputs;
+    parameters.from = settings.from;
+    parameters.to = settings.to;
+    parameters.errors = settings.covariance.kind;
+    parameters.lags = rq.lags;
+    parameters.small_sample = settings.covariance.small_sample;
+    parameters.confidence = settings.confidence;
+    parameters.rate_basis = settings.rate_basis;
+    parameters.rate_timing = settings.rate_timing;
+    parameters.rate_tenor = plan.tenor;
+    parameters.tenor_rule =
+        plan.tenor_given ? record::TenorRule::given : record::TenorRule::closest_to_period_length;
+    parameters.annualize = settings.annualize;
+    for (const auto& fc : factors) parameters.factors.push_back({fc.version.info.name, fc.columns});
+    if (plan.rolling_window > 0) parameters.rolling_window = plan.rolling_window;
+    plan.parameters_json = record::parameters_text(parameters);
   }
 
   std::string factor_label;
@@ -725,34 +685,40 @@ void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std
 
 namespace alphatrail::cli {
 
+std::string RollingChoice::text() const {
+  switch (mode) {
+    case Mode::off: return "off";
+    case Mode::automatic: return "auto";
+    case Mode::periods: break;
+  }
+  return std::to_string(periods);
+}
+
 EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bool pin_versions) {
   const auto row = ledger::read_run_row(ledger, run_id);
   if (!row)
     throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", run_id));
-  const auto p = nlohmann::json::parse(row->parameters_json);
+  // The one reader of stored parameters: a field it cannot read stops here (exit 8) rather
+  // than deep in the evaluation. Re-runs and reproductions read the stored result too.
+  const auto p = record::read_parameters(run_id, row->engine_version, row->parameters_json);
+  record::read_result(run_id, row->result_json);
   EvaluateRequest rq;
   rq.strategies = {row->strategy};
   rq.benchmark = row->benchmark;
-  const std::string tenor = p.at("rate_tenor");
-  const std::string curve = row->rate.substr(0, row->rate.rfind(':'));
-  rq.rate = p.at("tenor_rule") == "given" ? curve + ":" + tenor : curve;
-  for (const auto& f : p.at("factors"))
-    rq.factors.push_back(
-        fmt::format("{}:{}", f.at("set").get<std::string>(),
-                    fmt::join(f.at("columns").get<std::vector<std::string>>(), ",")));
-  if (p.at("frequency_rule") == "given") rq.frequency = p.at("frequency");
-  if (p.at("from").is_string()) rq.from = p.at("from");
-  if (p.at("to").is_string()) rq.to = p.at("to");
-  rq.errors = p.at("errors");
-  rq.lags = p.at("lags").is_string() ? "auto" : std::to_string(p.at("lags").get<int>());
-  rq.small_sample = p.at("small_sample").get<bool>() ? "on" : "off";
-  rq.confidence = p.at("confidence");
-  rq.rate_basis = p.at("rate_basis");
-  rq.rate_timing = p.at("rate_timing");
-  rq.annualize = p.at("annualize");
-  // Runs recorded before engine 0.2.0 have no rolling_window: they had no rolling estimates.
-  if (p.contains("rolling_window") && p.at("rolling_window").is_number())
-    rq.rolling = std::to_string(p.at("rolling_window").get<int>());
+  rq.rate = row->rate.substr(0, row->rate.rfind(':'));
+  if (p.tenor_rule == record::TenorRule::given) rq.rate_tenor = p.rate_tenor;
+  rq.factors = p.factors;
+  if (p.frequency_rule == record::FrequencyRule::given) rq.frequency = p.frequency;
+  if (p.from) rq.from = core::format_date(*p.from);
+  if (p.to) rq.to = core::format_date(*p.to);
+  rq.errors = p.errors;
+  rq.lags = p.lags;
+  rq.small_sample = p.small_sample;
+  rq.confidence = p.confidence;
+  rq.rate_basis = p.rate_basis;
+  rq.rate_timing = p.rate_timing;
+  rq.annualize = p.annualize;
+  if (p.rolling_window) rq.rolling = {RollingChoice::Mode::periods, *p.rolling_window};
   rq.study = row->study.value_or("");
   rq.note = row->note.value_or("");
   if (pin_versions)

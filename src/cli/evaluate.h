@@ -13,25 +13,38 @@
 #include "core/evaluation.h"
 #include "ledger/ledger.h"
 #include "ledger/run_store.h"
+#include "record/run_parameters.h"
 
 namespace alphatrail::cli {
 
+// The rolling estimates asked for: none, three years of periods, or N periods per window.
+struct RollingChoice {
+  enum class Mode { off, automatic, periods };
+  Mode mode = Mode::off;
+  int periods = 0;  // with Mode::periods: the window, 1 or more
+  // Returns the choice as --rolling spells it: off, auto or N.
+  std::string text() const;
+};
+
+// What to evaluate and how, every setting typed: the command line parses into it
+// (cmd_evaluate.cc) and request_from_run rebuilds it from a run's stored parameters.
 struct EvaluateRequest {
   std::vector<std::string> strategies;  // names or glob patterns
   std::string benchmark;
-  std::string rate;                  // NAME or NAME:TENOR
-  std::vector<std::string> factors;  // SET or SET:col,col
-  std::string frequency;             // empty: lowest among the inputs
-  std::string from;
-  std::string to;
-  std::string errors = "newey-west";
-  std::string lags = "auto";
-  std::string small_sample = "off";
+  std::string rate;                          // the rate curve's name
+  std::string rate_tenor;                    // empty: the tenor closest to the period length
+  std::vector<record::FactorSet> factors;    // columns empty: every column of the set
+  std::optional<core::Frequency> frequency;  // nullopt: lowest among the inputs
+  std::string from;                          // YYYY-MM-DD or YYYY-MM; empty: the inputs' first
+  std::string to;                            // likewise; empty: the inputs' last
+  core::ErrorKind errors = core::ErrorKind::newey_west;
+  std::optional<int> lags;  // Newey-West lags; nullopt: the automatic rule
+  bool small_sample = false;
   double confidence = 0.95;
-  std::string rate_basis = "compound";
-  std::string rate_timing = "start";
-  std::string annualize = "compound";
-  std::string rolling = "off";  // N periods per rolling window, auto (three years) or off
+  core::RateBasis rate_basis = core::RateBasis::compound;
+  core::RateTiming rate_timing = core::RateTiming::start;
+  core::Annualize annualize = core::Annualize::compound;
+  RollingChoice rolling;
   std::string study;
   std::string note;
   // Re-runs and reproductions: versions to use instead of the latest, and the run revised.

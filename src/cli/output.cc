@@ -5,14 +5,16 @@
 #include <cmath>
 #include <map>
 
+#include "cli/choices.h"
+
 namespace alphatrail::cli {
 
 CLI::Option* add_format_option(CLI::App& command, Format& format) {
-  static const std::map<std::string, Format> kNames{
-      {"table", Format::table}, {"json", Format::json}, {"csv", Format::csv}};
-  return command.add_option("--format", format, "Output: table (default), json or csv")
-      ->transform(CLI::CheckedTransformer(kNames, CLI::ignore_case))
-      ->default_str("table");
+  // Only the names: a number such as 1 is refused, not taken as the enum's value.
+  return add_choice_option<Format>(
+      command, "--format", {{"table", Format::table}, {"json", Format::json}, {"csv", Format::csv}},
+      [&format](const Format& f) { format = f; }, "Output: table (default), json or csv", "table",
+      true);
 }
 
 namespace {

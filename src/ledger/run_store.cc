@@ -16,6 +16,8 @@
 #include "core/sha256.h"
 #include "core/timings.h"
 #include "ledger/series_store.h"
+#include "record/run_parameters.h"
+#include "record/stored_result.h"
 #include "version.h"
 
 namespace alphatrail::ledger {
@@ -674,7 +676,11 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
                       {"source_file", q.getColumn(6).getString()},
                       {"note", q.getColumn(7).getString()},
                       {"latest_version", q.getColumn(8).getInt()}});
-  const auto result = ordered_json::parse(row->result_json);
+  // Both stored texts are read checked: a field that is not what the engine writes stops here,
+  // naming the run and the field, so that every reader of the run object may read it by key.
+  ordered_json parameters;
+  record::read_parameters(run_id, row->engine_version, row->parameters_json, &parameters);
+  const auto result = record::read_result(run_id, row->result_json);
   ordered_json run = {
       {"run_id", row->run_id},
       {"created_at", row->created_at},
@@ -687,7 +693,7 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
       {"study", row->study ? ordered_json(*row->study) : ordered_json()},
       {"note", row->note ? ordered_json(*row->note) : ordered_json()},
       {"revises_run_id", row->revises_run_id ? ordered_json(*row->revises_run_id) : ordered_json()},
-      {"parameters", ordered_json::parse(row->parameters_json)},
+      {"parameters", std::move(parameters)},
       {"inputs", inputs}};
   for (const auto& [key, value] : result.items()) run[key] = value;
   if (!run.contains("rolling")) run["rolling"] = nullptr;  // runs recorded before engine 0.2.0

@@ -15,6 +15,9 @@
 #include "core/error.h"
 #include "ledger/content.h"
 #include "ledger/run_store.h"
+#include "record/run_parameters.h"
+#include "record/stored_result.h"
+#include "record/stored_text.h"
 
 namespace alphatrail::ledger {
 
@@ -174,6 +177,13 @@ void verify_runs(Ledger& ledger, VerifyReport& report) {
     if (record != row->record_hash)
       report.problems.push_back(
           {object, "its record does not match its record hash: the run was edited"});
+    // The stored texts must read as what the engine writes, field by field.
+    try {
+      record::read_parameters(id, row->engine_version, row->parameters_json);
+      record::read_result(id, row->result_json);
+    } catch (const record::StoredTextError& e) {
+      report.problems.push_back({object, e.problem()});
+    }
     previous = row->record_hash;
   }
   report.chain_head = previous;
