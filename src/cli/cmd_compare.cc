@@ -117,6 +117,7 @@ void run_compare(const CompareOptions& o, const GlobalOptions& global) {
   const auto freq = core::parse_frequency(b["sample"]["frequency"].get<std::string>());
   const auto labels = [&](const std::vector<std::int64_t>& keys) {
     std::vector<std::string> out;
+    out.reserve(keys.size());
     for (auto k : keys) out.push_back(core::period_label(*freq, k));
     return out;
   };
