@@ -17,38 +17,36 @@ namespace {
 void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
                                      ledger::OpenMode::read_only, std::cerr);
-  const auto row = ledger::read_run_row(ledger, run_id);
-  if (!row)
-    throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", run_id));
+  const ledger::RunRow row = ledger::existing_run_row(ledger, run_id);
   auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
   const auto& p = pending.front();
   const std::string recomputed_hash =
       ledger::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
 
   // The reading counts runs in the ledger, so compare the figures, not the words.
-  auto stored = record::read_result(run_id, row->result_json);
+  auto stored = record::read_result(run_id, row.result_json);
   auto fresh = ledger::result_json(p.result, {});
   for (auto* j : {&stored, &fresh}) j->erase("reading");
   const auto differences = json_differences(stored, fresh);
 
   std::cout << fmt::format("run {} ({}), recorded by engine {}; this is engine {}\n", run_id,
-                           row->strategy, row->engine_version, kEngineVersion);
+                           row.strategy, row.engine_version, kEngineVersion);
   std::cout << fmt::format("inputs hash: stored {}, recomputed {} ({})\n",
-                           row->inputs_hash.substr(0, 12), recomputed_hash.substr(0, 12),
-                           recomputed_hash == row->inputs_hash ? "identical" : "different");
+                           row.inputs_hash.substr(0, 12), recomputed_hash.substr(0, 12),
+                           recomputed_hash == row.inputs_hash ? "identical" : "different");
   for (const auto& d : differences)
     std::cout << fmt::format("  {}: stored {}, recomputed {}\n", d.path, d.before.dump(),
                              d.after.dump());
-  if (differences.empty() && recomputed_hash == row->inputs_hash) {
+  if (differences.empty() && recomputed_hash == row.inputs_hash) {
     std::cout << "reproduced: every coefficient and statistic is identical, bit for bit\n";
     return;
   }
   throw Error(Failure::mismatch,
               fmt::format("run {} does not reproduce: {} value{} differ{}", run_id,
                           differences.size(), differences.size() == 1 ? "" : "s",
-                          row->engine_version != kEngineVersion
+                          row.engine_version != kEngineVersion
                               ? fmt::format(" (the engine changed from {} to {})",
-                                            row->engine_version, kEngineVersion)
+                                            row.engine_version, kEngineVersion)
                               : ""));
 }
 

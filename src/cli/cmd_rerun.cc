@@ -117,9 +117,7 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
   const auto path = ledger::resolve_ledger_path(global.ledger);
   const auto runs_to_redo = [&](ledger::Ledger& ledger) {
     if (o.all_stale) return ledger::unrevised_stale_runs(ledger);
-    for (auto id : o.runs)
-      if (!ledger::read_run_row(ledger, id))
-        throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", id));
+    for (auto id : o.runs) ledger::existing_run_row(ledger, id);  // each must exist
     return o.runs;
   };
   const auto none_stale = [] {

@@ -695,17 +695,15 @@ std::string RollingChoice::text() const {
 }
 
 EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bool pin_versions) {
-  const auto row = ledger::read_run_row(ledger, run_id);
-  if (!row)
-    throw Error(Failure::not_found, fmt::format("no run {}; `alphatrail runs` lists them", run_id));
+  const ledger::RunRow row = ledger::existing_run_row(ledger, run_id);
   // The one reader of stored parameters: a field it cannot read stops here (exit 8) rather
   // than deep in the evaluation. Re-runs and reproductions read the stored result too.
-  const auto p = record::read_parameters(run_id, row->engine_version, row->parameters_json);
-  record::read_result(run_id, row->result_json);
+  const auto p = record::read_parameters(run_id, row.engine_version, row.parameters_json);
+  record::read_result(run_id, row.result_json);
   EvaluateRequest rq;
-  rq.strategies = {row->strategy};
-  rq.benchmark = row->benchmark;
-  rq.rate = row->rate.substr(0, row->rate.rfind(':'));
+  rq.strategies = {row.strategy};
+  rq.benchmark = row.benchmark;
+  rq.rate = row.rate.substr(0, row.rate.rfind(':'));
   if (p.tenor_rule == record::TenorRule::given) rq.rate_tenor = p.rate_tenor;
   rq.factors = p.factors;
   if (p.frequency_rule == record::FrequencyRule::given) rq.frequency = p.frequency;
@@ -719,8 +717,8 @@ EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bo
   rq.rate_timing = p.rate_timing;
   rq.annualize = p.annualize;
   if (p.rolling_window) rq.rolling = {RollingChoice::Mode::periods, *p.rolling_window};
-  rq.study = row->study.value_or("");
-  rq.note = row->note.value_or("");
+  rq.study = row.study.value_or("");
+  rq.note = row.note.value_or("");
   if (pin_versions)
     for (const auto& in : ledger::read_run_inputs(ledger, run_id))
       rq.pinned_versions[in.series] = in.version;

@@ -652,11 +652,16 @@ int count_strategy_runs(Ledger& ledger, const std::string& strategy) {
   return q->getColumn(0).getInt();
 }
 
-ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
-  const auto row = read_run_row(ledger, run_id);
+RunRow existing_run_row(Ledger& ledger, std::int64_t run_id) {
+  auto row = read_run_row(ledger, run_id);
   if (!row)
     throw Error(Failure::not_found, fmt::format("no run {} in {}; `alphatrail runs` lists them",
                                                 run_id, ledger.path().string()));
+  return std::move(*row);
+}
+
+ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
+  const RunRow row = existing_run_row(ledger, run_id);
   ordered_json inputs = ordered_json::array();
   SQLite::Statement q(ledger.db(),
                       "SELECT i.role, i.position, s.name, v.version, v.content_hash, i.columns, "
@@ -679,25 +684,25 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
   // Both stored texts are read checked: a field that is not what the engine writes stops here,
   // naming the run and the field, so that every reader of the run object may read it by key.
   ordered_json parameters;
-  record::read_parameters(run_id, row->engine_version, row->parameters_json, &parameters);
-  const auto result = record::read_result(run_id, row->result_json);
+  record::read_parameters(run_id, row.engine_version, row.parameters_json, &parameters);
+  const auto result = record::read_result(run_id, row.result_json);
   ordered_json run = {
-      {"run_id", row->run_id},
-      {"created_at", row->created_at},
-      {"engine_version", row->engine_version},
-      {"inputs_hash", row->inputs_hash},
-      {"strategy", row->strategy},
-      {"benchmark", row->benchmark},
-      {"rate", row->rate},
-      {"factors", row->factors ? ordered_json(*row->factors) : ordered_json()},
-      {"study", row->study ? ordered_json(*row->study) : ordered_json()},
-      {"note", row->note ? ordered_json(*row->note) : ordered_json()},
-      {"revises_run_id", row->revises_run_id ? ordered_json(*row->revises_run_id) : ordered_json()},
+      {"run_id", row.run_id},
+      {"created_at", row.created_at},
+      {"engine_version", row.engine_version},
+      {"inputs_hash", row.inputs_hash},
+      {"strategy", row.strategy},
+      {"benchmark", row.benchmark},
+      {"rate", row.rate},
+      {"factors", row.factors ? ordered_json(*row.factors) : ordered_json()},
+      {"study", row.study ? ordered_json(*row.study) : ordered_json()},
+      {"note", row.note ? ordered_json(*row.note) : ordered_json()},
+      {"revises_run_id", row.revises_run_id ? ordered_json(*row.revises_run_id) : ordered_json()},
       {"parameters", std::move(parameters)},
       {"inputs", inputs}};
   for (const auto& [key, value] : result.items()) run[key] = value;
   if (!run.contains("rolling")) run["rolling"] = nullptr;  // runs recorded before engine 0.2.0
-  run["record_hash"] = row->record_hash;
+  run["record_hash"] = row.record_hash;
   return run;
 }
 

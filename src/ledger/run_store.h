@@ -169,6 +169,10 @@ struct RunRow {
 // Reads a run row with its inputs and coefficients; nullopt when absent.
 std::optional<RunRow> read_run_row(Ledger& ledger, std::int64_t run_id);
 
+// Returns the row of a run that must exist; throws Error(Failure::not_found) naming the run,
+// the ledger and the command that lists the runs.
+RunRow existing_run_row(Ledger& ledger, std::int64_t run_id);
+
 // Returns the canonical text of a run row that its record hash covers (all but record_hash).
 std::string canonical_run_record(const RunRow& row);
 
