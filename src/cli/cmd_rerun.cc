@@ -9,6 +9,7 @@
 #include "cli/evaluate.h"
 #include "cli/output.h"
 #include "core/error.h"
+#include "core/number_text.h"
 
 namespace alphatrail::cli {
 
@@ -37,9 +38,7 @@ std::string verdict(double p_old, double p_new, double a_old, double a_new, doub
                        : fmt::format("FLIPPED: {}", fmt::join(flips, ", "));
 }
 
-std::string fixed(double v, int digits) {
-  return std::isnan(v) ? "n/a" : fmt::format("{:.{}f}", v, digits);
-}
+using core::fixed;
 
 }  // namespace
 

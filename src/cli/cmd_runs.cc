@@ -8,6 +8,7 @@
 #include "cli/evaluate.h"
 #include "cli/output.h"
 #include "core/evaluation.h"
+#include "core/number_text.h"
 #include "ledger/run_store.h"
 
 namespace alphatrail::cli {
@@ -20,9 +21,7 @@ struct RunsOptions {
   Format format = Format::table;
 };
 
-std::string fixed(double v, int digits) {
-  return std::isnan(v) ? "n/a" : fmt::format("{:.{}f}", v, digits);
-}
+using core::fixed;
 
 void run_runs(const RunsOptions& o, const GlobalOptions& global) {
   auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),

@@ -14,6 +14,7 @@
 
 #include "core/error.h"
 #include "core/evaluation.h"
+#include "core/number_text.h"
 #include "core/parallel.h"
 #include "core/timings.h"
 #include "ledger/run_store.h"
@@ -479,22 +480,15 @@ double num(const ordered_json& j) {
 }
 
 std::string fixed(const ordered_json& j, int digits) {
-  const double v = num(j);
-  if (std::isnan(v)) return "n/a";
-  return fmt::format("{:.{}f}", v, digits);
+  return core::fixed(num(j), digits);
 }
 
 std::string pct(const ordered_json& j, int digits = 2) {
-  const double v = num(j);
-  if (std::isnan(v)) return "n/a";
-  return fmt::format("{:+.{}f}%", 100 * v, digits);
+  return core::signed_percent(num(j), digits);
 }
 
 std::string p_text(const ordered_json& j) {
-  const double v = num(j);
-  if (std::isnan(v)) return "n/a";
-  if (v < 0.0001) return "<0.0001";
-  return fmt::format("{:.4f}", v);
+  return core::p_value_text(num(j));
 }
 
 const char* per(const std::string& frequency) {

@@ -8,6 +8,7 @@
 #include <map>
 
 #include "core/error.h"
+#include "core/number_text.h"
 #include "core/parallel.h"
 
 namespace alphatrail::core {
@@ -491,7 +492,7 @@ const std::vector<std::string>& standard_cautions() {
 namespace {
 
 std::string percent(double x, int digits = 2) {
-  return fmt::format("{:+.{}f}%", 100.0 * x, digits);
+  return signed_percent(x, digits);
 }
 
 }  // namespace

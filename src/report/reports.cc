@@ -7,6 +7,7 @@
 
 #include "core/annualize.h"
 #include "core/evaluation.h"
+#include "core/number_text.h"
 #include "report/charts.h"
 #include "report/html.h"
 
@@ -26,18 +27,8 @@ std::string text(const ordered_json& j) {
   return j.dump();
 }
 
-std::string fixed(double v, int digits) {
-  return std::isfinite(v) ? fmt::format("{:.{}f}", v, digits) : "n/a";
-}
-
-std::string pct(double v, int digits = 2) {
-  return std::isfinite(v) ? fmt::format("{:+.{}f}%", 100 * v, digits) : "n/a";
-}
-
-std::string p_text(double p) {
-  if (!std::isfinite(p)) return "n/a";
-  return p < 0.0001 ? "<0.0001" : fmt::format("{:.4f}", p);
-}
+using core::fixed;
+using core::p_value_text;
 
 // "month" for a monthly run; the unit of "% per month".
 std::string period_noun(const ordered_json& run) {
@@ -110,7 +101,7 @@ HtmlTable coefficient_table(const ordered_json& run) {
                           run["statistics"]["degrees_of_freedom"].get<int>())};
   for (const auto& c : run["coefficients"])
     t.rows.push_back({text(c["term"]), fixed(num(c["estimate"]), 6), fixed(num(c["std_error"]), 6),
-                      fixed(num(c["t_stat"]), 2), p_text(num(c["p_value"])),
+                      fixed(num(c["t_stat"]), 2), p_value_text(num(c["p_value"])),
                       fixed(num(c["ci_low"]), 6), fixed(num(c["ci_high"]), 6)});
   return t;
 }
@@ -121,30 +112,32 @@ Facts statistics_facts(const ordered_json& run) {
   const AnnualAlpha a = annual_alpha(run);
   return Facts{{
       {"alpha annualized",
-       fmt::format("{} a year ({}; interval {} to {})", pct(a.estimate),
-                   text(run["parameters"]["annualize"]), pct(a.low), pct(a.high))},
+       fmt::format("{} a year ({}; interval {} to {})", core::signed_percent(a.estimate),
+                   text(run["parameters"]["annualize"]), core::signed_percent(a.low),
+                   core::signed_percent(a.high))},
       {"R-squared", fmt::format("{} (adjusted {})", fixed(num(s["r_squared"]), 3),
                                 fixed(num(s["adj_r_squared"]), 3))},
       {"residual sd", fmt::format("{} {} (decimal)", fixed(num(s["residual_std"]), 5), unit)},
-      {"F statistic",
-       fmt::format("{} (p {}), classic", fixed(num(s["f_stat"]), 2), p_text(num(s["f_p_value"])))},
+      {"F statistic", fmt::format("{} (p {}), classic", fixed(num(s["f_stat"]), 2),
+                                  p_value_text(num(s["f_p_value"])))},
       {"Sharpe ratio",
        fmt::format("strategy {}, benchmark {} (annualized)", fixed(num(s["sharpe_strategy"]), 2),
                    fixed(num(s["sharpe_benchmark"]), 2))},
       {"appraisal ratio",
        fmt::format("{} (alpha / residual sd, annualized)", fixed(num(s["appraisal_ratio"]), 2))},
-      {"Treynor ratio", fmt::format("{} a year", pct(num(s["treynor_ratio"])))},
-      {"tracking error",
-       fmt::format("{} a year; information ratio {}", pct(num(s["tracking_error"])),
-                   fixed(num(s["information_ratio"]), 2))},
+      {"Treynor ratio", fmt::format("{} a year", core::signed_percent(num(s["treynor_ratio"])))},
+      {"tracking error", fmt::format("{} a year; information ratio {}",
+                                     core::signed_percent(num(s["tracking_error"])),
+                                     fixed(num(s["information_ratio"]), 2))},
       {"correlation", fixed(num(s["correlation"]), 3)},
       {"up / down beta",
        fmt::format("{} ({} periods) / {} ({} periods)", fixed(num(s["up_market_beta"]), 2),
                    text(s["up_periods"]), fixed(num(s["down_market_beta"]), 2),
                    text(s["down_periods"]))},
       {"mean excess return",
-       fmt::format("strategy {}, benchmark {} {}", pct(num(s["mean_excess_strategy"]), 3),
-                   pct(num(s["mean_excess_benchmark"]), 3), unit)},
+       fmt::format("strategy {}, benchmark {} {}",
+                   core::signed_percent(num(s["mean_excess_strategy"]), 3),
+                   core::signed_percent(num(s["mean_excess_benchmark"]), 3), unit)},
       {"standard errors", describe_errors(s)},
   }};
 }
@@ -268,11 +261,12 @@ Section revision_section(const ordered_json& run, const ordered_json& old) {
     return std::vector<std::string>{what, b, a};
   };
   HtmlTable figures{{"figure", "before", "after"}, {}, {false, true, true}, "Headline figures."};
-  figures.rows.push_back(row("alpha a year", pct(a0.estimate), pct(a1.estimate)));
+  figures.rows.push_back(
+      row("alpha a year", core::signed_percent(a0.estimate), core::signed_percent(a1.estimate)));
   figures.rows.push_back(row("alpha t", fixed(num(coefficient(old, "alpha")["t_stat"]), 2),
                              fixed(num(coefficient(run, "alpha")["t_stat"]), 2)));
-  figures.rows.push_back(row("alpha p", p_text(num(coefficient(old, "alpha")["p_value"])),
-                             p_text(num(coefficient(run, "alpha")["p_value"]))));
+  figures.rows.push_back(row("alpha p", p_value_text(num(coefficient(old, "alpha")["p_value"])),
+                             p_value_text(num(coefficient(run, "alpha")["p_value"]))));
   figures.rows.push_back(row("beta", fixed(num(coefficient(old, "beta")["estimate"]), 3),
                              fixed(num(coefficient(run, "beta")["estimate"]), 3)));
   figures.rows.push_back(row("R-squared", fixed(num(old["statistics"]["r_squared"]), 3),
@@ -307,8 +301,8 @@ std::string run_report(const RunReportInput& in) {
                            text(run["strategy"]), text(run["benchmark"]));
   const auto& alpha = coefficient(run, "alpha");
   page.subtitle = fmt::format("alpha {} a year (t {}, p {}), beta {}, {} {} periods",
-                              pct(annual_alpha(run).estimate), fixed(num(alpha["t_stat"]), 2),
-                              p_text(num(alpha["p_value"])),
+                              core::signed_percent(annual_alpha(run).estimate),
+                              fixed(num(alpha["t_stat"]), 2), p_value_text(num(alpha["p_value"])),
                               fixed(num(coefficient(run, "beta")["estimate"]), 3),
                               text(sample["observations"]), text(sample["frequency"]));
   page.facts.items = {
@@ -420,8 +414,8 @@ std::string strategy_report(const StrategyReportInput& in) {
     chart.items.push_back({run_label(run), a.estimate, a.low, a.high, revision});
     table.rows.push_back(
         {text(run["run_id"]), text(run["created_at"]), short_errors(run["statistics"]),
-         text(run["sample"]["observations"]), pct(a.estimate),
-         fmt::format("{} to {}", pct(a.low), pct(a.high)),
+         text(run["sample"]["observations"]), core::signed_percent(a.estimate),
+         fmt::format("{} to {}", core::signed_percent(a.low), core::signed_percent(a.high)),
          fixed(num(coefficient(run, "alpha")["t_stat"]), 2),
          fixed(num(coefficient(run, "beta")["estimate"]), 3),
          revision ? fmt::format("run {}", run["revises_run_id"].get<std::int64_t>()) : "",
@@ -498,8 +492,8 @@ std::string study_report(const StudyReportInput& in) {
     const auto& run = in.runs[i];
     const auto& a = coefficient(run, "alpha");
     table.rows.push_back({std::to_string(++rank), text(run["run_id"]), text(run["strategy"]),
-                          text(run["created_at"]), pct(annual_alpha(run).estimate),
-                          fixed(num(a["t_stat"]), 2), p_text(num(a["p_value"])),
+                          text(run["created_at"]), core::signed_percent(annual_alpha(run).estimate),
+                          fixed(num(a["t_stat"]), 2), p_value_text(num(a["p_value"])),
                           fixed(num(coefficient(run, "beta")["estimate"]), 3),
                           text(run["sample"]["observations"]), short_errors(run["statistics"])});
   }
