@@ -1,6 +1,5 @@
 #include "cli/evaluate.h"
 
-#include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 #include <fnmatch.h>
 
@@ -37,17 +36,9 @@ bool is_pattern(const std::string& s) {
   return s.find_first_of("*?[") != std::string::npos;
 }
 
-std::vector<std::string> names_of_kind(ledger::Ledger& ledger, const std::string& kind) {
-  SQLite::Statement q(ledger.db(), "SELECT name FROM series WHERE kind = ? ORDER BY name");
-  q.bind(1, kind);
-  std::vector<std::string> names;
-  while (q.executeStep()) names.push_back(q.getColumn(0).getString());
-  return names;
-}
-
 std::vector<std::string> resolve_strategies(ledger::Ledger& ledger,
                                             const std::vector<std::string>& requested) {
-  const auto all = names_of_kind(ledger, "strategy");
+  const auto all = ledger::series_names(ledger, core::SeriesKind::strategy);
   std::vector<std::string> chosen;
   std::set<std::string> seen;
   for (const auto& want : requested) {

@@ -520,4 +520,12 @@ LoadedVersion load_version(Ledger& ledger, const std::string& name, std::optiona
   return std::move(load_versions(ledger, {{name, version}}).front());
 }
 
+std::vector<std::string> series_names(Ledger& ledger, core::SeriesKind kind) {
+  SQLite::Statement q(ledger.db(), "SELECT name FROM series WHERE kind = ? ORDER BY name");
+  q.bind(1, core::series_kind_name(kind));
+  std::vector<std::string> names;
+  while (q.executeStep()) names.push_back(q.getColumn(0).getString());
+  return names;
+}
+
 }  // namespace alphatrail::ledger

@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "core/series_file.h"
 #include "ledger/content.h"
 #include "ledger/ledger.h"
 
@@ -66,6 +67,9 @@ struct VersionInfo {
   std::string note;
   std::vector<std::string> columns;
 };
+
+// Returns the names of every series of a kind, in name order.
+std::vector<std::string> series_names(Ledger& ledger, core::SeriesKind kind);
 
 // Returns the latest version of every series, set and curve, ordered by kind then name.
 std::vector<VersionInfo> list_latest_versions(Ledger& ledger);
