@@ -30,6 +30,7 @@ using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
+using alphatrail::testing::run_at;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::SixRunLedgerTest;
 using alphatrail::testing::start_alphatrail;
@@ -38,13 +39,6 @@ using alphatrail::testing::wait_for;
 constexpr const char* kBenchmark = "alder-vale-composite";
 constexpr const char* kRate = "alder-vale-bills";
 constexpr const char* kFactors = "brindle-styles";
-
-CommandResult at(const fs::path& ledger, const std::vector<std::string>& args,
-                 const std::vector<std::string>& env = {}) {
-  std::vector<std::string> all{"--ledger", ledger.string()};
-  all.insert(all.end(), args.begin(), args.end());
-  return run_alphatrail(all, env);
-}
 
 // The bytes of a ledger file and of its write-ahead log: equal before and after a command
 // means the command changed nothing.
@@ -78,7 +72,7 @@ TEST_F(ReportOutputTest, RefusesTheLedgerItReadsByAnyName) {
     for (const bool force : {false, true}) {
       std::vector<std::string> args{"report", "1", "-o", name.string()};
       if (force) args.push_back("--force");
-      const CommandResult r = at(ledger_path(), args);
+      const CommandResult r = run_at(ledger_path(), args);
       EXPECT_EQ(r.exit_code, 2) << name << (force ? " --force" : "") << ": " << r.out;
       EXPECT_TRUE(contains(r.err, "is the ledger file")) << r.err;
       EXPECT_FALSE(contains(r.out, "report written")) << r.out;
@@ -86,7 +80,7 @@ TEST_F(ReportOutputTest, RefusesTheLedgerItReadsByAnyName) {
     }
   }
   EXPECT_TRUE(fs::is_symlink(scratch_ / "link.html"));
-  const CommandResult verify = at(ledger_path(), {"verify"});
+  const CommandResult verify = run_at(ledger_path(), {"verify"});
   EXPECT_EQ(verify.exit_code, 0) << verify.out << verify.err;
 }
 
@@ -95,35 +89,36 @@ TEST_F(ReportOutputTest, RefusesTheLedgersWriteAheadLog) {
   // the rerun's connection closes.
   SQLite::Database keep(ledger(), SQLite::OPEN_READONLY);
   ASSERT_EQ(keep.execAndGet("SELECT count(*) FROM runs").getInt(), 6);
-  ASSERT_EQ(at(ledger_path(), {"rerun", "1"}).exit_code, 0);
+  ASSERT_EQ(run_at(ledger_path(), {"rerun", "1"}).exit_code, 0);
   const fs::path wal = ledger() + "-wal";
   ASSERT_TRUE(fs::exists(wal));
-  const CommandResult r = at(ledger_path(), {"report", "1", "-o", wal.string(), "--force"});
+  const CommandResult r = run_at(ledger_path(), {"report", "1", "-o", wal.string(), "--force"});
   EXPECT_EQ(r.exit_code, 2) << r.out << r.err;
   EXPECT_TRUE(contains(r.err, "is the ledger file")) << r.err;
 }
 
 TEST_F(ReportOutputTest, RefusesAFileItDidNotWriteUnlessForced) {
   const fs::path notes = scratch_.write("notes.html", "<p>my own notes</p>\n");
-  const CommandResult refused = at(ledger_path(), {"report", "1", "-o", notes.string()});
+  const CommandResult refused = run_at(ledger_path(), {"report", "1", "-o", notes.string()});
   EXPECT_EQ(refused.exit_code, 2) << refused.out;
   EXPECT_TRUE(contains(refused.err, "is not a report page alphatrail wrote")) << refused.err;
   EXPECT_TRUE(contains(refused.err, "--force")) << refused.err;
   EXPECT_EQ(read_file(notes), "<p>my own notes</p>\n");
 
-  const CommandResult forced = at(ledger_path(), {"report", "1", "-o", notes.string(), "--force"});
+  const CommandResult forced =
+      run_at(ledger_path(), {"report", "1", "-o", notes.string(), "--force"});
   EXPECT_EQ(forced.exit_code, 0) << forced.err;
   EXPECT_EQ(read_file(notes).rfind("<!DOCTYPE html>", 0), 0u);
 }
 
 TEST_F(ReportOutputTest, ReplacesAPageItWroteAndWritesNewFiles) {
   const fs::path page = scratch_ / "run-1.html";
-  const CommandResult first = at(ledger_path(), {"report", "1", "-o", page.string()});
+  const CommandResult first = run_at(ledger_path(), {"report", "1", "-o", page.string()});
   ASSERT_EQ(first.exit_code, 0) << first.err;
   EXPECT_TRUE(contains(read_file(page), "<meta name=\"generator\" content=\"alphatrail\">"));
   // Another kind of page over the first: still a page of ours, so no --force needed.
   const CommandResult again =
-      at(ledger_path(), {"report", "--study", "trend-lookbacks", "-o", page.string()});
+      run_at(ledger_path(), {"report", "--study", "trend-lookbacks", "-o", page.string()});
   EXPECT_EQ(again.exit_code, 0) << again.err;
   EXPECT_TRUE(contains(read_file(page), "trend-lookbacks"));
   // A page of an earlier version (no generator mark, the footer of ours) is ours too.
@@ -132,7 +127,7 @@ TEST_F(ReportOutputTest, ReplacesAPageItWroteAndWritesNewFiles) {
   old.erase(old.find(mark), mark.size());
   scratch_.write("old.html", old);
   const CommandResult over_old =
-      at(ledger_path(), {"report", "2", "-o", (scratch_ / "old.html").string()});
+      run_at(ledger_path(), {"report", "2", "-o", (scratch_ / "old.html").string()});
   EXPECT_EQ(over_old.exit_code, 0) << over_old.err;
   // A folder or a device is never replaced, not even with --force.
   fs::create_directory(scratch_ / "folder.html");
@@ -141,7 +136,7 @@ TEST_F(ReportOutputTest, ReplacesAPageItWroteAndWritesNewFiles) {
          {(scratch_ / "folder.html").string(), std::string("/dev/null")}) {
       std::vector<std::string> args{"report", "1", "-o", target};
       if (force) args.push_back("--force");
-      const CommandResult r = at(ledger_path(), args);
+      const CommandResult r = run_at(ledger_path(), args);
       EXPECT_EQ(r.exit_code, 2) << target << (force ? " --force: " : ": ") << r.out;
       EXPECT_TRUE(contains(r.err, "is not a regular file")) << r.err;
     }
@@ -191,7 +186,8 @@ TEST(DemoReplace, ReplacesItsOwnLedgerInPlace) {
   ASSERT_EQ(run_alphatrail({"demo", "--ledger", demo.string()}).exit_code, 0);
   // Runs a user added to the demo ledger go with it when it is replaced.
   ASSERT_EQ(
-      at(demo, {"evaluate", "carry-g10", "--benchmark", kBenchmark, "--rate", kRate}).exit_code, 0);
+      run_at(demo, {"evaluate", "carry-g10", "--benchmark", kBenchmark, "--rate", kRate}).exit_code,
+      0);
   ASSERT_EQ(scalar(demo, "SELECT count(*) FROM runs"), 13);
   const ino_t inode = inode_of(demo);
   const CommandResult without = run_alphatrail({"demo", "--ledger", demo.string()});
@@ -204,7 +200,7 @@ TEST(DemoReplace, ReplacesItsOwnLedgerInPlace) {
   EXPECT_EQ(scalar(demo, "SELECT count(*) FROM runs"), 12);
   EXPECT_EQ(scalar(demo, "SELECT min(run_id) FROM runs"), 1);
   EXPECT_EQ(scalar(demo, "SELECT count(*) FROM ledger_marks"), 1);
-  const CommandResult verify = at(demo, {"verify"});
+  const CommandResult verify = run_at(demo, {"verify"});
   EXPECT_EQ(verify.exit_code, 0) << verify.out << verify.err;
 }
 
@@ -252,16 +248,16 @@ class ConcurrentRerunTest : public SixRunLedgerTest {
     alphatrail::testing::copy_ledger(base(), ledger);
     for (int i = 0; i < 49; ++i) {
       const CommandResult r =
-          at(ledger, {"evaluate", "trend-*", "carry-g10", "defensive-tilt", "crash-hedge",
-                      "--benchmark", kBenchmark, "--rate", kRate, "--factor", kFactors});
+          run_at(ledger, {"evaluate", "trend-*", "carry-g10", "defensive-tilt", "crash-hedge",
+                          "--benchmark", kBenchmark, "--rate", kRate, "--factor", kFactors});
       if (r.exit_code != 0) problem_ = r.err;
     }
     const std::string levels = read_file(benchmark_csv());
     many_->write("revised.csv", restate(levels, "2008-10-31", 1.01));
     many_->write("revised-again.csv", restate(levels, "2008-10-31", 1.02));
     const CommandResult revise =
-        at(ledger, {"ingest", "benchmark", (*many_ / "revised.csv").string(), "--levels", "--name",
-                    kBenchmark});
+        run_at(ledger, {"ingest", "benchmark", (*many_ / "revised.csv").string(), "--levels",
+                        "--name", kBenchmark});
     if (revise.exit_code != 0) problem_ += revise.err;
     SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
     db.exec("PRAGMA wal_checkpoint(TRUNCATE)");
@@ -314,7 +310,7 @@ TEST_F(ConcurrentRerunTest, TwoRerunsAtOnceReviseEachStaleRunOnce) {
                    "SELECT count(*) FROM run_summary s WHERE stale AND NOT EXISTS "
                    "(SELECT 1 FROM runs r WHERE r.revises_run_id = s.run_id)"),
             0);
-  const CommandResult verify = at(ledger_path(), {"verify"});
+  const CommandResult verify = run_at(ledger_path(), {"verify"});
   EXPECT_EQ(verify.exit_code, 0) << verify.out << verify.err;
 }
 
@@ -328,7 +324,7 @@ TEST_F(ConcurrentRerunTest, ARerunRacingIngestsUsesOneSnapshot) {
   int ingests = 0;
   for (pid_t done = 0; done == 0 && ingests < 400; done = waitpid(rerun, &status, WNOHANG)) {
     const char* file = ingests % 2 == 0 ? "revised-again.csv" : "revised.csv";
-    const CommandResult r = at(
+    const CommandResult r = run_at(
         ledger_path(),
         {"ingest", "benchmark", (many() / file).string(), "--levels", "--name", kBenchmark}, env);
     ASSERT_EQ(r.exit_code, 0) << r.err;
@@ -351,7 +347,7 @@ TEST_F(ConcurrentRerunTest, ARerunRacingIngestsUsesOneSnapshot) {
 
 TEST_F(ConcurrentRerunTest, DryRunRecordsNothing) {
   const std::string before = contents_of(ledger_path());
-  const CommandResult r = at(ledger_path(), {"rerun", "--all-stale", "--dry-run"});
+  const CommandResult r = run_at(ledger_path(), {"rerun", "--all-stale", "--dry-run"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_TRUE(contains(r.out, "would re-run run 300 (crash-hedge)")) << r.out;
   EXPECT_EQ(contents_of(ledger_path()), before);

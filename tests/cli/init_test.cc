@@ -24,6 +24,7 @@ using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
+using alphatrail::testing::run_at;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::source_path;
 
@@ -58,12 +59,6 @@ const std::vector<std::vector<std::string>>& reading_commands() {
   return commands;
 }
 
-CommandResult at(const fs::path& ledger, const std::vector<std::string>& args) {
-  std::vector<std::string> all{"--ledger", ledger.string()};
-  all.insert(all.end(), args.begin(), args.end());
-  return run_alphatrail(all);
-}
-
 // Returns the write-ahead log, shared-memory index and rollback journal beside the file, with
 // their bytes.
 std::string journal_files(const fs::path& ledger) {
@@ -91,7 +86,7 @@ void expect_reading_commands_refuse(const ScratchDir& dir, const fs::path& ledge
   std::vector<std::vector<std::string>> commands = reading_commands();
   commands.push_back({"report", "1", "-o", (dir / "report.html").string()});
   for (const auto& args : commands) {
-    const CommandResult r = at(ledger, args);
+    const CommandResult r = run_at(ledger, args);
     EXPECT_EQ(r.exit_code, 4) << args[0] << ": " << r.out << r.err;
     EXPECT_EQ(r.err.rfind("alphatrail: error: ", 0), 0u) << r.err;
     for (const auto& message : messages)
@@ -364,9 +359,9 @@ TEST_F(V1Fixture, ReadingCommandsRefuseItUntilInitUpgradesIt) {
        "upgrade it with `alphatrail init --ledger " + ledger_.string() + "`"});
   EXPECT_EQ(pragma(ledger_, "user_version"), 1);
 
-  ASSERT_EQ(at(ledger_, {"init"}).exit_code, 0);
+  ASSERT_EQ(run_at(ledger_, {"init"}).exit_code, 0);
   expect_upgraded_with_data();
-  const CommandResult series = at(ledger_, {"series", "--format", "json"});
+  const CommandResult series = run_at(ledger_, {"series", "--format", "json"});
   ASSERT_EQ(series.exit_code, 0) << series.err;
   EXPECT_EQ(series.err, "");
   const auto list = nlohmann::json::parse(series.out);
@@ -375,13 +370,13 @@ TEST_F(V1Fixture, ReadingCommandsRefuseItUntilInitUpgradesIt) {
   EXPECT_EQ(list[0]["observations"], 3);
   EXPECT_EQ(list[0]["frequency"], "monthly");
   const CommandResult query =
-      at(ledger_, {"query", "SELECT count(*) AS n FROM observations WHERE series = 'fund-one'",
-                   "--format", "csv"});
+      run_at(ledger_, {"query", "SELECT count(*) AS n FROM observations WHERE series = 'fund-one'",
+                       "--format", "csv"});
   ASSERT_EQ(query.exit_code, 0) << query.err;
   EXPECT_EQ(query.out, "n\n3\n");
-  const CommandResult verify = at(ledger_, {"verify"});
+  const CommandResult verify = run_at(ledger_, {"verify"});
   EXPECT_EQ(verify.exit_code, 0) << verify.out << verify.err;
-  const CommandResult runs = at(ledger_, {"runs", "--format", "json"});
+  const CommandResult runs = run_at(ledger_, {"runs", "--format", "json"});
   ASSERT_EQ(runs.exit_code, 0) << runs.err;
   EXPECT_EQ(nlohmann::json::parse(runs.out), nlohmann::json::array());
 }

@@ -40,6 +40,7 @@ using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
+using alphatrail::testing::run_at;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::start_alphatrail;
 using alphatrail::testing::wait_for;
@@ -48,13 +49,6 @@ using Clock = std::chrono::steady_clock;
 constexpr const char* kBenchmark = "alder-vale-composite";
 constexpr const char* kRate = "alder-vale-bills";
 constexpr const char* kFactors = "brindle-styles";
-
-CommandResult at(const std::string& ledger, const std::vector<std::string>& args,
-                 const std::vector<std::string>& env = {}) {
-  std::vector<std::string> all{"--ledger", ledger};
-  all.insert(all.end(), args.begin(), args.end());
-  return run_alphatrail(all, env);
-}
 
 std::string describe(int status) {
   if (WIFEXITED(status)) return fmt::format("exit {}", WEXITSTATUS(status));
@@ -214,7 +208,7 @@ class Fixtures {
   Fixtures() {
     const auto step = [&](const fs::path& ledger, const std::vector<std::string>& args) {
       if (!problem_.empty()) return;
-      const CommandResult r = at(ledger.string(), args);
+      const CommandResult r = run_at(ledger.string(), args);
       if (r.exit_code != 0) problem_ = fmt::format("{} failed: {}", args.front(), r.err);
     };
     problem_ = build_six_run_ledger(dir_ / "demo.db", six());
@@ -286,7 +280,7 @@ TEST_F(ConcurrencyLedgerTest, BigIngestAndEvaluateAtOnceBothSucceed) {
     EXPECT_EQ(after.run_inputs, before.run_inputs + 153 * 4);
     EXPECT_EQ(after.coefficients, before.coefficients + 153 * 4);
     expect_whole_rows(work());
-    const CommandResult v = at(work().string(), {"verify"});
+    const CommandResult v = run_at(work().string(), {"verify"});
     EXPECT_EQ(v.exit_code, 0) << v.out << v.err;
   }
 }
@@ -320,7 +314,7 @@ TEST_F(ConcurrencyLedgerTest, TwoEvaluatesAtOnceBothSucceedEachInOneBlock) {
     }
     EXPECT_EQ(scalar(work(), "SELECT count(*) FROM runs WHERE note = 'second' AND errors <> 'hc1'"),
               0);
-    const CommandResult v = at(work().string(), {"verify"});
+    const CommandResult v = run_at(work().string(), {"verify"});
     EXPECT_EQ(v.exit_code, 0) << v.out << v.err;
   }
 }
@@ -336,7 +330,7 @@ TEST_F(ConcurrencyLedgerTest, BusyLedgerExitsFourAndWritesNothing) {
     holder.exec("BEGIN IMMEDIATE");
     const auto t0 = Clock::now();
     const CommandResult ingest =
-        at(work().string(), {"ingest", "strategy", f.small().string()}, busy);
+        run_at(work().string(), {"ingest", "strategy", f.small().string()}, busy);
     const auto elapsed = std::chrono::duration_cast<std::chrono::milliseconds>(Clock::now() - t0);
     EXPECT_EQ(ingest.exit_code, 4) << ingest.out << ingest.err;
     EXPECT_TRUE(contains(ingest.err, "busy")) << ingest.err;
@@ -345,12 +339,12 @@ TEST_F(ConcurrencyLedgerTest, BusyLedgerExitsFourAndWritesNothing) {
     EXPECT_GE(elapsed.count(), 280) << "gave up before the busy timeout";
     EXPECT_LT(elapsed.count(), 8000) << "waited far longer than ALPHATRAIL_BUSY_TIMEOUT_MS";
 
-    const CommandResult evaluate = at(work().string(), kEvaluateTrend, busy);
+    const CommandResult evaluate = run_at(work().string(), kEvaluateTrend, busy);
     EXPECT_EQ(evaluate.exit_code, 4) << evaluate.out << evaluate.err;
     EXPECT_TRUE(contains(evaluate.err, "busy")) << evaluate.err;
 
     // Readers are not blocked by the writer.
-    const CommandResult runs = at(work().string(), {"runs", "--format", "json"}, busy);
+    const CommandResult runs = run_at(work().string(), {"runs", "--format", "json"}, busy);
     EXPECT_EQ(runs.exit_code, 0) << runs.err;
     holder.exec("ROLLBACK");
   }
@@ -359,10 +353,11 @@ TEST_F(ConcurrencyLedgerTest, BusyLedgerExitsFourAndWritesNothing) {
   EXPECT_EQ(after.versions, before.versions);
   EXPECT_EQ(after.columns, before.columns);
   EXPECT_EQ(after.runs, before.runs);
-  const CommandResult v = at(work().string(), {"verify"});
+  const CommandResult v = run_at(work().string(), {"verify"});
   EXPECT_EQ(v.exit_code, 0) << v.out << v.err;
   // Once the lock is gone the same ingest goes through: the lock was the only obstacle.
-  const CommandResult again = at(work().string(), {"ingest", "strategy", f.small().string()}, busy);
+  const CommandResult again =
+      run_at(work().string(), {"ingest", "strategy", f.small().string()}, busy);
   EXPECT_EQ(again.exit_code, 0) << again.err;
   EXPECT_EQ(counts_of(work()).versions, before.versions + 5);
 }
@@ -430,7 +425,7 @@ class KillLedgerTest : public ::testing::Test {
         ++tally_.completed;
       }
 
-      const CommandResult v = at(work.string(), {"verify"});
+      const CommandResult v = run_at(work.string(), {"verify"});
       ASSERT_EQ(v.exit_code, 0) << v.out << v.err;
       expect_whole_rows(work);
       const Counts after = counts_of(work);
@@ -478,11 +473,11 @@ TEST_F(KillLedgerTest, KilledRerunLeavesAllOrNothing) {
   const pid_t pid = start_alphatrail(with_ledger({"rerun", "--all-stale"}, work));
   kill(pid, SIGKILL);
   wait_for(pid);
-  const CommandResult r = at(work.string(), {"rerun", "--all-stale"});
+  const CommandResult r = run_at(work.string(), {"rerun", "--all-stale"});
   EXPECT_EQ(r.exit_code, 0) << r.err;
   EXPECT_EQ(scalar(work, "SELECT count(*) FROM runs"), 318);
   EXPECT_EQ(scalar(work, "SELECT count(*) FROM runs WHERE revises_run_id IS NOT NULL"), 159);
-  const CommandResult again = at(work.string(), {"rerun", "--all-stale"});
+  const CommandResult again = run_at(work.string(), {"rerun", "--all-stale"});
   EXPECT_TRUE(contains(again.out, "no stale runs")) << again.out;
 }
 

@@ -24,6 +24,7 @@ using alphatrail::testing::contains;
 using alphatrail::testing::evaluate_fixture;
 using alphatrail::testing::lines_of;
 using alphatrail::testing::run_alphatrail;
+using alphatrail::testing::run_at;
 using alphatrail::testing::ScratchDir;
 using nlohmann::json;
 
@@ -34,12 +35,6 @@ std::vector<std::string> split_csv_line(const std::string& line) {
   while (std::getline(in, field, ',')) out.push_back(field);
   if (!line.empty() && line.back() == ',') out.push_back("");
   return out;
-}
-
-CommandResult at(const std::string& ledger, const std::vector<std::string>& args) {
-  std::vector<std::string> all{"--ledger", ledger};
-  all.insert(all.end(), args.begin(), args.end());
-  return run_alphatrail(all);
 }
 
 // One ledger for the suite (runs and show only read it), from fixtures/evaluate:
@@ -61,7 +56,7 @@ class RunsTest : public ::testing::Test {
         {"evaluate", "carry", "--factor", "ff", "--benchmark", "market", "--rate", "bills",
          "--study", "grid"}};
     for (const auto& c : commands) {
-      const CommandResult r = at(ledger(), c);
+      const CommandResult r = run_at(ledger(), c);
       ASSERT_EQ(r.exit_code, 0) << c[0] << " " << c[1] << ": " << r.err;
     }
   }
@@ -73,7 +68,7 @@ class RunsTest : public ::testing::Test {
   static std::string ledger() { return (*dir_ / "ledger.db").string(); }
 
   static json json_of(const std::vector<std::string>& args) {
-    const CommandResult r = at(ledger(), args);
+    const CommandResult r = run_at(ledger(), args);
     EXPECT_EQ(r.exit_code, 0) << r.err;
     return r.exit_code == 0 ? json::parse(r.out) : json();
   }
@@ -101,7 +96,7 @@ ScratchDir* RunsTest::dir_ = nullptr;
 
 // The table lists every run with its headline figures, each equal to the run's own record.
 TEST_F(RunsTest, ListsRunsWithHeadlineFigures) {
-  const CommandResult r = at(ledger(), {"runs"});
+  const CommandResult r = run_at(ledger(), {"runs"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto lines = lines_of(r.out);
   const char* strategies[] = {"trend-fast", "trend-fast", "trend-slow", "carry"};
@@ -145,7 +140,7 @@ TEST_F(RunsTest, FiltersByStrategyAndStudy) {
   for (const auto& r : runs_json({"--study", "grid"})) EXPECT_EQ(r["study"], "grid");
   EXPECT_TRUE(runs_json({"--strategy", "trend-fast"})[0]["study"].is_null());
   // The CSV form filters the same way: a header and one row per run.
-  const CommandResult csv = at(ledger(), {"runs", "--study", "grid", "--format", "csv"});
+  const CommandResult csv = run_at(ledger(), {"runs", "--study", "grid", "--format", "csv"});
   ASSERT_EQ(csv.exit_code, 0) << csv.err;
   const auto lines = lines_of(csv.out);
   ASSERT_EQ(lines.size(), 4u) << csv.out;
@@ -190,16 +185,16 @@ TEST_F(RunsTest, JsonKeysEqualShowsRunObjects) {
 }
 
 TEST_F(RunsTest, ShowUnknownRunExits5) {
-  const CommandResult r = at(ledger(), {"show", "99"});
+  const CommandResult r = run_at(ledger(), {"show", "99"});
   EXPECT_EQ(r.exit_code, 5) << r.err;
   EXPECT_TRUE(contains(r.err, "no run 99")) << r.err;
-  EXPECT_EQ(at(ledger(), {"show", "99", "--format", "json"}).exit_code, 5);
+  EXPECT_EQ(run_at(ledger(), {"show", "99", "--format", "json"}).exit_code, 5);
 }
 
 // show --format csv: a header and one row per coefficient, numbers that read back to the
 // run object's values exactly.
 TEST_F(RunsTest, ShowCsvGivesTheCoefficientRows) {
-  const CommandResult r = at(ledger(), {"show", "4", "--format", "csv"});
+  const CommandResult r = run_at(ledger(), {"show", "4", "--format", "csv"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto lines = lines_of(r.out);
   ASSERT_EQ(lines.size(), 5u) << r.out;
@@ -221,7 +216,7 @@ TEST_F(RunsTest, ShowCsvGivesTheCoefficientRows) {
 
 // show in text form names the run, its strategy and its reading.
 TEST_F(RunsTest, ShowTextPrintsTheRun) {
-  const CommandResult r = at(ledger(), {"show", "3"});
+  const CommandResult r = run_at(ledger(), {"show", "3"});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_TRUE(contains(r.out, "Run 3: trend-slow against market")) << r.out;
   EXPECT_TRUE(contains(r.out, "study grid")) << r.out;
@@ -240,7 +235,7 @@ TEST_F(RunsTest, RevisedInputMarksEarlierRunsStale) {
     if (fs::exists(from)) fs::copy_file(from, ledger + suffix);
   }
   const auto stale_flags = [&] {
-    const CommandResult r = at(ledger, {"runs", "--format", "json"});
+    const CommandResult r = run_at(ledger, {"runs", "--format", "json"});
     EXPECT_EQ(r.exit_code, 0) << r.err;
     std::vector<bool> flags;
     for (const auto& run : json::parse(r.out)) flags.push_back(run["stale"].get<bool>());
@@ -249,29 +244,29 @@ TEST_F(RunsTest, RevisedInputMarksEarlierRunsStale) {
   EXPECT_EQ(stale_flags(), (std::vector<bool>{false, false, false, false}));
 
   // Ingesting the same content again is no new version and stales nothing.
-  ASSERT_EQ(at(ledger, {"ingest", "benchmark", evaluate_fixture("benchmark.csv"), "--levels",
-                        "--name", "market"})
+  ASSERT_EQ(run_at(ledger, {"ingest", "benchmark", evaluate_fixture("benchmark.csv"), "--levels",
+                            "--name", "market"})
                 .exit_code,
             0);
   EXPECT_EQ(stale_flags(), (std::vector<bool>{false, false, false, false}));
 
   const CommandResult revised =
-      at(ledger, {"ingest", "benchmark", evaluate_fixture("benchmark_revised.csv"), "--levels",
-                  "--name", "market"});
+      run_at(ledger, {"ingest", "benchmark", evaluate_fixture("benchmark_revised.csv"), "--levels",
+                      "--name", "market"});
   ASSERT_EQ(revised.exit_code, 0) << revised.err;
   EXPECT_TRUE(contains(revised.out, "version 2")) << revised.out;
   EXPECT_EQ(stale_flags(), (std::vector<bool>{true, true, true, true}));
 
-  const CommandResult again = at(ledger, {"evaluate", "trend-fast", "--benchmark", "market",
-                                          "--rate", "bills", "--format", "json"});
+  const CommandResult again = run_at(ledger, {"evaluate", "trend-fast", "--benchmark", "market",
+                                              "--rate", "bills", "--format", "json"});
   ASSERT_EQ(again.exit_code, 0) << again.err;
   EXPECT_EQ(stale_flags(), (std::vector<bool>{true, true, true, true, false}));
-  const json runs = json::parse(at(ledger, {"runs", "--format", "json"}).out);
+  const json runs = json::parse(run_at(ledger, {"runs", "--format", "json"}).out);
   ASSERT_EQ(runs.size(), 5u);
   EXPECT_NE(runs[4]["inputs_hash"], runs[0]["inputs_hash"]);
   EXPECT_NE(runs[4]["alpha"], runs[0]["alpha"]);
   // The run object says which version it used and which is the latest.
-  const json old_run = json::parse(at(ledger, {"show", "1", "--format", "json"}).out);
+  const json old_run = json::parse(run_at(ledger, {"show", "1", "--format", "json"}).out);
   bool benchmark_seen = false;
   for (const auto& in : old_run["inputs"])
     if (in["role"] == "benchmark") {
@@ -281,7 +276,7 @@ TEST_F(RunsTest, RevisedInputMarksEarlierRunsStale) {
     }
   EXPECT_TRUE(benchmark_seen) << old_run["inputs"].dump();
   // The table marks them too.
-  const CommandResult table = at(ledger, {"runs"});
+  const CommandResult table = run_at(ledger, {"runs"});
   ASSERT_EQ(table.exit_code, 0) << table.err;
   int stale_lines = 0;
   for (const auto& line : lines_of(table.out))

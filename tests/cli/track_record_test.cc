@@ -31,6 +31,7 @@ using alphatrail::testing::contains;
 using alphatrail::testing::lines_of;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
+using alphatrail::testing::run_at;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::SixRunLedgerTest;
 using nlohmann::json;
@@ -39,15 +40,9 @@ constexpr const char* kBenchmark = "alder-vale-composite";
 constexpr const char* kRate = "alder-vale-bills";
 constexpr const char* kFactors = "brindle-styles";
 
-CommandResult at(const std::string& ledger, const std::vector<std::string>& args) {
-  std::vector<std::string> all{"--ledger", ledger};
-  all.insert(all.end(), args.begin(), args.end());
-  return run_alphatrail(all);
-}
-
 // Runs a command that must succeed and parses its JSON output.
 json json_at(const std::string& ledger, const std::vector<std::string>& args) {
-  const CommandResult r = at(ledger, args);
+  const CommandResult r = run_at(ledger, args);
   EXPECT_EQ(r.exit_code, 0) << args.front() << ": " << r.err;
   if (r.exit_code != 0) return json();
   try {
@@ -143,7 +138,7 @@ class TrackRecordTest : public SixRunLedgerTest {
     after[row].level = std::strtod(after[row].text.c_str(), nullptr);
     const auto file = scratch_.write("alder-vale-composite-revised.csv", write_levels(after));
     const CommandResult r =
-        at(ledger(), {"ingest", "benchmark", file.string(), "--levels", "--name", kBenchmark});
+        run_at(ledger(), {"ingest", "benchmark", file.string(), "--levels", "--name", kBenchmark});
     EXPECT_EQ(r.exit_code, 0) << r.err;
     EXPECT_TRUE(contains(r.out, "version 2")) << r.out;
     return {before, after};
@@ -165,11 +160,11 @@ TEST_F(TrackRecordTest, DemoLedgerRerunsItsRestatedIndex) {
       EXPECT_TRUE(r["revises_run_id"].is_null()) << r.dump();
     }
   }
-  const CommandResult none = at(demo_ledger, {"rerun", "--all-stale", "--dry-run"});
+  const CommandResult none = run_at(demo_ledger, {"rerun", "--all-stale", "--dry-run"});
   EXPECT_EQ(none.exit_code, 0) << none.err;
   EXPECT_TRUE(contains(none.out, "no stale runs")) << none.out;
   for (int id : {1, 7, 12}) {
-    const CommandResult r = at(demo_ledger, {"reproduce", std::to_string(id)});
+    const CommandResult r = run_at(demo_ledger, {"reproduce", std::to_string(id)});
     EXPECT_EQ(r.exit_code, 0) << id << ": " << r.out << r.err;
     EXPECT_TRUE(contains(r.out, "reproduced:")) << r.out;
   }
@@ -193,7 +188,7 @@ TEST_F(TrackRecordTest, DemoLedgerHasSixFreshRuns) {
     EXPECT_TRUE(r["revises_run_id"].is_null()) << r.dump();
     EXPECT_EQ(r["benchmark"], kBenchmark);
   }
-  const CommandResult none = at(ledger(), {"rerun", "--all-stale"});
+  const CommandResult none = run_at(ledger(), {"rerun", "--all-stale"});
   EXPECT_EQ(none.exit_code, 0) << none.err;
   EXPECT_TRUE(contains(none.out, "no stale runs")) << none.out;
   EXPECT_EQ(count_of(ledger(), "runs"), 6);
@@ -238,7 +233,7 @@ TEST_F(TrackRecordTest, DiffListsExactlyTheTwoReturnsOneLevelMoves) {
   EXPECT_GE(size(column["changed"][0]), size(column["changed"][1])) << column.dump();
 
   // The table form names the same two dates and the counts.
-  const CommandResult table = at(ledger(), {"series", kBenchmark, "--diff", "1", "2"});
+  const CommandResult table = run_at(ledger(), {"series", kBenchmark, "--diff", "1", "2"});
   ASSERT_EQ(table.exit_code, 0) << table.err;
   EXPECT_TRUE(contains(table.out, "2 changed, 0 added, 0 removed")) << table.out;
   EXPECT_TRUE(contains(table.out, before[row].date)) << table.out;
@@ -249,7 +244,7 @@ TEST_F(TrackRecordTest, DiffListsExactlyTheTwoReturnsOneLevelMoves) {
   ASSERT_EQ(same["columns"].size(), 1u);
   EXPECT_TRUE(same["columns"][0]["changed"].empty()) << same.dump();
   // A version that does not exist is not found.
-  EXPECT_EQ(at(ledger(), {"series", kBenchmark, "--diff", "1", "3"}).exit_code, 5);
+  EXPECT_EQ(run_at(ledger(), {"series", kBenchmark, "--diff", "1", "3"}).exit_code, 5);
 }
 
 TEST_F(TrackRecordTest, RevisedBenchmarkMarksRunsStaleAndRerunRevisesEachOnce) {
@@ -263,7 +258,7 @@ TEST_F(TrackRecordTest, RevisedBenchmarkMarksRunsStaleAndRerunRevisesEachOnce) {
     EXPECT_EQ(runs[i]["alpha"], old_runs_before[i]["alpha"]);
 
   // Dry run: lists the six runs and why, records nothing.
-  const CommandResult dry = at(ledger(), {"rerun", "--all-stale", "--dry-run"});
+  const CommandResult dry = run_at(ledger(), {"rerun", "--all-stale", "--dry-run"});
   ASSERT_EQ(dry.exit_code, 0) << dry.err;
   const auto dry_lines = lines_of(dry.out);
   EXPECT_EQ(dry_lines.size(), 6u) << dry.out;
@@ -325,35 +320,35 @@ TEST_F(TrackRecordTest, RevisedBenchmarkMarksRunsStaleAndRerunRevisesEachOnce) {
   }
 
   // A second re-run finds nothing left to do and records nothing.
-  const CommandResult again = at(ledger(), {"rerun", "--all-stale"});
+  const CommandResult again = run_at(ledger(), {"rerun", "--all-stale"});
   EXPECT_EQ(again.exit_code, 0) << again.err;
   EXPECT_TRUE(contains(again.out, "no stale runs")) << again.out;
-  const CommandResult again_dry = at(ledger(), {"rerun", "--all-stale", "--dry-run"});
+  const CommandResult again_dry = run_at(ledger(), {"rerun", "--all-stale", "--dry-run"});
   EXPECT_EQ(again_dry.exit_code, 0) << again_dry.err;
   EXPECT_FALSE(contains(again_dry.out, "would re-run")) << again_dry.out;
   EXPECT_EQ(count_of(ledger(), "runs"), 12);
-  EXPECT_EQ(at(ledger(), {"verify"}).exit_code, 0);
+  EXPECT_EQ(run_at(ledger(), {"verify"}).exit_code, 0);
 }
 
 TEST_F(TrackRecordTest, RerunOfAMissingRunIsNotFoundAndRecordsNothing) {
-  const CommandResult r = at(ledger(), {"rerun", "99"});
+  const CommandResult r = run_at(ledger(), {"rerun", "99"});
   EXPECT_EQ(r.exit_code, 5) << r.out << r.err;
-  const CommandResult dry = at(ledger(), {"rerun", "99", "--dry-run"});
+  const CommandResult dry = run_at(ledger(), {"rerun", "99", "--dry-run"});
   EXPECT_EQ(dry.exit_code, 5) << dry.out << dry.err;
   // One good id and one missing: all or nothing.
-  const CommandResult mixed = at(ledger(), {"rerun", "1", "99"});
+  const CommandResult mixed = run_at(ledger(), {"rerun", "1", "99"});
   EXPECT_EQ(mixed.exit_code, 5) << mixed.out << mixed.err;
   EXPECT_EQ(count_of(ledger(), "runs"), 6);
-  EXPECT_EQ(at(ledger(), {"rerun"}).exit_code, 2);
+  EXPECT_EQ(run_at(ledger(), {"rerun"}).exit_code, 2);
 }
 
 // compare: the benchmark revision, the changed parameters, the periods lost and gained and
 // every figure with its change b - a.
 TEST_F(TrackRecordTest, CompareShowsInputsParametersSampleAndFigures) {
   revise_benchmark(60, 1.04);
-  const CommandResult ev =
-      at(ledger(), {"evaluate", "trend-12m", "--benchmark", kBenchmark, "--rate", kRate, "--factor",
-                    kFactors, "--errors", "classic", "--from", "2005-01", "--format", "json"});
+  const CommandResult ev = run_at(
+      ledger(), {"evaluate", "trend-12m", "--benchmark", kBenchmark, "--rate", kRate, "--factor",
+                 kFactors, "--errors", "classic", "--from", "2005-01", "--format", "json"});
   ASSERT_EQ(ev.exit_code, 0) << ev.err;
   const std::int64_t b_id = json::parse(ev.out)[0]["run_id"];
   ASSERT_EQ(b_id, 7);
@@ -447,7 +442,7 @@ TEST_F(TrackRecordTest, CompareShowsInputsParametersSampleAndFigures) {
     }
 
   // The table form carries the revision summary and the parameter rows.
-  const CommandResult table = at(ledger(), {"compare", "1", "7"});
+  const CommandResult table = run_at(ledger(), {"compare", "1", "7"});
   ASSERT_EQ(table.exit_code, 0) << table.err;
   EXPECT_TRUE(contains(table.out, "v1 -> v2: 2 changed, 0 added, 0 removed")) << table.out;
   EXPECT_TRUE(contains(table.out, "parameter errors")) << table.out;
@@ -462,14 +457,14 @@ TEST_F(TrackRecordTest, CompareOfARunWithItselfFindsNoDifference) {
   EXPECT_TRUE(cmp["sample"]["periods_lost"].empty());
   for (const auto& in : cmp["inputs"]) EXPECT_TRUE(in["same"].get<bool>()) << in.dump();
   for (const auto& f : cmp["figures"]) EXPECT_EQ(f["change"], "") << f.dump();
-  EXPECT_EQ(at(ledger(), {"compare", "1", "42"}).exit_code, 5);
+  EXPECT_EQ(run_at(ledger(), {"compare", "1", "42"}).exit_code, 5);
 }
 
 // compare lists what either run has: the factor set and the factor terms of a multi-factor run
 // appear whichever side of the comparison it is on.
 TEST_F(TrackRecordTest, CompareListsInputsAndTermsOnlyOneRunHas) {
-  const CommandResult ev = at(ledger(), {"evaluate", "trend-12m", "--benchmark", kBenchmark,
-                                         "--rate", kRate, "--format", "json"});
+  const CommandResult ev = run_at(ledger(), {"evaluate", "trend-12m", "--benchmark", kBenchmark,
+                                             "--rate", kRate, "--format", "json"});
   ASSERT_EQ(ev.exit_code, 0) << ev.err;
   ASSERT_EQ(json::parse(ev.out)[0]["run_id"], 7);
   const json multi = show(ledger(), 1);  // trend-12m with the style factors
@@ -512,8 +507,8 @@ TEST_F(TrackRecordTest, DiffReportsAColumnTheNewVersionDropped) {
   const auto one = scratch_.write("ff2.csv",
                                   "date,SMB\n2020-01-31,0.01\n2020-02-29,0.01\n"
                                   "2020-03-31,0.02\n");
-  ASSERT_EQ(at(ledger(), {"ingest", "factor", both.string(), "--name", "ff"}).exit_code, 0);
-  ASSERT_EQ(at(ledger(), {"ingest", "factor", one.string(), "--name", "ff"}).exit_code, 0);
+  ASSERT_EQ(run_at(ledger(), {"ingest", "factor", both.string(), "--name", "ff"}).exit_code, 0);
+  ASSERT_EQ(run_at(ledger(), {"ingest", "factor", one.string(), "--name", "ff"}).exit_code, 0);
   const std::vector<std::string> dates{"2020-01-31", "2020-02-29", "2020-03-31"};
 
   // Back from 2 to 1 the column comes back: its periods are added.
@@ -534,29 +529,29 @@ TEST_F(TrackRecordTest, DiffReportsAColumnTheNewVersionDropped) {
   }
   EXPECT_TRUE(hml_removed) << "series --diff 1 2 does not report the dropped column HML:\n"
                            << forward.dump(1);
-  const CommandResult table = at(ledger(), {"series", "ff", "--diff", "1", "2"});
+  const CommandResult table = run_at(ledger(), {"series", "ff", "--diff", "1", "2"});
   EXPECT_TRUE(contains(table.out, "HML")) << table.out;
 }
 
 // reproduce: from the stored versions, even after an input was revised.
 TEST_F(TrackRecordTest, ReproduceSaysIdenticalAndAMissingRunIsNotFound) {
   for (int id : {1, 6}) {
-    const CommandResult r = at(ledger(), {"reproduce", std::to_string(id)});
+    const CommandResult r = run_at(ledger(), {"reproduce", std::to_string(id)});
     EXPECT_EQ(r.exit_code, 0) << r.out << r.err;
     EXPECT_TRUE(contains(r.out, "(identical)")) << r.out;
     EXPECT_TRUE(contains(r.out, "reproduced: every coefficient and statistic is identical"))
         << r.out;
   }
   revise_benchmark(200, 1.01);
-  const CommandResult pinned = at(ledger(), {"reproduce", "3"});
+  const CommandResult pinned = run_at(ledger(), {"reproduce", "3"});
   EXPECT_EQ(pinned.exit_code, 0) << pinned.out << pinned.err;
   EXPECT_TRUE(contains(pinned.out, "identical")) << pinned.out;
-  ASSERT_EQ(at(ledger(), {"rerun", "3"}).exit_code, 0);
-  const CommandResult fresh = at(ledger(), {"reproduce", "7"});
+  ASSERT_EQ(run_at(ledger(), {"rerun", "3"}).exit_code, 0);
+  const CommandResult fresh = run_at(ledger(), {"reproduce", "7"});
   EXPECT_EQ(fresh.exit_code, 0) << fresh.out << fresh.err;
   EXPECT_TRUE(contains(fresh.out, "identical")) << fresh.out;
 
-  const CommandResult missing = at(ledger(), {"reproduce", "999"});
+  const CommandResult missing = run_at(ledger(), {"reproduce", "999"});
   EXPECT_EQ(missing.exit_code, 5) << missing.out << missing.err;
   EXPECT_TRUE(contains(missing.err, "no run 999")) << missing.err;
   EXPECT_EQ(count_of(ledger(), "runs"), 7);
@@ -621,7 +616,7 @@ class RerunFlipTest : public ::testing::Test {
         {"ingest", "strategy", dir_.write("strategies.csv", strategies).string()},
         {"evaluate", "edge", "reverse", "steady", "--benchmark", "mkt", "--rate", "bills"}};
     for (const auto& c : commands) {
-      const CommandResult r = at(ledger(), c);
+      const CommandResult r = run_at(ledger(), c);
       ASSERT_EQ(r.exit_code, 0) << c[0] << ": " << r.err;
     }
     revised_ = dir_.write("strategies-revised.csv", revised);
@@ -644,7 +639,7 @@ TEST_F(RerunFlipTest, ConclusionSaysFlippedWhenSignificanceOrSignChanges) {
   for (const auto& [name, run] : old_runs)
     ASSERT_LT(run["coefficients"][0]["p_value"].get<double>(), 0.01) << name;
 
-  const CommandResult ingest = at(ledger(), {"ingest", "strategy", revised_.string()});
+  const CommandResult ingest = run_at(ledger(), {"ingest", "strategy", revised_.string()});
   ASSERT_EQ(ingest.exit_code, 0) << ingest.err;
   for (const char* name : {"edge", "reverse", "steady"})
     EXPECT_TRUE(contains(ingest.out, fmt::format("strategy {}: version 2", name))) << ingest.out;
@@ -673,12 +668,12 @@ TEST_F(RerunFlipTest, ConclusionSaysFlippedWhenSignificanceOrSignChanges) {
   EXPECT_EQ(conclusions["steady"], "conclusion unchanged");
 
   // The table form says it in the same words.
-  const CommandResult table = at(ledger(), {"rerun", "3", "--format", "csv"});
+  const CommandResult table = run_at(ledger(), {"rerun", "3", "--format", "csv"});
   ASSERT_EQ(table.exit_code, 0) << table.err;
   EXPECT_TRUE(contains(table.out, "conclusion unchanged")) << table.out;  // steady, again
-  EXPECT_EQ(at(ledger(), {"rerun", "--all-stale"}).exit_code, 0);
+  EXPECT_EQ(run_at(ledger(), {"rerun", "--all-stale"}).exit_code, 0);
   EXPECT_EQ(count_of(ledger(), "runs"), 7);
-  EXPECT_EQ(at(ledger(), {"verify"}).exit_code, 0);
+  EXPECT_EQ(run_at(ledger(), {"verify"}).exit_code, 0);
 }
 
 }  // namespace

@@ -42,18 +42,13 @@ using alphatrail::testing::copy_ledger;
 using alphatrail::testing::lines_of;
 using alphatrail::testing::read_file;
 using alphatrail::testing::run_alphatrail;
+using alphatrail::testing::run_at;
 using alphatrail::testing::ScratchDir;
 using alphatrail::testing::SixRunLedgerTest;
 using nlohmann::json;
 
 constexpr const char* kStrategies[] = {"trend-12m", "trend-3m",       "trend-6m",
                                        "carry-g10", "defensive-tilt", "crash-hedge"};
-
-CommandResult at(const std::string& ledger, const std::vector<std::string>& args) {
-  std::vector<std::string> all{"--ledger", ledger};
-  all.insert(all.end(), args.begin(), args.end());
-  return run_alphatrail(all);
-}
 
 void checkpoint(const fs::path& ledger) {
   SQLite::Database db(ledger.string(), SQLite::OPEN_READWRITE);
@@ -142,7 +137,7 @@ class VerifyLedgerTest : public SixRunLedgerTest {
   // altered copy is still a sound SQLite file.
   std::vector<std::string> expect_mismatch(const std::string& object, const std::string& problem) {
     EXPECT_EQ(integrity(ledger_path()), "ok") << "the edit should leave a sound SQLite file";
-    const CommandResult r = at(ledger(), {"verify"});
+    const CommandResult r = run_at(ledger(), {"verify"});
     EXPECT_EQ(r.exit_code, 7) << r.out << r.err;
     const auto lines = mismatches(r);
     EXPECT_TRUE(names(lines, object, problem))
@@ -160,7 +155,7 @@ TEST_F(VerifyLedgerTest, FreshDemoLedgerChecksOut) {
   for (const fs::path& ledger_file : {demo(), ledger_path()}) {
     SCOPED_TRACE(ledger_file.string());
     EXPECT_EQ(integrity(ledger_file), "ok");
-    const CommandResult r = at(ledger_file.string(), {"verify"});
+    const CommandResult r = run_at(ledger_file.string(), {"verify"});
     EXPECT_EQ(r.exit_code, 0) << r.out << r.err;
     EXPECT_TRUE(mismatches(r).empty()) << r.out;
     EXPECT_TRUE(contains(r.out, "everything checks out")) << r.out;
@@ -175,7 +170,7 @@ TEST_F(VerifyLedgerTest, FreshDemoLedgerChecksOut) {
         text_of(db, "SELECT record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
     EXPECT_TRUE(contains(r.out, "chain head " + head)) << r.out;
   }
-  EXPECT_EQ(at(ledger(), {"verify"}).out.find("checked 9 series versions and 6 runs"), 0u);
+  EXPECT_EQ(run_at(ledger(), {"verify"}).out.find("checked 9 series versions and 6 runs"), 0u);
 }
 
 TEST_F(VerifyLedgerTest, EditedObservationIsAContentHashMismatch) {
@@ -259,7 +254,7 @@ TEST_F(VerifyLedgerTest, EditedPackedValueIsAMismatchOfThatColumn) {
          {"UPDATE packed_columns SET numbers = x'" + edited +
           "' WHERE column_id = " + kTrend6mColumn});
   // The premise: loading reads the packed copy, so the edit changes what the run computes.
-  const CommandResult reproduce = at(ledger(), {"reproduce", "3"});
+  const CommandResult reproduce = run_at(ledger(), {"reproduce", "3"});
   EXPECT_EQ(reproduce.exit_code, 7) << reproduce.out << reproduce.err;
 
   const auto lines = expect_mismatch(
@@ -336,7 +331,7 @@ TEST_F(VerifyLedgerTest, PackedCopyOfTheWrongLengthIsAMismatchAndRefusedByLoadin
   EXPECT_EQ(lines.size(), 1u) << joined(lines);
 
   // Loading refuses it as a damaged ledger rather than reading past its end.
-  const CommandResult reproduce = at(ledger(), {"reproduce", "3"});
+  const CommandResult reproduce = run_at(ledger(), {"reproduce", "3"});
   EXPECT_EQ(reproduce.exit_code, 4) << reproduce.out << reproduce.err;
   EXPECT_TRUE(contains(reproduce.err,
                        fmt::format("the packed copy of column 'trend-6m' is corrupted: {} bytes "
@@ -355,10 +350,10 @@ TEST_F(VerifyLedgerTest, ColumnsWithoutPackedCopiesLoadFromTheirJson) {
   }
   tamper(ledger_path(), {"packed_columns_no_delete"}, {"DELETE FROM packed_columns"});
   for (int run = 1; run <= 6; ++run) {
-    const CommandResult r = at(ledger(), {"reproduce", std::to_string(run)});
+    const CommandResult r = run_at(ledger(), {"reproduce", std::to_string(run)});
     EXPECT_EQ(r.exit_code, 0) << "run " << run << ": " << r.out << r.err;
   }
-  const CommandResult r = at(ledger(), {"verify"});
+  const CommandResult r = run_at(ledger(), {"verify"});
   EXPECT_EQ(r.exit_code, 0) << r.out << r.err;
   EXPECT_TRUE(contains(r.out, "everything checks out")) << r.out;
 }
@@ -436,12 +431,12 @@ TEST_F(VerifyLedgerTest, DeletedRunInTheMiddleIsAGapAndABrokenChain) {
 // The last run has no successor to betray its removal; the chain head printed changes, which is
 // what a reader who noted the head compares.
 TEST_F(VerifyLedgerTest, DeletedLastRunChangesTheChainHead) {
-  const CommandResult before = at(ledger(), {"verify"});
+  const CommandResult before = run_at(ledger(), {"verify"});
   ASSERT_EQ(before.exit_code, 0) << before.out;
   tamper(ledger_path(), {"runs_no_delete", "run_inputs_no_delete", "run_coefficients_no_delete"},
          {"DELETE FROM run_inputs WHERE run_id = 6",
           "DELETE FROM run_coefficients WHERE run_id = 6", "DELETE FROM runs WHERE run_id = 6"});
-  const CommandResult after = at(ledger(), {"verify"});
+  const CommandResult after = run_at(ledger(), {"verify"});
   const auto head = [](const std::string& out) {
     const auto at = out.find("chain head ");
     return at == std::string::npos ? std::string() : out.substr(at + 11, 64);
@@ -504,10 +499,10 @@ TEST_F(VerifyLedgerTest, EditedVersionDescriptionIsDetected) {
             " WHERE version_id = (SELECT version_id FROM "
             "series_versions JOIN series USING (series_id) WHERE name = 'alder-vale-composite')"});
     if (edit.rfind("frequency", 0) == 0) {  // the premise: the edit changes what a run computes
-      const CommandResult reproduce = at(ledger(), {"reproduce", "1"});
+      const CommandResult reproduce = run_at(ledger(), {"reproduce", "1"});
       EXPECT_NE(reproduce.exit_code, 0) << reproduce.out;
     }
-    const CommandResult r = at(ledger(), {"verify"});
+    const CommandResult r = run_at(ledger(), {"verify"});
     EXPECT_EQ(r.exit_code, 7) << "verify passes a ledger whose version description was edited:\n"
                               << r.out;
     EXPECT_TRUE(names(mismatches(r), "series alder-vale-composite version 1", "")) << r.out;
@@ -570,7 +565,7 @@ TEST_F(VerifyLedgerTest, GarbageBytesInTheFileFailWithoutACrash) {
       copy_ledger(source, ledger_path());
       write_garbage_page(ledger_path(), page, page_size);
       EXPECT_NE(integrity(ledger_path()), "ok");
-      const CommandResult r = at(ledger(), {"verify"});
+      const CommandResult r = run_at(ledger(), {"verify"});
       EXPECT_TRUE(r.exit_code == 4 || r.exit_code == 7) << r.exit_code << "\n" << r.out << r.err;
       EXPECT_FALSE(contains(r.out, "everything checks out")) << r.out;
       EXPECT_EQ(r.err.rfind("alphatrail: error: ", 0), 0u) << r.err;
@@ -620,7 +615,7 @@ TEST_F(VerifyLedgerTest, DamagedFileReportHasOneLinePerFinding) {
   for (std::int64_t page = pages; page > pages / 2 && reports < 3; --page) {
     copy_ledger(older, ledger_path());
     write_garbage_page(ledger_path(), page, page_size);
-    const CommandResult r = at(ledger(), {"verify"});
+    const CommandResult r = run_at(ledger(), {"verify"});
     if (r.exit_code != 7) continue;
     ++reports;
     SCOPED_TRACE(fmt::format("garbage over page {} of {}", page, pages));
@@ -637,7 +632,7 @@ TEST_F(VerifyLedgerTest, StoredTextCannotForgeReportLines) {
   forged += std::string(64 - forged.size(), 'f');
   tamper(ledger_path(), {"runs_no_update"},
          {"UPDATE runs SET inputs_hash = '" + forged + "' WHERE run_id = 2"});
-  const CommandResult r = at(ledger(), {"verify"});
+  const CommandResult r = run_at(ledger(), {"verify"});
   ASSERT_EQ(r.exit_code, 7) << r.out << r.err;
   EXPECT_TRUE(names(mismatches(r), "run 2", "inputs hash")) << r.out;
   expect_one_line_per_finding(r);
@@ -648,13 +643,13 @@ TEST_F(VerifyLedgerTest, DamagedHeaderOrTruncatedFileFailsWithoutACrash) {
     std::fstream f(ledger_path(), std::ios::in | std::ios::out | std::ios::binary);
     f.write("garbage garbage garbage", 23);
   }
-  const CommandResult header = at(ledger(), {"verify"});
+  const CommandResult header = run_at(ledger(), {"verify"});
   EXPECT_EQ(header.exit_code, 4) << header.out << header.err;
   EXPECT_TRUE(contains(header.err, "not an SQLite database")) << header.err;
 
   copy_ledger(base(), ledger_path());
   fs::resize_file(ledger_path(), fs::file_size(base()) / 2);
-  const CommandResult truncated = at(ledger(), {"verify"});
+  const CommandResult truncated = run_at(ledger(), {"verify"});
   EXPECT_TRUE(truncated.exit_code == 4 || truncated.exit_code == 7)
       << truncated.exit_code << "\n"
       << truncated.out << truncated.err;
@@ -667,7 +662,7 @@ TEST_F(VerifyLedgerTest, DamagedHeaderOrTruncatedFileFailsWithoutACrash) {
 class QueryLedgerTest : public VerifyLedgerTest {
  protected:
   json query_json(const std::string& sql) {
-    const CommandResult r = at(ledger(), {"query", sql, "--format", "json"});
+    const CommandResult r = run_at(ledger(), {"query", sql, "--format", "json"});
     EXPECT_EQ(r.exit_code, 0) << sql << ": " << r.err;
     return r.exit_code == 0 ? json::parse(r.out) : json::array();
   }
@@ -677,7 +672,7 @@ class QueryLedgerTest : public VerifyLedgerTest {
     SCOPED_TRACE(sql);
     checkpoint(ledger_path());  // through a separate connection: everything is in the main file
     const std::string before = sha256_of_file(ledger_path());
-    const CommandResult r = at(ledger(), {"query", sql});
+    const CommandResult r = run_at(ledger(), {"query", sql});
     EXPECT_EQ(r.exit_code, 2) << r.out << r.err;
     EXPECT_TRUE(contains(r.err, "read-only")) << r.err;
     EXPECT_TRUE(contains(r.err, "nothing changed")) << r.err;
@@ -697,7 +692,7 @@ TEST_F(QueryLedgerTest, RunSummaryListsTheRunsAsRunsDoes) {
       "SELECT run_id, strategy, study, stale, revises_run_id, alpha, beta, observations FROM "
       "run_summary ORDER BY run_id");
   ASSERT_EQ(rows.size(), 6u) << rows.dump();
-  const CommandResult runs = at(ledger(), {"runs", "--format", "json"});
+  const CommandResult runs = run_at(ledger(), {"runs", "--format", "json"});
   ASSERT_EQ(runs.exit_code, 0);
   const json listed = json::parse(runs.out);
   for (std::size_t i = 0; i < rows.size(); ++i) {
@@ -764,7 +759,7 @@ TEST_F(QueryLedgerTest, ObservationsInJsonCsvAndTable) {
     EXPECT_EQ(rows[i]["value"].get<double>(), expected[i].second);
   }
 
-  const CommandResult csv = at(ledger(), {"query", sql, "--format", "csv"});
+  const CommandResult csv = run_at(ledger(), {"query", sql, "--format", "csv"});
   ASSERT_EQ(csv.exit_code, 0) << csv.err;
   const auto csv_lines = lines_of(csv.out);
   ASSERT_EQ(csv_lines.size(), 4u) << csv.out;
@@ -776,7 +771,7 @@ TEST_F(QueryLedgerTest, ObservationsInJsonCsvAndTable) {
         << csv_lines[i + 1];
   }
 
-  const CommandResult table = at(ledger(), {"query", sql, "--format", "table"});
+  const CommandResult table = run_at(ledger(), {"query", sql, "--format", "table"});
   ASSERT_EQ(table.exit_code, 0) << table.err;
   const auto table_lines = lines_of(table.out);
   ASSERT_EQ(table_lines.size(), 5u) << table.out;
@@ -792,18 +787,18 @@ TEST_F(QueryLedgerTest, ObservationsInJsonCsvAndTable) {
     EXPECT_NEAR(value, expected[i].second, 1e-12);
   }
   // The default format is the table.
-  EXPECT_EQ(at(ledger(), {"query", sql}).out, table.out);
+  EXPECT_EQ(run_at(ledger(), {"query", sql}).out, table.out);
 }
 
 TEST_F(QueryLedgerTest, NullsAndErrors) {
   const json nulls = query_json("SELECT NULL AS x, 1 AS y");
   EXPECT_EQ(nulls, json::parse(R"([{"x": null, "y": 1}])"));
   const CommandResult csv =
-      at(ledger(), {"query", "SELECT NULL AS x, 'a,b' AS y", "--format", "csv"});
+      run_at(ledger(), {"query", "SELECT NULL AS x, 'a,b' AS y", "--format", "csv"});
   EXPECT_EQ(csv.out, "x,y\n,\"a,b\"\n");
-  const CommandResult table = at(ledger(), {"query", "SELECT NULL AS x"});
+  const CommandResult table = run_at(ledger(), {"query", "SELECT NULL AS x"});
   EXPECT_TRUE(contains(table.out, "NULL")) << table.out;
-  const CommandResult bad = at(ledger(), {"query", "SELECT * FROM no_such_table"});
+  const CommandResult bad = run_at(ledger(), {"query", "SELECT * FROM no_such_table"});
   EXPECT_EQ(bad.exit_code, 2) << bad.err;
   EXPECT_TRUE(contains(bad.err, "query failed")) << bad.err;
   EXPECT_TRUE(contains(bad.err, "no_such_table")) << bad.err;
@@ -834,7 +829,7 @@ TEST_F(QueryLedgerTest, SecondStatementIsNeverRun) {
   checkpoint(ledger_path());
   const std::string before = sha256_of_file(ledger_path());
   const CommandResult r =
-      at(ledger(), {"query", "SELECT 1 AS one; DROP TABLE runs", "--format", "json"});
+      run_at(ledger(), {"query", "SELECT 1 AS one; DROP TABLE runs", "--format", "json"});
   EXPECT_EQ(r.exit_code, 2) << r.err;
   EXPECT_TRUE(contains(r.err, "query runs one SQL statement")) << r.err;
   EXPECT_EQ(r.out, "");

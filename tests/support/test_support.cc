@@ -184,6 +184,13 @@ CommandResult run_alphatrail(const std::vector<std::string>& args,
   return run_program(argv, env, cwd);
 }
 
+CommandResult run_at(const std::filesystem::path& ledger, const std::vector<std::string>& args,
+                     const std::vector<std::string>& env) {
+  std::vector<std::string> all{"--ledger", ledger.string()};
+  all.insert(all.end(), args.begin(), args.end());
+  return run_alphatrail(all, env);
+}
+
 std::vector<std::vector<double>> read_number_rows(const std::filesystem::path& file,
                                                   const std::string& header) {
   std::istringstream in(read_file(file));

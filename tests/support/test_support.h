@@ -50,6 +50,10 @@ CommandResult run_alphatrail(const std::vector<std::string>& args,
                              const std::vector<std::string>& env = {},
                              const std::filesystem::path& cwd = {});
 
+// Runs the binary on one ledger: run_alphatrail with "--ledger LEDGER" before the arguments.
+CommandResult run_at(const std::filesystem::path& ledger, const std::vector<std::string>& args,
+                     const std::vector<std::string>& env = {});
+
 // Runs an arbitrary program (no shell), capturing both streams.
 CommandResult run_program(const std::vector<std::string>& argv,
                           const std::vector<std::string>& env = {},
