@@ -10,7 +10,7 @@
 #include "cli/commands.h"
 #include "cli/exit_codes.h"
 #include "core/error.h"
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 #include "version.h"
 
 namespace alphatrail::cli {
@@ -72,7 +72,7 @@ int run_app(int argc, char** argv) {
                     fmt::format("the ledger stayed busy for {} ms (another command is writing); "
                                 "nothing was written; try again or raise "
                                 "ALPHATRAIL_BUSY_TIMEOUT_MS",
-                                ledger::busy_timeout_ms()));
+                                store::busy_timeout_ms()));
     return report(Failure::unusable_ledger,
                   fmt::format("ledger error: {}; nothing was written", e.what()));
   } catch (const std::exception& e) {

@@ -9,7 +9,7 @@
 #include "cli/json_diff.h"
 #include "cli/output.h"
 #include "core/series_diff.h"
-#include "ledger/series_store.h"
+#include "store/series_store.h"
 
 namespace alphatrail::cli {
 
@@ -37,9 +37,9 @@ std::string change(const ordered_json& a, const ordered_json& b) {
 }
 
 // Summarises what changed between two versions of one series.
-std::string revision_summary(ledger::Ledger& ledger, const std::string& series, int va, int vb) {
-  const auto a = ledger::load_version(ledger, series, va);
-  const auto b = ledger::load_version(ledger, series, vb);
+std::string revision_summary(store::Ledger& ledger, const std::string& series, int va, int vb) {
+  const auto a = store::load_version(ledger, series, va);
+  const auto b = store::load_version(ledger, series, vb);
   std::size_t added = 0;
   std::size_t removed = 0;
   std::size_t changed = 0;
@@ -52,7 +52,7 @@ std::string revision_summary(ledger::Ledger& ledger, const std::string& series, 
                      removed);
 }
 
-std::vector<std::int64_t> sample_keys(ledger::Ledger& ledger, std::int64_t run_id) {
+std::vector<std::int64_t> sample_keys(store::Ledger& ledger, std::int64_t run_id) {
   auto request = request_from_run(ledger, run_id, true);
   request.keep_series = true;
   auto pending = evaluate_request(ledger, request);
@@ -60,10 +60,10 @@ std::vector<std::int64_t> sample_keys(ledger::Ledger& ledger, std::int64_t run_i
 }
 
 void run_compare(const CompareOptions& o, const GlobalOptions& global) {
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::read_only, std::cerr);
-  const auto a = ledger::load_run(ledger, o.a);
-  const auto b = ledger::load_run(ledger, o.b);
+  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
+                                     store::OpenMode::read_only, std::cerr);
+  const auto a = store::load_run(ledger, o.a);
+  const auto b = store::load_run(ledger, o.b);
 
   ordered_json inputs = ordered_json::array();
   for (const auto& ia : a["inputs"]) {

@@ -12,7 +12,7 @@
 #include "core/series_file.h"
 #include "core/sha256.h"
 #include "core/text.h"
-#include "ledger/series_store.h"
+#include "store/series_store.h"
 
 namespace alphatrail::cli {
 
@@ -113,7 +113,7 @@ CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
   core::SeriesFile parsed = core::parse_series_file(o.file, bytes, parse);
   for (const auto& note : parsed.notes) notes << "alphatrail: note: " << note << '\n';
 
-  ledger::ContentMeta meta{core::series_kind_name(kind), stored_unit(kind, parse.unit),
+  record::ContentMeta meta{core::series_kind_name(kind), stored_unit(kind, parse.unit),
                            std::nullopt};
   if (kind == core::SeriesKind::rate) meta.quote = core::rate_quote_name(parse.quote);
 
@@ -125,7 +125,7 @@ CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
     checked.versions.reserve(parsed.columns.size());
     for (auto& column : parsed.columns) {
       std::string name = column.name;
-      std::vector<ledger::ColumnData> one;
+      std::vector<record::ColumnData> one;
       one.push_back(std::move(column));
       checked.versions.push_back({name, meta, core::value_unit_name(parse.unit), std::move(one)});
     }
@@ -133,10 +133,10 @@ CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
   return checked;
 }
 
-void store_file(ledger::Ledger& ledger, CheckedFile checked, std::ostream& out) {
-  std::vector<ledger::StoreOutcome> outcomes;
+void store_file(store::Ledger& ledger, CheckedFile checked, std::ostream& out) {
+  std::vector<store::StoreOutcome> outcomes;
   ledger.write_transaction([&] {
-    outcomes = ledger::store_versions(ledger, std::move(checked.versions), checked.source);
+    outcomes = store::store_versions(ledger, std::move(checked.versions), checked.source);
   });
 
   int added = 0;
@@ -159,7 +159,7 @@ void store_file(ledger::Ledger& ledger, CheckedFile checked, std::ostream& out) 
 void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& o,
                  std::ostream& out, std::ostream& notes) {
   CheckedFile checked = check_file(o, notes);  // before the ledger is opened (or created)
-  auto ledger = ledger::Ledger::open(ledger_path, ledger::OpenMode::create, notes);
+  auto ledger = store::Ledger::open(ledger_path, store::OpenMode::create, notes);
   store_file(ledger, std::move(checked), out);
 }
 
@@ -189,7 +189,7 @@ void setup_ingest(CLI::App& app, const GlobalOptions& global) {
       ->check(CLI::IsMember({"yield", "discount"}));
   cmd->add_option("--note", o->note, "Note stored with the new versions");
   cmd->callback([o, &global] {
-    ingest_file(ledger::resolve_ledger_path(global.ledger), *o, std::cout, std::cerr);
+    ingest_file(store::resolve_ledger_path(global.ledger), *o, std::cout, std::cerr);
   });
 }
 

@@ -5,17 +5,17 @@
 #include <sstream>
 
 #include "cli/commands.h"
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
 namespace {
 
 void run_init(const GlobalOptions& global) {
-  const auto path = ledger::resolve_ledger_path(global.ledger);
+  const auto path = store::resolve_ledger_path(global.ledger);
   const bool existed = std::filesystem::exists(path);
   std::ostringstream notices;  // init reports on stdout: creating is its job
-  auto ledger = ledger::Ledger::open(path, ledger::OpenMode::create, notices);
+  auto ledger = store::Ledger::open(path, store::OpenMode::create, notices);
   std::cout << notices.str();
   if (existed && notices.str().empty())
     std::cout << fmt::format("ledger {} is up to date (schema version {})\n", path.string(),

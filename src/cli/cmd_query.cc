@@ -21,7 +21,7 @@
 #include "cli/commands.h"
 #include "cli/output.h"
 #include "core/error.h"
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
@@ -378,8 +378,8 @@ class FlushWhileWorking {
 };
 
 void run_query(const QueryOptions& o, const GlobalOptions& global) {
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::read_only, std::cerr);
+  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
+                                     store::OpenMode::read_only, std::cerr);
   sqlite3* db = ledger.db().getHandle();
   std::string refused;  // what the authorizer refused, for the message
   const StatementHandle statement = prepare_read(db, o.sql, refused);

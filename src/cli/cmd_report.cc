@@ -11,8 +11,8 @@
 #include "cli/evaluate.h"
 #include "cli/report.h"
 #include "core/error.h"
-#include "ledger/run_store.h"
-#include "ledger/series_store.h"
+#include "store/run_store.h"
+#include "store/series_store.h"
 #include "report/html.h"
 #include "report/reports.h"
 #include "version.h"
@@ -29,11 +29,11 @@ struct PageTarget {
   bool force = false;
 };
 
-std::string made_by(ledger::Ledger& ledger) {
+std::string made_by(store::Ledger& ledger) {
   return fmt::format(
       "Made by alphatrail {} on {} UTC from the ledger {}. Self-contained page: "
       "no script, nothing loaded from elsewhere.",
-      kEngineVersion, ledger::utc_now(), ledger.path().filename().string());
+      kEngineVersion, store::utc_now(), ledger.path().filename().string());
 }
 
 bool same_file(const std::filesystem::path& a, const std::filesystem::path& b) {
@@ -103,19 +103,19 @@ void write_page(const std::filesystem::path& output, const std::string& html,
   }
 }
 
-std::vector<ordered_json> load_runs(ledger::Ledger& ledger, const ledger::RunFilter& filter) {
+std::vector<ordered_json> load_runs(store::Ledger& ledger, const store::RunFilter& filter) {
   std::vector<ordered_json> runs;
-  for (const auto& summary : ledger::list_runs(ledger, filter))
-    runs.push_back(ledger::load_run(ledger, summary.run_id));
+  for (const auto& summary : store::list_runs(ledger, filter))
+    runs.push_back(store::load_run(ledger, summary.run_id));
   return runs;
 }
 
 }  // namespace
 
-void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
+void write_run_report(store::Ledger& ledger, std::int64_t run_id,
                       const std::filesystem::path& output, bool force) {
   report::RunReportInput in;
-  in.run = ledger::load_run(ledger, run_id);
+  in.run = store::load_run(ledger, run_id);
 
   // The charts need the sample period by period: recompute it from the run's own versions.
   EvaluateRequest request = request_from_run(ledger, run_id, true);
@@ -123,7 +123,7 @@ void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
   auto pending = evaluate_request(ledger, request);
   const PendingRun& p = pending.front();
   const std::string recomputed =
-      ledger::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
+      store::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
   in.reproduction =
       recomputed == in.run["inputs_hash"].get<std::string>()
           ? "recomputed from the run's own input versions and parameters; inputs hash identical"
@@ -148,21 +148,21 @@ void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
     request.rolling = {RollingChoice::Mode::automatic, 0};
     try {
       in.rolling =
-          ledger::result_json(evaluate_request(ledger, request).front().result, {})["rolling"];
+          store::result_json(evaluate_request(ledger, request).front().result, {})["rolling"];
     } catch (const Error&) {  // the sample is shorter than the window: the page says so
     }
   }
   if (in.run["revises_run_id"].is_number())
-    in.revised = ledger::load_run(ledger, in.run["revises_run_id"].get<std::int64_t>());
+    in.revised = store::load_run(ledger, in.run["revises_run_id"].get<std::int64_t>());
   in.made_by = made_by(ledger);
   write_page(output, report::run_report(in), {ledger.path(), force});
 }
 
-void write_strategy_report(ledger::Ledger& ledger, const std::string& strategy,
+void write_strategy_report(store::Ledger& ledger, const std::string& strategy,
                            const std::filesystem::path& output, bool force) {
   report::StrategyReportInput in;
   in.strategy = strategy;
-  for (const auto& v : ledger::version_history(ledger, strategy))
+  for (const auto& v : store::version_history(ledger, strategy))
     in.versions.push_back({v.version, v.ingested_at, v.content_hash, v.source_file, v.note});
   in.runs = load_runs(ledger, {strategy, "", 0, 0});
   if (in.runs.empty())
@@ -174,7 +174,7 @@ void write_strategy_report(ledger::Ledger& ledger, const std::string& strategy,
   write_page(output, report::strategy_report(in), {ledger.path(), force});
 }
 
-void write_study_report(ledger::Ledger& ledger, const std::string& study,
+void write_study_report(store::Ledger& ledger, const std::string& study,
                         const std::filesystem::path& output, bool force) {
   report::StudyReportInput in;
   in.study = study;
@@ -204,8 +204,8 @@ void run_report(const ReportOptions& o, const GlobalOptions& global) {
     throw Error(Failure::invalid_argument,
                 "name one subject: a RUN id, --strategy NAME or --study NAME (for example "
                 "`alphatrail report 7 -o run-7.html`)");
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::read_only, std::cerr);
+  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
+                                     store::OpenMode::read_only, std::cerr);
   if (o.run_id != 0)
     write_run_report(ledger, o.run_id, o.output, o.force);
   else if (!o.strategy.empty())

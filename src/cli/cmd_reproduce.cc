@@ -15,17 +15,17 @@ namespace alphatrail::cli {
 namespace {
 
 void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::read_only, std::cerr);
-  const ledger::RunRow row = ledger::existing_run_row(ledger, run_id);
+  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
+                                     store::OpenMode::read_only, std::cerr);
+  const store::RunRow row = store::existing_run_row(ledger, run_id);
   auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
   const auto& p = pending.front();
   const std::string recomputed_hash =
-      ledger::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
+      store::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
 
   // The reading counts runs in the ledger, so compare the figures, not the words.
   auto stored = record::read_result(run_id, row.result_json);
-  auto fresh = ledger::result_json(p.result, {});
+  auto fresh = store::result_json(p.result, {});
   for (auto* j : {&stored, &fresh}) j->erase("reading");
   const auto differences = json_differences(stored, fresh);
 

@@ -22,9 +22,9 @@ struct RerunOptions {
   Format format = Format::table;
 };
 
-std::string revisions_of(ledger::Ledger& ledger, std::int64_t run_id) {
+std::string revisions_of(store::Ledger& ledger, std::int64_t run_id) {
   std::vector<std::string> parts;
-  for (const auto& n : ledger::newer_input_versions(ledger, run_id))
+  for (const auto& n : store::newer_input_versions(ledger, run_id))
     parts.push_back(fmt::format("{} v{} -> v{}", n.series, n.version, n.latest_version));
   return parts.empty() ? "no newer input versions" : fmt::format("{}", fmt::join(parts, ", "));
 }
@@ -42,7 +42,7 @@ using core::fixed;
 
 }  // namespace
 
-std::vector<RerunOutcome> rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids,
+std::vector<RerunOutcome> rerun_runs(store::Ledger& ledger, const std::vector<std::int64_t>& ids,
                                      bool progress) {
   std::vector<RerunOutcome> outcomes;
   ledger.write_transaction([&] {
@@ -55,8 +55,8 @@ std::vector<RerunOutcome> rerun_runs(ledger::Ledger& ledger, const std::vector<s
     }
     const auto new_ids = record_runs(ledger, pending, progress);
     for (std::size_t i = 0; i < ids.size(); ++i)
-      outcomes.push_back({*ledger::read_run_row(ledger, ids[i]),
-                          *ledger::read_run_row(ledger, new_ids[i]),
+      outcomes.push_back({*store::read_run_row(ledger, ids[i]),
+                          *store::read_run_row(ledger, new_ids[i]),
                           1.0 - pending[i].settings.confidence});
   });
   return outcomes;
@@ -113,10 +113,10 @@ namespace {
 void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
   if (o.runs.empty() && !o.all_stale)
     throw Error(Failure::invalid_argument, "name the runs to re-run, or pass --all-stale");
-  const auto path = ledger::resolve_ledger_path(global.ledger);
-  const auto runs_to_redo = [&](ledger::Ledger& ledger) {
-    if (o.all_stale) return ledger::unrevised_stale_runs(ledger);
-    for (auto id : o.runs) ledger::existing_run_row(ledger, id);  // each must exist
+  const auto path = store::resolve_ledger_path(global.ledger);
+  const auto runs_to_redo = [&](store::Ledger& ledger) {
+    if (o.all_stale) return store::unrevised_stale_runs(ledger);
+    for (auto id : o.runs) store::existing_run_row(ledger, id);  // each must exist
     return o.runs;
   };
   const auto none_stale = [] {
@@ -124,20 +124,20 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
   };
 
   if (o.dry_run) {
-    auto ledger = ledger::Ledger::open(path, ledger::OpenMode::read_only, std::cerr);
+    auto ledger = store::Ledger::open(path, store::OpenMode::read_only, std::cerr);
     ledger.read_transaction([&] {
       const auto ids = runs_to_redo(ledger);
       if (ids.empty()) return none_stale();
       for (auto id : ids)
         std::cout << fmt::format("would re-run run {} ({}): {}\n", id,
-                                 ledger::read_run_row(ledger, id)->strategy,
+                                 store::read_run_row(ledger, id)->strategy,
                                  revisions_of(ledger, id));
     });
     return;
   }
   // The stale set is read, evaluated and recorded in one write transaction: every re-run uses
   // the versions of one snapshot, and a second rerun waits and then finds these runs revised.
-  auto ledger = ledger::Ledger::open(path, ledger::OpenMode::existing, std::cerr);
+  auto ledger = store::Ledger::open(path, store::OpenMode::existing, std::cerr);
   std::vector<RerunOutcome> outcomes;
   ledger.write_transaction([&] {
     const auto ids = runs_to_redo(ledger);

@@ -9,7 +9,7 @@
 #include "cli/output.h"
 #include "core/error.h"
 #include "core/series_diff.h"
-#include "ledger/series_store.h"
+#include "store/series_store.h"
 
 namespace alphatrail::cli {
 
@@ -21,9 +21,9 @@ struct SeriesOptions {
   Format format = Format::table;
 };
 
-void print_diff(ledger::Ledger& ledger, const SeriesOptions& o) {
-  const auto older = ledger::load_version(ledger, o.name, o.diff[0]);
-  const auto newer = ledger::load_version(ledger, o.name, o.diff[1]);
+void print_diff(store::Ledger& ledger, const SeriesOptions& o) {
+  const auto older = store::load_version(ledger, o.name, o.diff[0]);
+  const auto newer = store::load_version(ledger, o.name, o.diff[1]);
   auto json = nlohmann::ordered_json::array();
   Table table;
   table.header = {"column", "date", "change", "before", "after", "difference"};
@@ -83,7 +83,7 @@ nlohmann::ordered_json optional_json(const std::optional<std::string>& text) {
   return nullptr;
 }
 
-nlohmann::ordered_json version_json(const ledger::VersionInfo& v) {
+nlohmann::ordered_json version_json(const store::VersionInfo& v) {
   return {{"name", v.name},
           {"kind", v.kind},
           {"frequency", optional_json(v.frequency)},
@@ -104,7 +104,7 @@ nlohmann::ordered_json version_json(const ledger::VersionInfo& v) {
           {"note", v.note}};
 }
 
-void print_versions(const std::vector<ledger::VersionInfo>& versions, Format format, bool history) {
+void print_versions(const std::vector<store::VersionInfo>& versions, Format format, bool history) {
   if (format == Format::json) {
     auto array = nlohmann::ordered_json::array();
     for (const auto& v : versions) array.push_back(version_json(v));
@@ -149,17 +149,17 @@ void print_versions(const std::vector<ledger::VersionInfo>& versions, Format for
 }
 
 void run_series(const SeriesOptions& options, const GlobalOptions& global) {
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::read_only, std::cerr);
+  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
+                                     store::OpenMode::read_only, std::cerr);
   if (!options.diff.empty()) {
     if (options.name.empty())
       throw Error(Failure::invalid_argument,
                   "--diff needs a series name: series NAME --diff V1 V2");
     print_diff(ledger, options);
   } else if (options.name.empty())
-    print_versions(ledger::list_latest_versions(ledger), options.format, false);
+    print_versions(store::list_latest_versions(ledger), options.format, false);
   else
-    print_versions(ledger::version_history(ledger, options.name), options.format, true);
+    print_versions(store::version_history(ledger, options.name), options.format, true);
 }
 
 }  // namespace

@@ -5,7 +5,7 @@
 
 #include "cli/commands.h"
 #include "core/error.h"
-#include "ledger/verify.h"
+#include "store/verify.h"
 
 namespace alphatrail::cli {
 
@@ -25,9 +25,9 @@ std::string printable(const std::string& text) {
 }
 
 void run_verify(const GlobalOptions& global) {
-  auto ledger = ledger::Ledger::open(ledger::resolve_ledger_path(global.ledger),
-                                     ledger::OpenMode::read_only, std::cerr);
-  const auto report = ledger::verify_ledger(ledger);
+  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
+                                     store::OpenMode::read_only, std::cerr);
+  const auto report = store::verify_ledger(ledger);
   for (const auto& p : report.problems)
     std::cout << fmt::format("MISMATCH {}: {}\n", printable(p.object), printable(p.problem));
   std::cout << fmt::format(

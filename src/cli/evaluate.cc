@@ -16,8 +16,8 @@
 #include "core/number_text.h"
 #include "core/parallel.h"
 #include "core/timings.h"
-#include "ledger/run_store.h"
-#include "ledger/series_store.h"
+#include "store/run_store.h"
+#include "store/series_store.h"
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
 #include "report/reports.h"
@@ -36,9 +36,9 @@ bool is_pattern(const std::string& s) {
   return s.find_first_of("*?[") != std::string::npos;
 }
 
-std::vector<std::string> resolve_strategies(ledger::Ledger& ledger,
+std::vector<std::string> resolve_strategies(store::Ledger& ledger,
                                             const std::vector<std::string>& requested) {
-  const auto all = ledger::series_names(ledger, core::SeriesKind::strategy);
+  const auto all = store::series_names(ledger, core::SeriesKind::strategy);
   std::vector<std::string> chosen;
   std::set<std::string> seen;
   for (const auto& want : requested) {
@@ -64,18 +64,18 @@ std::optional<int> pinned(const EvaluateRequest& rq, const std::string& name) {
   return it->second;
 }
 
-ledger::LoadedVersion load_kind(ledger::Ledger& ledger, const EvaluateRequest& rq,
+store::LoadedVersion load_kind(store::Ledger& ledger, const EvaluateRequest& rq,
                                 const std::string& name, const std::vector<std::string>& kinds,
                                 const std::string& role) {
-  auto loaded = ledger::load_version(ledger, name, pinned(rq, name));
+  auto loaded = store::load_version(ledger, name, pinned(rq, name));
   if (std::find(kinds.begin(), kinds.end(), loaded.info.kind) == kinds.end())
     throw usage(fmt::format("'{}' is a {} series, not a {}; name a {} series with --{}", name,
                             loaded.info.kind, role, kinds.front(), role));
   return loaded;
 }
 
-core::ReturnInput to_return_input(std::string name, ledger::ColumnData&& column,
-                                  const ledger::VersionInfo& info) {
+core::ReturnInput to_return_input(std::string name, record::ColumnData&& column,
+                                  const store::VersionInfo& info) {
   core::ReturnInput in;
   in.name = std::move(name);
   in.data.dates = std::move(column.dates);
@@ -97,7 +97,7 @@ std::optional<core::Day> parse_bound(const std::string& text, const char* option
 }
 
 struct FactorChoice {
-  ledger::LoadedVersion version;
+  store::LoadedVersion version;
   std::vector<std::string> columns;
 };
 
@@ -131,7 +131,7 @@ using RunSink = std::function<void(std::vector<PendingRun>& chunk, std::size_t t
 // Evaluates every strategy the request names, handing the runs to `sink` as they are ready
 // until a strategy fails; then goes on only to name every failure, and throws. Must run inside
 // a transaction, so that every input comes from one snapshot.
-void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, const RunSink& sink) {
+void evaluate_in_snapshot(store::Ledger& ledger, const EvaluateRequest& rq, const RunSink& sink) {
   core::mark_phase("evaluate: start");
   core::EvaluationSettings settings;
   settings.covariance.kind = rq.errors;
@@ -190,15 +190,15 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
   }
 
   // Strategies and the frequency each is evaluated at.
-  std::vector<ledger::VersionRequest> wanted;
+  std::vector<store::VersionRequest> wanted;
   wanted.reserve(strategy_names.size());
   for (const auto& name : strategy_names) wanted.push_back({name, pinned(rq, name)});
   // The version rows now (the frequencies decide the plans); the observations chunk by chunk
   // while evaluating, below.
-  const std::vector<ledger::VersionInfo> strategies = ledger::find_versions(ledger, wanted);
+  const std::vector<store::VersionInfo> strategies = store::find_versions(ledger, wanted);
   core::mark_phase("evaluate: inputs found");
 
-  const auto detected = [](const ledger::VersionInfo& info, const std::string& what) {
+  const auto detected = [](const store::VersionInfo& info, const std::string& what) {
     if (!info.frequency)
       throw Error(Failure::bad_input,
                   fmt::format("cannot tell the frequency of {} '{}' from its dates; re-ingest it "
@@ -263,18 +263,18 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
   for (const auto& fc : factors)
     factor_label += fmt::format("{}{}:{}", factor_label.empty() ? "" : "; ", fc.version.info.name,
                                 fmt::join(fc.columns, ","));
-  const auto input_of = [](const std::string& role, int position, const ledger::VersionInfo& info,
+  const auto input_of = [](const std::string& role, int position, const store::VersionInfo& info,
                            std::vector<std::string> columns) {
-    return ledger::RunInput{role,         position,          info.version_id,   info.name,
+    return store::RunInput{role,         position,          info.version_id,   info.name,
                             info.version, info.content_hash, std::move(columns)};
   };
-  const auto pending_run = [&](const Plan& plan, const ledger::VersionInfo& strategy,
+  const auto pending_run = [&](const Plan& plan, const store::VersionInfo& strategy,
                                core::EvaluationResult&& result) {
     PendingRun p;
     p.result = std::move(result);
     p.settings = settings;
     p.settings.rolling_window = plan.rolling_window;
-    ledger::NewRun& run = p.run;
+    store::NewRun& run = p.run;
     run.strategy = strategy.name;
     run.benchmark = benchmark.info.name;
     run.rate = fmt::format("{}:{}", rate.info.name, plan.tenor);
@@ -300,7 +300,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
     const Plan& plan = entry;  // named: lambdas capture it
     core::SharedInputs shared;
     shared.benchmark = to_return_input(
-        benchmark.info.name, ledger::ColumnData(benchmark.columns.front()), benchmark.info);
+        benchmark.info.name, record::ColumnData(benchmark.columns.front()), benchmark.info);
     const auto tenor_it = std::find(rate.info.columns.begin(), rate.info.columns.end(), plan.tenor);
     auto tenor_column =
         rate.columns[static_cast<std::size_t>(tenor_it - rate.info.columns.begin())];
@@ -318,7 +318,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
             std::find(fc.version.info.columns.begin(), fc.version.info.columns.end(), col);
         shared.factors.push_back(to_return_input(
             col,
-            ledger::ColumnData(
+            record::ColumnData(
                 fc.version.columns[static_cast<std::size_t>(it - fc.version.info.columns.begin())]),
             fc.version.info));
       }
@@ -335,12 +335,12 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
       return std::min(count, first == 0 ? std::size_t{32} : first + 128);
     };
     const auto load_chunk = [&](std::size_t first) {
-      std::vector<ledger::VersionInfo> chunk;
+      std::vector<store::VersionInfo> chunk;
       for (std::size_t j = first; j < chunk_end(first); ++j)
         chunk.push_back(strategies[plan.members[j]]);
-      return ledger::load_observations(ledger, std::move(chunk));
+      return store::load_observations(ledger, std::move(chunk));
     };
-    std::vector<ledger::LoadedVersion> loaded = load_chunk(0);
+    std::vector<store::LoadedVersion> loaded = load_chunk(0);
     for (std::size_t first = 0; first < count; first = chunk_end(first)) {
       std::vector<core::ReturnInput> inputs;
       inputs.reserve(loaded.size());
@@ -348,7 +348,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
         inputs.push_back(
             to_return_input(version.info.name, std::move(version.columns.front()), version.info));
       std::vector<core::Evaluator::Outcome> outcomes;
-      std::vector<ledger::LoadedVersion> next;
+      std::vector<store::LoadedVersion> next;
       // This thread reads the next chunk and hands the last one's runs to the sink (which may
       // write them) while the workers evaluate this chunk.
       const auto evaluate = [&] { outcomes = evaluator.evaluate_many(inputs, 0, rq.keep_series); };
@@ -383,7 +383,7 @@ void evaluate_in_snapshot(ledger::Ledger& ledger, const EvaluateRequest& rq, con
 
 }  // namespace
 
-std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateRequest& rq) {
+std::vector<PendingRun> evaluate_request(store::Ledger& ledger, const EvaluateRequest& rq) {
   std::vector<PendingRun> pending;
   ledger.read_transaction([&] {
     evaluate_in_snapshot(ledger, rq, [&](std::vector<PendingRun>& chunk, std::size_t total) {
@@ -399,7 +399,7 @@ namespace {
 // Records evaluated runs inside the caller's write transaction; on_stored(n) follows the
 // n-th run stored. Each run is one more trial of its study and of its strategy, counted from
 // what the ledger holds (this transaction's runs included).
-std::vector<std::int64_t> record_in_transaction(ledger::Ledger& ledger,
+std::vector<std::int64_t> record_in_transaction(store::Ledger& ledger,
                                                 std::vector<PendingRun>& pending,
                                                 const std::function<void(std::size_t)>& on_stored) {
   std::vector<core::ReadingContext> contexts;
@@ -407,16 +407,16 @@ std::vector<std::int64_t> record_in_transaction(ledger::Ledger& ledger,
   std::map<std::string, int> study_runs;
   std::map<std::string, int> strategy_runs;
   const auto counted = [&](std::map<std::string, int>& counts, const std::string& name,
-                           int (*count)(ledger::Ledger&, const std::string&)) {
+                           int (*count)(store::Ledger&, const std::string&)) {
     auto [it, fresh] = counts.try_emplace(name, 0);
     if (fresh) it->second = count(ledger, name);
     return ++it->second;
   };
   for (const auto& p : pending) {
     const int study =
-        p.run.study.empty() ? 0 : counted(study_runs, p.run.study, ledger::count_study_runs);
+        p.run.study.empty() ? 0 : counted(study_runs, p.run.study, store::count_study_runs);
     contexts.push_back(
-        {p.run.study, study, counted(strategy_runs, p.run.strategy, ledger::count_strategy_runs)});
+        {p.run.study, study, counted(strategy_runs, p.run.strategy, store::count_strategy_runs)});
   }
   core::parallel_ranges(pending.size(), core::worker_count(pending.size(), 16),
                         [&](std::size_t first, std::size_t last) {
@@ -427,15 +427,15 @@ std::vector<std::int64_t> record_in_transaction(ledger::Ledger& ledger,
                             p.run.result = &p.result;
                           }
                         });
-  std::vector<const ledger::NewRun*> runs;
+  std::vector<const store::NewRun*> runs;
   runs.reserve(pending.size());
   for (const auto& p : pending) runs.push_back(&p.run);
-  return ledger::store_runs(ledger, runs, on_stored);
+  return store::store_runs(ledger, runs, on_stored);
 }
 
 }  // namespace
 
-std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<PendingRun>& pending,
+std::vector<std::int64_t> record_runs(store::Ledger& ledger, std::vector<PendingRun>& pending,
                                       bool progress) {
   std::vector<std::int64_t> run_ids;
   std::function<void(std::size_t)> on_stored;
@@ -445,7 +445,7 @@ std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<Pendin
   return run_ids;
 }
 
-std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger, const EvaluateRequest& rq,
+std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger, const EvaluateRequest& rq,
                                               bool progress) {
   // One write transaction: the inputs come from one snapshot, each chunk of runs is written
   // while the next is evaluated, and a failure anywhere records nothing.
@@ -615,16 +615,16 @@ void print_run_text(std::ostream& out, const ordered_json& run) {
   out << '\n';
 }
 
-void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std::int64_t>& runs,
+void print_runs(std::ostream& out, store::Ledger& ledger, const std::vector<std::int64_t>& runs,
                 Format format) {
   if (format == Format::json) {
     ordered_json array = ordered_json::array();
-    for (auto id : runs) array.push_back(ledger::load_run(ledger, id));
+    for (auto id : runs) array.push_back(store::load_run(ledger, id));
     print_json(out, array);
     return;
   }
   if (format == Format::table && runs.size() <= 3) {
-    for (auto id : runs) print_run_text(out, ledger::load_run(ledger, id));
+    for (auto id : runs) print_run_text(out, store::load_run(ledger, id));
     return;
   }
   // Many runs: one line each, read in one query (runs of one command have consecutive ids).
@@ -632,7 +632,7 @@ void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std
   table.header = {"run",  "strategy", "periods", "alpha (per period)", "alpha a year", "t", "p",
                   "beta", "R2",       "errors"};
   table.right_aligned = {true, false, true, true, true, true, true, true, true, false};
-  ledger::RunFilter filter;
+  store::RunFilter filter;
   filter.staleness = false;  // runs just recorded are not stale, and the table has no column for it
   if (!runs.empty()) {
     filter.first_run = *std::min_element(runs.begin(), runs.end());
@@ -643,7 +643,7 @@ void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std
     return std::isnan(v) ? std::string("n/a") : fmt::format("{:.{}f}", v, digits);
   };
   const auto summaries =
-      runs.empty() ? std::vector<ledger::RunSummary>{} : ledger::list_runs(ledger, filter);
+      runs.empty() ? std::vector<store::RunSummary>{} : store::list_runs(ledger, filter);
   for (const auto& r : summaries) {
     if (wanted.count(r.run_id) == 0) continue;
     table.rows.push_back(
@@ -679,8 +679,8 @@ std::string RollingChoice::text() const {
   return std::to_string(periods);
 }
 
-EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bool pin_versions) {
-  const ledger::RunRow row = ledger::existing_run_row(ledger, run_id);
+EvaluateRequest request_from_run(store::Ledger& ledger, std::int64_t run_id, bool pin_versions) {
+  const store::RunRow row = store::existing_run_row(ledger, run_id);
   // The one reader of stored parameters: a field it cannot read stops here (exit 8) rather
   // than deep in the evaluation. Re-runs and reproductions read the stored result too.
   const auto p = record::read_parameters(run_id, row.engine_version, row.parameters_json);
@@ -705,7 +705,7 @@ EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bo
   rq.study = row.study.value_or("");
   rq.note = row.note.value_or("");
   if (pin_versions)
-    for (const auto& in : ledger::read_run_inputs(ledger, run_id))
+    for (const auto& in : store::read_run_inputs(ledger, run_id))
       rq.pinned_versions[in.series] = in.version;
   return rq;
 }

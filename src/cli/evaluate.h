@@ -11,8 +11,8 @@
 
 #include "cli/output.h"
 #include "core/evaluation.h"
-#include "ledger/ledger.h"
-#include "ledger/run_store.h"
+#include "store/ledger.h"
+#include "store/run_store.h"
 #include "record/run_parameters.h"
 
 namespace alphatrail::cli {
@@ -55,40 +55,40 @@ struct EvaluateRequest {
 
 // One evaluated strategy, ready to be recorded.
 struct PendingRun {
-  ledger::NewRun run;
+  store::NewRun run;
   core::EvaluationResult result;
   core::EvaluationSettings settings;
 };
 
 // Evaluates every strategy the request names without recording anything. Throws
 // alphatrail::Error when any strategy cannot be evaluated.
-std::vector<PendingRun> evaluate_request(ledger::Ledger& ledger, const EvaluateRequest& request);
+std::vector<PendingRun> evaluate_request(store::Ledger& ledger, const EvaluateRequest& request);
 
 // Records evaluated runs in one transaction (the reading counts the runs already recorded).
-std::vector<std::int64_t> record_runs(ledger::Ledger& ledger, std::vector<PendingRun>& pending,
+std::vector<std::int64_t> record_runs(store::Ledger& ledger, std::vector<PendingRun>& pending,
                                       bool progress);
 
 // Rebuilds the request that produced a run: same parameters, and with pin_versions the
 // exact input versions it used (otherwise the latest).
-EvaluateRequest request_from_run(ledger::Ledger& ledger, std::int64_t run_id, bool pin_versions);
+EvaluateRequest request_from_run(store::Ledger& ledger, std::int64_t run_id, bool pin_versions);
 
 // Evaluates every strategy the request names and records each as a run, all in one
 // transaction. Shows a progress bar on stderr when `progress` and many strategies.
 // Returns the new run ids. Throws alphatrail::Error; on failure nothing is recorded.
-std::vector<std::int64_t> evaluate_and_record(ledger::Ledger& ledger,
+std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger,
                                               const EvaluateRequest& request, bool progress);
 
 // A re-run: the run revised, the run that revises it, and the significance level of both.
 struct RerunOutcome {
-  ledger::RunRow before;
-  ledger::RunRow after;
+  store::RunRow before;
+  store::RunRow after;
   double level = 0.05;
 };
 
 // Re-evaluates runs against the latest versions of their inputs with the same parameters and
 // records each as a run that revises the old one, in one write transaction (the caller's, when
 // one is open): every re-run uses the versions of one snapshot.
-std::vector<RerunOutcome> rerun_runs(ledger::Ledger& ledger, const std::vector<std::int64_t>& ids,
+std::vector<RerunOutcome> rerun_runs(store::Ledger& ledger, const std::vector<std::int64_t>& ids,
                                      bool progress);
 
 // Prints old and new figures of each re-run, with a plain verdict when a conclusion flipped.
@@ -96,7 +96,7 @@ void print_reruns(std::ostream& out, const std::vector<RerunOutcome>& outcomes, 
 
 // Prints runs in the chosen format: a block per run (a table for many), a JSON array of run
 // objects, or CSV with one row per run.
-void print_runs(std::ostream& out, ledger::Ledger& ledger, const std::vector<std::int64_t>& runs,
+void print_runs(std::ostream& out, store::Ledger& ledger, const std::vector<std::int64_t>& runs,
                 Format format);
 
 // Prints one run in full as text.

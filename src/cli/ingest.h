@@ -7,8 +7,8 @@
 #include <string>
 #include <vector>
 
-#include "ledger/ledger.h"
-#include "ledger/series_store.h"
+#include "store/ledger.h"
+#include "store/series_store.h"
 
 namespace alphatrail::cli {
 
@@ -30,8 +30,8 @@ struct IngestRequest {
 // A file read and validated, ready to be stored.
 struct CheckedFile {
   std::string file;
-  std::vector<ledger::NewVersion> versions;
-  ledger::SourceInfo source;
+  std::vector<store::NewVersion> versions;
+  store::SourceInfo source;
 };
 
 // Reads and validates the file the request names, writing notes on `notes`. Throws
@@ -40,7 +40,7 @@ CheckedFile check_file(const IngestRequest& request, std::ostream& notes);
 
 // Stores a checked file's series as new versions (inside the caller's transaction when one is
 // open), printing one line per series (or a summary for many) on `out`.
-void store_file(ledger::Ledger& ledger, CheckedFile checked, std::ostream& out);
+void store_file(store::Ledger& ledger, CheckedFile checked, std::ostream& out);
 
 // Validates the file and stores its series in the ledger in one transaction, printing one
 // line per series (or a summary for many) on `out` and notes on `notes`. Throws

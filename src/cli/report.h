@@ -9,20 +9,20 @@
 #include <filesystem>
 #include <string>
 
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
 // Writes the report of one run.
-void write_run_report(ledger::Ledger& ledger, std::int64_t run_id,
+void write_run_report(store::Ledger& ledger, std::int64_t run_id,
                       const std::filesystem::path& output, bool force = false);
 
 // Writes the history of a strategy across all its runs and revisions.
-void write_strategy_report(ledger::Ledger& ledger, const std::string& strategy,
+void write_strategy_report(store::Ledger& ledger, const std::string& strategy,
                            const std::filesystem::path& output, bool force = false);
 
 // Writes all runs of a study side by side.
-void write_study_report(ledger::Ledger& ledger, const std::string& study,
+void write_study_report(store::Ledger& ledger, const std::string& study,
                         const std::filesystem::path& output, bool force = false);
 
 }  // namespace alphatrail::cli

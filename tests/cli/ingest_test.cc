@@ -18,7 +18,7 @@
 #include <thread>
 #include <vector>
 
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 #include "support/test_support.h"
 
 namespace {
@@ -972,7 +972,7 @@ TEST_F(IngestTest, MissingLedgerIsCreatedAndSaysSo) {
   const CommandResult r = ingest({"strategy", file});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   EXPECT_EQ(r.err, "created ledger " + ledger_.string() + " (schema version " +
-                       std::to_string(alphatrail::ledger::current_schema_version()) + ")\n");
+                       std::to_string(alphatrail::store::current_schema_version()) + ")\n");
   EXPECT_TRUE(fs::exists(ledger_));
   // The second ingest finds it: no notice.
   const CommandResult again = ingest({"strategy", file});

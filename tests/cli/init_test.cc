@@ -13,13 +13,13 @@
 #include <string>
 #include <vector>
 
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 #include "support/test_support.h"
 
 namespace {
 
 namespace fs = std::filesystem;
-using alphatrail::ledger::current_schema_version;
+using alphatrail::store::current_schema_version;
 using alphatrail::testing::CommandResult;
 using alphatrail::testing::contains;
 using alphatrail::testing::read_file;

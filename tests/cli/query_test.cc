@@ -22,7 +22,7 @@
 #include <vector>
 
 #include "core/sha256.h"
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 #include "support/ledger_fixtures.h"
 #include "support/test_support.h"
 
@@ -155,7 +155,7 @@ TEST_F(QueryTest, PragmasThatReportRun) {
   const CommandResult version = query({"PRAGMA user_version", "--format", "csv"});
   EXPECT_EQ(version.exit_code, 0) << version.err;
   EXPECT_EQ(version.out,
-            "user_version\n" + std::to_string(alphatrail::ledger::current_schema_version()) + "\n");
+            "user_version\n" + std::to_string(alphatrail::store::current_schema_version()) + "\n");
 
   const CommandResult columns = query({"PRAGMA table_info(runs)", "--format", "json"});
   ASSERT_EQ(columns.exit_code, 0) << columns.err;
@@ -217,7 +217,7 @@ TEST_F(QueryTest, WritesAndChangesOfTheConnectionAreRefusedAndChangeNothing) {
 
   auto version = query({"PRAGMA user_version", "--format", "csv"});
   EXPECT_EQ(version.out,
-            "user_version\n" + std::to_string(alphatrail::ledger::current_schema_version()) + "\n");
+            "user_version\n" + std::to_string(alphatrail::store::current_schema_version()) + "\n");
   auto mode = query({"PRAGMA journal_mode", "--format", "csv"});
   EXPECT_EQ(mode.out, "journal_mode\nwal\n");
 }

@@ -29,7 +29,7 @@
 
 #include "core/dates.h"
 #include "core/sha256.h"
-#include "ledger/content.h"
+#include "record/content.h"
 #include "support/ledger_fixtures.h"
 #include "support/test_support.h"
 
@@ -213,7 +213,7 @@ TEST_F(VerifyLedgerTest, EditedObservationIsAContentHashMismatch) {
 struct PackedTrend6m {
   std::string days_hex;
   std::string numbers_hex;
-  alphatrail::ledger::ColumnData column;
+  alphatrail::record::ColumnData column;
 };
 
 PackedTrend6m read_packed_trend_6m(const std::string& ledger) {
@@ -224,7 +224,7 @@ PackedTrend6m read_packed_trend_6m(const std::string& ledger) {
                       "(version_id) JOIN series s USING (series_id) WHERE s.name = 'trend-6m'");
   if (!q.executeStep()) return {};
   return {q.getColumn(0).getString(), q.getColumn(1).getString(),
-          alphatrail::ledger::decode_values_json("trend-6m", q.getColumn(2).getString())};
+          alphatrail::record::decode_values_json("trend-6m", q.getColumn(2).getString())};
 }
 
 // The little-endian bytes of a double as the upper-case hex digits SQLite's hex() gives.
@@ -377,7 +377,7 @@ TEST_F(VerifyLedgerTest, EditedObservationWithRecomputedContentHashBreaksTheRuns
   const std::size_t colon = json_text.find("\":", json_text.size() / 2);
   const std::size_t end = json_text.find_first_of(",}", colon + 2);
   const std::string edited = json_text.substr(0, colon + 2) + "0.5" + json_text.substr(end);
-  const std::string hash = alphatrail::ledger::content_hash(
+  const std::string hash = alphatrail::record::content_hash(
       {"strategy", "decimal return", std::nullopt}, {{column, edited}});
   tamper(ledger_path(), {"version_columns_no_update", "series_versions_no_update"},
          {"UPDATE version_columns SET values_json = '" + edited + "' WHERE values_json = '" +

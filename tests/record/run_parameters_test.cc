@@ -1,5 +1,5 @@
 // Tests of the typed run parameters: the writer's canonical text, the reader's round trip and
-// its messages for every kind of field it cannot read (tests/ledger checks the writer against
+// its messages for every kind of field it cannot read (tests/store checks the writer against
 // every run of the fixture ledger).
 #include "record/run_parameters.h"
 

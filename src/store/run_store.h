@@ -13,9 +13,9 @@
 #include <vector>
 
 #include "core/evaluation.h"
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 // One input version of a run and its role in it.
 struct RunInput {
@@ -181,4 +181,4 @@ std::string chain_hash(const std::string& previous_record_hash, const std::strin
 
 inline const std::string kGenesisHash(64, '0');
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

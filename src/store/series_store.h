@@ -10,17 +10,17 @@
 #include <vector>
 
 #include "core/series_file.h"
-#include "ledger/content.h"
-#include "ledger/ledger.h"
+#include "record/content.h"
+#include "store/ledger.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 // A version to store, as prepared from an ingest file.
 struct NewVersion {
   std::string name;
-  ContentMeta meta;
+  record::ContentMeta meta;
   std::string input_unit;  // decimal | percent | levels: how the file stated the values
-  std::vector<ColumnData> columns;
+  std::vector<record::ColumnData> columns;
 };
 
 // Where a batch of versions came from.
@@ -80,7 +80,7 @@ std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name
 // A version with its observations.
 struct LoadedVersion {
   VersionInfo info;
-  std::vector<ColumnData> columns;
+  std::vector<record::ColumnData> columns;
 };
 
 // Loads a version (the latest when version is empty); throws Error(not_found) when absent.
@@ -110,4 +110,4 @@ std::string utc_now();
 // are not storable text (core/text.h) escaped as \xNN.
 std::string current_user();
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

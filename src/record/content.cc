@@ -1,4 +1,4 @@
-#include "ledger/content.h"
+#include "record/content.h"
 
 #include <fmt/compile.h>
 #include <fmt/format.h>
@@ -16,7 +16,7 @@
 #include "core/error.h"
 #include "core/sha256.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::record {
 
 namespace {
 
@@ -251,4 +251,4 @@ std::string content_hash(const ContentMeta& meta, const std::vector<EncodedColum
   return h.hex();
 }
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::record

@@ -1,7 +1,7 @@
 // Tests of the canonical content form: the exact JSON text of a column (it is hashed, so it
 // must never drift), bit-exact round trips, refusal of malformed text, and a content hash that
 // changes with every part of the content and nothing else.
-#include "ledger/content.h"
+#include "record/content.h"
 
 #include <gtest/gtest.h>
 
@@ -20,7 +20,7 @@
 
 namespace {
 
-namespace ledger = alphatrail::ledger;
+namespace record = alphatrail::record;
 namespace core = alphatrail::core;
 using alphatrail::Error;
 using alphatrail::Failure;
@@ -29,7 +29,7 @@ core::Day day(int y, int m, int d) {
   return core::to_day({y, m, d});
 }
 
-ledger::ColumnData column(const std::string& name, std::vector<core::Day> dates,
+record::ColumnData column(const std::string& name, std::vector<core::Day> dates,
                           std::vector<double> values) {
   return {name, std::move(dates), std::move(values)};
 }
@@ -47,7 +47,7 @@ const double kNaN = std::numeric_limits<double>::quiet_NaN();
 TEST(ValuesJson, EncodesDatesAscendingAndNullForMissing) {
   const auto c =
       column("a", {day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}, {0.1, kNaN, 1e-05});
-  EXPECT_EQ(ledger::encode_values_json(c),
+  EXPECT_EQ(record::encode_values_json(c),
             R"({"2021-01-31":0.1,"2021-02-28":null,"2021-03-31":1e-05})");
 }
 
@@ -70,14 +70,14 @@ TEST(ValuesJson, EncodesTheShortestRoundTripForm) {
            {std::numeric_limits<double>::max(), "1.7976931348623157e+308"},
        }) {
     const auto col = column("x", {day(2000, 1, 1)}, {c.value});
-    EXPECT_EQ(ledger::encode_values_json(col), std::string(R"({"2000-01-01":)") + c.text + "}")
+    EXPECT_EQ(record::encode_values_json(col), std::string(R"({"2000-01-01":)") + c.text + "}")
         << c.text;
   }
 }
 
 TEST(ValuesJson, EncodesEmptyColumnAsEmptyObjectAndPadsYears) {
-  EXPECT_EQ(ledger::encode_values_json(column("e", {}, {})), "{}");
-  EXPECT_EQ(ledger::encode_values_json(column("y", {day(1999, 12, 31), day(2100, 1, 1)}, {1, 2})),
+  EXPECT_EQ(record::encode_values_json(column("e", {}, {})), "{}");
+  EXPECT_EQ(record::encode_values_json(column("y", {day(1999, 12, 31), day(2100, 1, 1)}, {1, 2})),
             R"({"1999-12-31":1,"2100-01-01":2})");
 }
 
@@ -109,8 +109,8 @@ TEST(ValuesJson, RoundTripsBitForBit) {
     dates.push_back(day(2000, 1, 1) + static_cast<int>(i));
   const auto original = column("r", dates, values);
 
-  const std::string json = ledger::encode_values_json(original);
-  const auto decoded = ledger::decode_values_json("r", json);
+  const std::string json = record::encode_values_json(original);
+  const auto decoded = record::decode_values_json("r", json);
   EXPECT_EQ(decoded.name, "r");
   EXPECT_EQ(decoded.dates, original.dates);
   ASSERT_EQ(decoded.values.size(), values.size());
@@ -118,11 +118,11 @@ TEST(ValuesJson, RoundTripsBitForBit) {
     ASSERT_EQ(bits(decoded.values[i]), bits(values[i])) << "value " << i << ": " << values[i];
   EXPECT_TRUE(std::isnan(decoded.values.back()));
   // The decoded column encodes to the same text: the stored form is a fixed point.
-  EXPECT_EQ(ledger::encode_values_json(decoded), json);
+  EXPECT_EQ(record::encode_values_json(decoded), json);
 }
 
 TEST(ValuesJson, DecodesEmptyObject) {
-  const auto c = ledger::decode_values_json("none", "{}");
+  const auto c = record::decode_values_json("none", "{}");
   EXPECT_EQ(c.name, "none");
   EXPECT_TRUE(c.dates.empty());
   EXPECT_TRUE(c.values.empty());
@@ -131,7 +131,7 @@ TEST(ValuesJson, DecodesEmptyObject) {
 // Expects decoding to fail with a ledger error naming the column.
 void expect_malformed(const std::string& json) {
   try {
-    const auto c = ledger::decode_values_json("col-x", json);
+    const auto c = record::decode_values_json("col-x", json);
     ADD_FAILURE() << "accepted malformed text: " << json << " (" << c.dates.size() << " dates)";
   } catch (const Error& e) {
     EXPECT_EQ(e.kind(), Failure::unusable_ledger) << json;
@@ -188,7 +188,7 @@ TEST(ValuesJson, RejectsDatesOutOfOrderOrRepeated) {
 
 // Expects `encode` to refuse the column with an internal error that says nothing was written.
 template <typename Encode>
-void expect_refused(const ledger::ColumnData& c, const Encode& encode) {
+void expect_refused(const record::ColumnData& c, const Encode& encode) {
   try {
     encode(c);
     ADD_FAILURE() << "encoded a column holding " << c.values.back();
@@ -209,12 +209,12 @@ TEST(ValuesJson, RefusesInfinitiesAsAnInternalError) {
   const double inf = std::numeric_limits<double>::infinity();
   for (const double bad : {inf, -inf}) {
     const auto c = column("r", {day(2021, 1, 31), day(2021, 2, 28)}, {0.01, bad});
-    expect_refused(c, [](const ledger::ColumnData& x) { return ledger::encode_values_json(x); });
-    expect_refused(c, [](const ledger::ColumnData& x) { return ledger::encode_packed(x); });
+    expect_refused(c, [](const record::ColumnData& x) { return record::encode_values_json(x); });
+    expect_refused(c, [](const record::ColumnData& x) { return record::encode_packed(x); });
   }
   // NaN is the missing value: written as null, never as a number.
   const auto missing = column("r", {day(2021, 1, 31), day(2021, 2, 28)}, {0.01, -kNaN});
-  EXPECT_EQ(ledger::encode_values_json(missing), R"({"2021-01-31":0.01,"2021-02-28":null})");
+  EXPECT_EQ(record::encode_values_json(missing), R"({"2021-01-31":0.01,"2021-02-28":null})");
 }
 
 // --- packed form ----------------------------------------------------------------------------
@@ -234,7 +234,7 @@ TEST(PackedColumn, WritesLittleEndianDayNumbersAndDoubles) {
   // 2021-01-31 is day 18658 = 0x48e2 (51 years of 365 days, 13 leap days, 30 days);
   // 0.1 is 0x3fb999999999999a and -0.0 is the sign bit alone (IEEE 754 binary64).
   const auto c = column("a", {day(2021, 1, 31), day(1969, 12, 31)}, {0.1, -0.0});
-  const auto packed = ledger::encode_packed(c);
+  const auto packed = record::encode_packed(c);
   EXPECT_EQ(hex(packed.days), "e2480000ffffffff");
   EXPECT_EQ(hex(packed.numbers), "9a9999999999b93f0000000000000080");
 }
@@ -247,8 +247,8 @@ TEST(PackedColumn, WritesEveryMissingValueAsTheNaNJsonDecodesTo) {
   std::memcpy(&negative_payload, &b, sizeof b);
   ASSERT_TRUE(std::isnan(negative_payload));
   const auto c = column("m", {day(2021, 1, 31), day(2021, 2, 28)}, {negative_payload, -kNaN});
-  EXPECT_EQ(hex(ledger::encode_packed(c).numbers), "000000000000f87f000000000000f87f");
-  const auto from_json = ledger::decode_values_json("m", ledger::encode_values_json(c));
+  EXPECT_EQ(hex(record::encode_packed(c).numbers), "000000000000f87f000000000000f87f");
+  const auto from_json = record::decode_values_json("m", record::encode_values_json(c));
   EXPECT_EQ(bits(from_json.values[0]), 0x7ff8000000000000u);
 }
 
@@ -281,11 +281,11 @@ TEST(PackedColumn, RoundTripsAsTheJsonDoesBitForBit) {
   dates.push_back(day(9999, 12, 31));
   const auto original = column("r", dates, values);
 
-  const auto packed = ledger::encode_packed(original);
+  const auto packed = record::encode_packed(original);
   ASSERT_EQ(packed.days.size(), 4 * values.size());
   ASSERT_EQ(packed.numbers.size(), 8 * values.size());
-  const auto unpacked = ledger::decode_packed("r", packed.days, packed.numbers);
-  const auto from_json = ledger::decode_values_json("r", ledger::encode_values_json(original));
+  const auto unpacked = record::decode_packed("r", packed.days, packed.numbers);
+  const auto from_json = record::decode_values_json("r", record::encode_values_json(original));
   EXPECT_EQ(unpacked.name, "r");
   EXPECT_EQ(unpacked.dates, original.dates);
   EXPECT_EQ(unpacked.dates, from_json.dates);
@@ -304,16 +304,16 @@ TEST(PackedColumn, RoundTripsAsTheJsonDoesBitForBit) {
   EXPECT_EQ(core::format_date(unpacked.dates.front()), "0000-01-01");
   EXPECT_EQ(core::format_date(unpacked.dates.back()), "9999-12-31");
   // Packing the JSON's decoding gives the same bytes: the packed copy is a function of the JSON.
-  const auto repacked = ledger::encode_packed(from_json);
+  const auto repacked = record::encode_packed(from_json);
   EXPECT_EQ(repacked.days, packed.days);
   EXPECT_EQ(repacked.numbers, packed.numbers);
 }
 
 TEST(PackedColumn, StoredDaysAreTheYearsJsonCanWrite) {
-  EXPECT_EQ(ledger::kFirstStoredDay, day(0, 1, 1));
-  EXPECT_EQ(ledger::kLastStoredDay, day(9999, 12, 31));
-  EXPECT_EQ(core::format_date(ledger::kFirstStoredDay), "0000-01-01");
-  EXPECT_EQ(core::format_date(ledger::kLastStoredDay), "9999-12-31");
+  EXPECT_EQ(record::kFirstStoredDay, day(0, 1, 1));
+  EXPECT_EQ(record::kLastStoredDay, day(9999, 12, 31));
+  EXPECT_EQ(core::format_date(record::kFirstStoredDay), "0000-01-01");
+  EXPECT_EQ(core::format_date(record::kLastStoredDay), "9999-12-31");
 }
 
 TEST(PackedColumn, WritesAnyDayNumberInTwosComplement) {
@@ -321,7 +321,7 @@ TEST(PackedColumn, WritesAnyDayNumberInTwosComplement) {
       std::numeric_limits<core::Day>::min(), -719528, -1, 0, 1, 2932896,
       std::numeric_limits<core::Day>::max()};
   const auto packed =
-      ledger::encode_packed(column("d", dates, std::vector<double>(dates.size(), 1.5)));
+      record::encode_packed(column("d", dates, std::vector<double>(dates.size(), 1.5)));
   EXPECT_EQ(hex(packed.days),
             "00000080"    // INT32_MIN
             "5805f5ff"    // -719528, 0000-01-01
@@ -333,10 +333,10 @@ TEST(PackedColumn, WritesAnyDayNumberInTwosComplement) {
 }
 
 TEST(PackedColumn, RoundTripsAnEmptyColumn) {
-  const auto packed = ledger::encode_packed(column("e", {}, {}));
+  const auto packed = record::encode_packed(column("e", {}, {}));
   EXPECT_TRUE(packed.days.empty());
   EXPECT_TRUE(packed.numbers.empty());
-  const auto c = ledger::decode_packed("e", "", "");
+  const auto c = record::decode_packed("e", "", "");
   EXPECT_EQ(c.name, "e");
   EXPECT_TRUE(c.dates.empty());
   EXPECT_TRUE(c.values.empty());
@@ -346,7 +346,7 @@ TEST(PackedColumn, RoundTripsAnEmptyColumn) {
 void expect_corrupted(const std::string& days, const std::string& numbers,
                       const std::string& problem) {
   try {
-    const auto c = ledger::decode_packed("col-y", days, numbers);
+    const auto c = record::decode_packed("col-y", days, numbers);
     ADD_FAILURE() << "accepted " << days.size() << " bytes of days and " << numbers.size()
                   << " of numbers (" << c.dates.size() << " dates)";
   } catch (const Error& e) {
@@ -360,7 +360,7 @@ void expect_corrupted(const std::string& days, const std::string& numbers,
 }
 
 TEST(PackedColumn, RejectsSizesThatDisagree) {
-  const auto packed = ledger::encode_packed(
+  const auto packed = record::encode_packed(
       column("col-y", {day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}, {0.1, kNaN, 0.2}));
   ASSERT_EQ(packed.days.size(), 12u);
   expect_corrupted(packed.days.substr(0, 11), packed.numbers,
@@ -375,44 +375,44 @@ TEST(PackedColumn, RejectsSizesThatDisagree) {
 }
 
 TEST(PackedColumn, RejectsDatesOutOfOrderOrRepeated) {
-  const auto descending = ledger::encode_packed(
+  const auto descending = record::encode_packed(
       column("col-y", {day(2021, 1, 31), day(2021, 3, 31), day(2021, 2, 28)}, {0.1, 0.2, 0.3}));
   expect_corrupted(descending.days, descending.numbers,
                    "its dates are not ascending at observation 3");
   const auto repeated =
-      ledger::encode_packed(column("col-y", {day(2021, 1, 31), day(2021, 1, 31)}, {0.1, 0.2}));
+      record::encode_packed(column("col-y", {day(2021, 1, 31), day(2021, 1, 31)}, {0.1, 0.2}));
   expect_corrupted(repeated.days, repeated.numbers, "its dates are not ascending at observation 2");
 }
 
 TEST(PackedColumn, RejectsDaysBeyondTheStoredYears) {
   // Date arithmetic on such days would overflow; the JSON cannot hold them either.
-  const auto early = ledger::encode_packed(
-      column("col-y", {ledger::kFirstStoredDay - 1, day(2021, 1, 31)}, {0.1, 0.2}));
+  const auto early = record::encode_packed(
+      column("col-y", {record::kFirstStoredDay - 1, day(2021, 1, 31)}, {0.1, 0.2}));
   expect_corrupted(early.days, early.numbers,
                    "observation 1 has day number -719529, outside 0000-01-01 .. 9999-12-31");
-  const auto late = ledger::encode_packed(
+  const auto late = record::encode_packed(
       column("col-y", {day(2021, 1, 31), day(2021, 2, 28), std::numeric_limits<core::Day>::max()},
              {0.1, 0.2, 0.3}));
   expect_corrupted(late.days, late.numbers,
                    "observation 3 has day number 2147483647, outside 0000-01-01 .. 9999-12-31");
   // The edges themselves are stored days.
-  const auto edges = ledger::encode_packed(
-      column("col-y", {ledger::kFirstStoredDay, ledger::kLastStoredDay}, {0.1, 0.2}));
-  EXPECT_EQ(ledger::decode_packed("col-y", edges.days, edges.numbers).dates,
-            (std::vector<core::Day>{ledger::kFirstStoredDay, ledger::kLastStoredDay}));
+  const auto edges = record::encode_packed(
+      column("col-y", {record::kFirstStoredDay, record::kLastStoredDay}, {0.1, 0.2}));
+  EXPECT_EQ(record::decode_packed("col-y", edges.days, edges.numbers).dates,
+            (std::vector<core::Day>{record::kFirstStoredDay, record::kLastStoredDay}));
 }
 
 // --- content hash ---------------------------------------------------------------------------
 
 struct Content {
-  ledger::ContentMeta meta{"strategy", "decimal return", std::nullopt};
-  std::vector<ledger::ColumnData> columns{column(
+  record::ContentMeta meta{"strategy", "decimal return", std::nullopt};
+  std::vector<record::ColumnData> columns{column(
       "fund-one", {day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}, {0.01, -0.005, 0.012})};
 
   std::string hash() const {
-    std::vector<ledger::EncodedColumn> encoded;
-    for (const auto& c : columns) encoded.push_back({c.name, ledger::encode_values_json(c)});
-    return ledger::content_hash(meta, encoded);
+    std::vector<record::EncodedColumn> encoded;
+    for (const auto& c : columns) encoded.push_back({c.name, record::encode_values_json(c)});
+    return record::content_hash(meta, encoded);
   }
 };
 
@@ -433,7 +433,7 @@ TEST(ContentHash, IsStableForEqualContent) {
   EXPECT_EQ(other.hash(), h);
   Content decoded;
   decoded.columns[0] =
-      ledger::decode_values_json("fund-one", ledger::encode_values_json(Content{}.columns[0]));
+      record::decode_values_json("fund-one", record::encode_values_json(Content{}.columns[0]));
   EXPECT_EQ(decoded.hash(), h);
 }
 

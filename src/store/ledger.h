@@ -16,7 +16,7 @@
 #include <string>
 #include <unordered_map>
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 // PRAGMA application_id of every alphatrail ledger: the bytes "ATRL".
 inline constexpr int kApplicationId = 0x4154524C;
@@ -123,4 +123,4 @@ std::string schema_fingerprint(SQLite::Database& db);
 // default 10000).
 int busy_timeout_ms();
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

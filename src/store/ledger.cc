@@ -1,4 +1,4 @@
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 
 #include <SQLiteCpp/Statement.h>
 #include <SQLiteCpp/Transaction.h>
@@ -15,9 +15,9 @@
 #include <vector>
 
 #include "core/error.h"
-#include "ledger/migrations.h"
+#include "store/migrations.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 namespace {
 
@@ -390,4 +390,4 @@ std::string schema_fingerprint(SQLite::Database& db) {
   return out.str();
 }
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

@@ -1,6 +1,6 @@
 // The stored text of a run's result: written directly, it must be exactly what a
 // nlohmann-json document of it dumps (the form every stored run has), values and all.
-#include "ledger/run_store.h"
+#include "store/run_store.h"
 
 #include <gtest/gtest.h>
 
@@ -9,7 +9,7 @@
 #include <string>
 #include <vector>
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 namespace {
 
 using nlohmann::ordered_json;
@@ -111,4 +111,4 @@ TEST(RunStore, ResultTextIsNlohmannJsonsOwnDump) {
 }
 
 }  // namespace
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

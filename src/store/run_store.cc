@@ -1,4 +1,4 @@
-#include "ledger/run_store.h"
+#include "store/run_store.h"
 
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
@@ -15,12 +15,12 @@
 #include "core/parallel.h"
 #include "core/sha256.h"
 #include "core/timings.h"
-#include "ledger/series_store.h"
+#include "store/series_store.h"
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
 #include "version.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 namespace {
 
@@ -767,4 +767,4 @@ std::vector<NewerInput> newer_input_versions(Ledger& ledger, std::int64_t run_id
   return out;
 }
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

@@ -16,7 +16,7 @@
 #include "core/dates.h"
 #include "core/series_file.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::record {
 
 // One column of a version: dates ascending, NaN marks a missing value.
 using ColumnData = core::SeriesColumn;
@@ -73,4 +73,4 @@ struct EncodedColumn {
 // Returns the SHA-256 content hash of a version: metadata and every column in order.
 std::string content_hash(const ContentMeta& meta, const std::vector<EncodedColumn>& columns);
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::record

@@ -1,4 +1,4 @@
-#include "ledger/series_store.h"
+#include "store/series_store.h"
 
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
@@ -22,13 +22,13 @@
 #include "core/parallel.h"
 #include "core/text.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 namespace {
 
 struct Prepared {
-  std::vector<EncodedColumn> columns;
-  std::vector<PackedColumn> packed;  // the same columns, packed for loading
+  std::vector<record::EncodedColumn> columns;
+  std::vector<record::PackedColumn> packed;  // the same columns, packed for loading
   std::string hash;
   std::vector<core::Day> all_dates;  // union over columns, ascending
   std::int64_t missing = 0;
@@ -39,8 +39,8 @@ Prepared prepare(const NewVersion& v) {
   p.columns.reserve(v.columns.size());
   p.packed.reserve(v.columns.size());
   for (const auto& c : v.columns) {
-    p.columns.push_back({c.name, encode_values_json(c)});
-    p.packed.push_back(encode_packed(c));
+    p.columns.push_back({c.name, record::encode_values_json(c)});
+    p.packed.push_back(record::encode_packed(c));
     p.missing +=
         std::count_if(c.values.begin(), c.values.end(), [](double x) { return std::isnan(x); });
     p.all_dates.insert(p.all_dates.end(), c.dates.begin(), c.dates.end());
@@ -49,7 +49,7 @@ Prepared prepare(const NewVersion& v) {
     std::sort(p.all_dates.begin(), p.all_dates.end());
     p.all_dates.erase(std::unique(p.all_dates.begin(), p.all_dates.end()), p.all_dates.end());
   }
-  p.hash = content_hash(v.meta, p.columns);
+  p.hash = record::content_hash(v.meta, p.columns);
   return p;
 }
 
@@ -285,7 +285,7 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
       add_column.bind(3, p.columns[c].name);
       add_column.bindNoCopy(4, p.columns[c].values_json);
       add_column.exec();
-      const PackedColumn& packed = p.packed[c];
+      const record::PackedColumn& packed = p.packed[c];
       add_packed.reset();
       add_packed.bind(1, db.getLastInsertRowid());
       add_packed.bindNoCopy(2, packed.days.data(), static_cast<int>(packed.days.size()));
@@ -343,13 +343,13 @@ class PackedReader {
 
   // Returns the column stored as packed_columns row column_id; throws Error(ledger) when the
   // copy is corrupted or cannot be read.
-  ColumnData read(const std::string& name, std::int64_t column_id, std::int64_t days_bytes,
+  record::ColumnData read(const std::string& name, std::int64_t column_id, std::int64_t days_bytes,
                   std::int64_t numbers_bytes) {
-    ColumnData column = packed_column_shape(name, static_cast<std::size_t>(days_bytes),
+    record::ColumnData column = record::packed_column_shape(name, static_cast<std::size_t>(days_bytes),
                                             static_cast<std::size_t>(numbers_bytes));
     read_blob(days_, "days", column_id, column.dates.data(), days_bytes, name);
     read_blob(numbers_, "numbers", column_id, column.values.data(), numbers_bytes, name);
-    finish_packed(column);
+    record::finish_packed(column);
     return column;
   }
 
@@ -440,7 +440,7 @@ std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<Version
     std::size_t version;
     std::string name;
     std::string text;  // JSON to decode, when the column has no packed copy
-    ColumnData column;
+    record::ColumnData column;
     bool decoded = false;
   };
   std::deque<Pending> pending;  // push_back keeps references to earlier items valid
@@ -457,7 +457,7 @@ std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<Version
       Pending& item = pending[next++];
       lock.unlock();
       if (item.decoded) continue;
-      item.column = decode_values_json(item.name, item.text);
+      item.column = record::decode_values_json(item.name, item.text);
       std::string().swap(item.text);  // keep the peak low
     }
   };
@@ -528,4 +528,4 @@ std::vector<std::string> series_names(Ledger& ledger, core::SeriesKind kind) {
   return names;
 }
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

@@ -8,9 +8,9 @@
 #include <string>
 #include <vector>
 
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 struct VerifyProblem {
   std::string object;   // "series trend-12m version 2", "run 14", "ledger file"
@@ -30,4 +30,4 @@ struct VerifyReport {
 // with a value kept outside the ledger to detect that.
 VerifyReport verify_ledger(Ledger& ledger);
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

@@ -1,6 +1,6 @@
 // Tests of the series store: new series, unchanged content and next versions inside a write
 // transaction, all-or-nothing batches, bit-exact loading, version history and not-found errors.
-#include "ledger/series_store.h"
+#include "store/series_store.h"
 
 #include <SQLiteCpp/Database.h>
 #include <fmt/format.h>
@@ -21,7 +21,8 @@
 
 namespace {
 
-namespace ledger = alphatrail::ledger;
+namespace store = alphatrail::store;
+namespace record = alphatrail::record;
 namespace core = alphatrail::core;
 using alphatrail::Error;
 using alphatrail::Failure;
@@ -50,9 +51,9 @@ std::uint64_t bits(double x) {
   return b;
 }
 
-ledger::NewVersion returns(const std::string& name, std::vector<double> values,
+store::NewVersion returns(const std::string& name, std::vector<double> values,
                            const std::string& kind = "strategy") {
-  ledger::NewVersion v;
+  store::NewVersion v;
   v.name = name;
   v.meta = {kind, "decimal return", std::nullopt};
   v.input_unit = "decimal";
@@ -63,13 +64,13 @@ ledger::NewVersion returns(const std::string& name, std::vector<double> values,
 class SeriesStore : public ::testing::Test {
  protected:
   SeriesStore()
-      : ledger_(ledger::Ledger::open(dir_ / "ledger.db", ledger::OpenMode::create, notices_)) {}
+      : ledger_(store::Ledger::open(dir_ / "ledger.db", store::OpenMode::create, notices_)) {}
 
-  std::vector<ledger::StoreOutcome> store(std::vector<ledger::NewVersion> versions,
+  std::vector<store::StoreOutcome> store(std::vector<store::NewVersion> versions,
                                           const std::string& note = "") {
-    std::vector<ledger::StoreOutcome> out;
+    std::vector<store::StoreOutcome> out;
     ledger_.write_transaction([&] {
-      out = ledger::store_versions(ledger_, std::move(versions),
+      out = store::store_versions(ledger_, std::move(versions),
                                    {"input.csv", std::string(64, 'a'), note});
     });
     return out;
@@ -81,7 +82,7 @@ class SeriesStore : public ::testing::Test {
 
   ScratchDir dir_;
   std::ostringstream notices_;
-  ledger::Ledger ledger_;
+  store::Ledger ledger_;
 };
 
 TEST_F(SeriesStore, NewSeriesThenUnchangedThenNextVersion) {
@@ -95,7 +96,7 @@ TEST_F(SeriesStore, NewSeriesThenUnchangedThenNextVersion) {
   // The outcome's hash is the hash of the canonical content.
   const auto v = returns("fund", {0.01, -0.005, 0.012});
   EXPECT_EQ(out[0].content_hash,
-            ledger::content_hash(v.meta, {{"fund", ledger::encode_values_json(v.columns[0])}}));
+            record::content_hash(v.meta, {{"fund", record::encode_values_json(v.columns[0])}}));
   const std::string first_hash = out[0].content_hash;
 
   out = store({returns("fund", {0.01, -0.005, 0.012})});
@@ -157,7 +158,7 @@ TEST_F(SeriesStore, LoadVersionRoundTripsValuesBitForBit) {
   const std::vector<double> values{0.1,    1.0 / 3, kNaN,      -0.0,    5e-324,
                                    1e-300, -0.99,   0.1 + 0.2, 123.456, 110.0 / 100 - 1};
   store({returns("exact", values)}, "a note");
-  const auto loaded = ledger::load_version(ledger_, "exact");
+  const auto loaded = store::load_version(ledger_, "exact");
   ASSERT_EQ(loaded.columns.size(), 1u);
   const auto& c = loaded.columns[0];
   EXPECT_EQ(c.name, "exact");
@@ -194,15 +195,15 @@ TEST_F(SeriesStore, LoadVersionRoundTripsValuesBitForBit) {
 TEST_F(SeriesStore, LoadVersionPicksTheAskedVersion) {
   store({returns("fund", {0.01, 0.02})});
   store({returns("fund", {0.01, 0.03})});
-  EXPECT_EQ(ledger::load_version(ledger_, "fund").info.version, 2);
-  EXPECT_EQ(ledger::load_version(ledger_, "fund").columns[0].values[1], 0.03);
-  const auto first = ledger::load_version(ledger_, "fund", 1);
+  EXPECT_EQ(store::load_version(ledger_, "fund").info.version, 2);
+  EXPECT_EQ(store::load_version(ledger_, "fund").columns[0].values[1], 0.03);
+  const auto first = store::load_version(ledger_, "fund", 1);
   EXPECT_EQ(first.info.version, 1);
   EXPECT_EQ(first.columns[0].values[1], 0.02);
 }
 
 TEST_F(SeriesStore, SetWithSeveralColumnsKeepsTheirOrderAndDateUnion) {
-  ledger::NewVersion set;
+  store::NewVersion set;
   set.name = "ff";
   set.meta = {"factor", "decimal return", std::nullopt};
   set.input_unit = "percent";
@@ -211,7 +212,7 @@ TEST_F(SeriesStore, SetWithSeveralColumnsKeepsTheirOrderAndDateUnion) {
   set.columns.push_back({"mkt_rf", {d[0], d[1], d[2]}, {0.01, 0.02, 0.03}});
   const auto out = store({set});
   EXPECT_TRUE(out[0].new_series);
-  const auto loaded = ledger::load_version(ledger_, "ff");
+  const auto loaded = store::load_version(ledger_, "ff");
   ASSERT_EQ(loaded.columns.size(), 2u);
   EXPECT_EQ(loaded.columns[0].name, "smb");
   EXPECT_EQ(loaded.columns[1].name, "mkt_rf");
@@ -226,13 +227,13 @@ TEST_F(SeriesStore, SetWithSeveralColumnsKeepsTheirOrderAndDateUnion) {
 }
 
 TEST_F(SeriesStore, RateCurveKeepsItsQuote) {
-  ledger::NewVersion curve;
+  store::NewVersion curve;
   curve.name = "ust";
   curve.meta = {"rate", "percent yield", std::string("discount")};
   curve.input_unit = "percent";
   curve.columns.push_back({"3M", month_ends(2), {4.5, 4.25}});
   store({curve});
-  const auto loaded = ledger::load_version(ledger_, "ust");
+  const auto loaded = store::load_version(ledger_, "ust");
   EXPECT_EQ(loaded.info.quote, std::optional<std::string>("discount"));
   EXPECT_EQ(loaded.info.unit, "percent yield");
   // The same numbers quoted as yields are other content.
@@ -245,7 +246,7 @@ TEST_F(SeriesStore, VersionHistoryIsOldestFirst) {
   store({returns("fund", {0.01, 0.02})}, "second");
   store({returns("other", {0.05})});
   store({returns("fund", {0.01, 0.02, 0.03})}, "third");
-  const auto history = ledger::version_history(ledger_, "fund");
+  const auto history = store::version_history(ledger_, "fund");
   ASSERT_EQ(history.size(), 3u);
   for (int i = 0; i < 3; ++i) {
     EXPECT_EQ(history[i].name, "fund");
@@ -263,9 +264,9 @@ TEST_F(SeriesStore, VersionHistoryIsOldestFirst) {
 TEST_F(SeriesStore, ListHoldsTheLatestOfEachByKindThenName) {
   store({returns("zeta", {0.01}, "benchmark"), returns("beta", {0.01}), returns("alpha", {0.02})});
   store({returns("beta", {0.03})});
-  ledger::NewVersion factors = returns("aaa-factors", {0.01}, "factor");
+  store::NewVersion factors = returns("aaa-factors", {0.01}, "factor");
   store({factors});
-  const auto list = ledger::list_latest_versions(ledger_);
+  const auto list = store::list_latest_versions(ledger_);
   ASSERT_EQ(list.size(), 4u);
   EXPECT_EQ(list[0].name, "alpha");
   EXPECT_EQ(list[1].name, "beta");
@@ -285,21 +286,21 @@ TEST_F(SeriesStore, UnknownNamesAndVersionsAreNotFound) {
       EXPECT_NE(std::string(e.what()).find(message), std::string::npos) << e.what();
     }
   };
-  expect_not_found([&] { ledger::version_history(ledger_, "nope"); }, "no series named 'nope'");
-  expect_not_found([&] { ledger::load_version(ledger_, "nope"); }, "no series named 'nope'");
-  expect_not_found([&] { ledger::load_version(ledger_, "nope", 1); }, "no series named 'nope'");
-  expect_not_found([&] { ledger::load_version(ledger_, "fund", 2); },
+  expect_not_found([&] { store::version_history(ledger_, "nope"); }, "no series named 'nope'");
+  expect_not_found([&] { store::load_version(ledger_, "nope"); }, "no series named 'nope'");
+  expect_not_found([&] { store::load_version(ledger_, "nope", 1); }, "no series named 'nope'");
+  expect_not_found([&] { store::load_version(ledger_, "fund", 2); },
                    "series 'fund' has no version 2");
-  expect_not_found([&] { ledger::load_version(ledger_, "fund", 0); },
+  expect_not_found([&] { store::load_version(ledger_, "fund", 0); },
                    "series 'fund' has no version 0");
   // Names are exact: no case folding, no prefixes.
-  expect_not_found([&] { ledger::load_version(ledger_, "FUND"); }, "no series named 'FUND'");
-  expect_not_found([&] { ledger::load_version(ledger_, "fun"); }, "no series named 'fun'");
+  expect_not_found([&] { store::load_version(ledger_, "FUND"); }, "no series named 'FUND'");
+  expect_not_found([&] { store::load_version(ledger_, "fun"); }, "no series named 'fun'");
 }
 
 TEST_F(SeriesStore, ManySeriesInOneBatch) {
   // Enough series that encoding runs on several threads; each keeps its own content.
-  std::vector<ledger::NewVersion> batch;
+  std::vector<store::NewVersion> batch;
   // (fmt::format, not "s" + std::to_string(i): GCC 12 warns falsely on the latter, -Wrestrict.)
   for (int i = 0; i < 200; ++i) batch.push_back(returns(fmt::format("s{}", i), {i * 1e-4, 0.01}));
   const auto out = store(batch);
@@ -309,14 +310,14 @@ TEST_F(SeriesStore, ManySeriesInOneBatch) {
     EXPECT_TRUE(out[i].new_series);
   }
   EXPECT_EQ(rows("series"), 200);
-  EXPECT_EQ(ledger::load_version(ledger_, "s123").columns[0].values[0], 123 * 1e-4);
+  EXPECT_EQ(store::load_version(ledger_, "s123").columns[0].values[0], 123 * 1e-4);
   EXPECT_EQ(
       ledger_.db().execAndGet("SELECT count(DISTINCT content_hash) FROM series_versions").getInt(),
       200);
 }
 
 TEST(UtcNow, IsIsoWithMilliseconds) {
-  const std::string now = ledger::utc_now();
+  const std::string now = store::utc_now();
   EXPECT_TRUE(
       std::regex_match(now, std::regex(R"(20\d\d-[01]\d-[0-3]\dT[0-2]\d:[0-5]\d:[0-5]\d\.\d{3}Z)")))
       << now;
@@ -329,18 +330,18 @@ namespace {
 // Many versions at once: decoding overlaps reading on worker threads; the result must be that
 // of load_version on each, in request order, and an unknown name anywhere must fail cleanly.
 TEST_F(SeriesStore, LoadsManyVersionsAsLoadVersionDoes) {
-  std::vector<ledger::NewVersion> batch;
+  std::vector<store::NewVersion> batch;
   for (int i = 0; i < 120; ++i)
     batch.push_back(returns(fmt::format("s{}", i), {i * 1e-4, 0.01, kNaN, -0.02 + i * 1e-5}));
   store(batch);
   store({returns("s7", {0.5, 0.6})});  // s7 gets a version 2
-  std::vector<ledger::VersionRequest> wanted;
+  std::vector<store::VersionRequest> wanted;
   for (int i = 119; i >= 0; --i) wanted.push_back({fmt::format("s{}", i), std::nullopt});
   wanted.push_back({"s7", 1});
-  const auto many = ledger::load_versions(ledger_, wanted);
+  const auto many = store::load_versions(ledger_, wanted);
   ASSERT_EQ(many.size(), wanted.size());
   for (std::size_t r = 0; r < wanted.size(); ++r) {
-    const auto one = ledger::load_version(ledger_, wanted[r].name, wanted[r].version);
+    const auto one = store::load_version(ledger_, wanted[r].name, wanted[r].version);
     EXPECT_EQ(many[r].info.name, wanted[r].name);
     EXPECT_EQ(many[r].info.version, one.info.version);
     ASSERT_EQ(many[r].columns.size(), 1u);
@@ -357,7 +358,7 @@ TEST_F(SeriesStore, LoadsManyVersionsAsLoadVersionDoes) {
 
   wanted.insert(wanted.begin() + 60, {"missing", std::nullopt});
   try {
-    ledger::load_versions(ledger_, wanted);
+    store::load_versions(ledger_, wanted);
     ADD_FAILURE() << "an unknown series was loaded";
   } catch (const Error& e) {
     EXPECT_EQ(e.kind(), Failure::not_found);
@@ -372,7 +373,7 @@ namespace {
 // --- the packed copy ------------------------------------------------------------------------
 
 // Expects two loads to hold the same columns, every value bit for bit (NaN bits included).
-void expect_same_columns(const ledger::LoadedVersion& a, const ledger::LoadedVersion& b) {
+void expect_same_columns(const store::LoadedVersion& a, const store::LoadedVersion& b) {
   ASSERT_EQ(a.columns.size(), b.columns.size());
   for (std::size_t c = 0; c < a.columns.size(); ++c) {
     SCOPED_TRACE(a.columns[c].name);
@@ -397,8 +398,8 @@ const std::vector<double> kAwkward{0.1,
                                    -1e-300,
                                    1.0 / 3};
 
-ledger::NewVersion awkward_set() {
-  ledger::NewVersion set;
+store::NewVersion awkward_set() {
+  store::NewVersion set;
   set.name = "awkward";
   set.meta = {"factor", "decimal return", std::nullopt};
   set.input_unit = "decimal";
@@ -409,7 +410,7 @@ ledger::NewVersion awkward_set() {
 }
 
 // Runs SQL on the test's own connection with the guarding triggers of packed_columns dropped.
-void without_packed_triggers(ledger::Ledger& l, const std::string& sql) {
+void without_packed_triggers(store::Ledger& l, const std::string& sql) {
   l.db().exec("DROP TRIGGER packed_columns_no_update");
   l.db().exec("DROP TRIGGER packed_columns_no_delete");
   ASSERT_GE(l.db().exec(sql), 1) << sql;
@@ -423,12 +424,12 @@ TEST_F(SeriesStore, IngestWritesAPackedCopyOfEveryColumn) {
   SQLite::Statement q(ledger_.db(),
                       "SELECT c.column_name, p.days, p.numbers FROM version_columns c JOIN "
                       "packed_columns p ON p.column_id = c.column_id ORDER BY c.column_id");
-  std::vector<ledger::ColumnData> expected = set.columns;
+  std::vector<record::ColumnData> expected = set.columns;
   expected.push_back(returns("fund", {0.01, kNaN}).columns[0]);
   for (const auto& c : expected) {
     ASSERT_TRUE(q.executeStep());
     EXPECT_EQ(q.getColumn(0).getString(), c.name);
-    const auto packed = ledger::encode_packed(c);
+    const auto packed = record::encode_packed(c);
     ASSERT_EQ(q.getColumn(1).getBytes(), static_cast<int>(4 * c.dates.size()));
     ASSERT_EQ(q.getColumn(2).getBytes(), static_cast<int>(8 * c.dates.size()));
     EXPECT_TRUE(q.getColumn(1).isBlob());
@@ -450,19 +451,19 @@ TEST_F(SeriesStore, LoadReadsThePackedCopyWhenThereIsOne) {
                           "7b14ae47e17a843f"
                           "7b14ae47e17a943f"
                           "0000000000000840'");  // 0.01, 0.02, 3
-  const auto loaded = ledger::load_version(ledger_, "fund");
+  const auto loaded = store::load_version(ledger_, "fund");
   ASSERT_EQ(loaded.columns.size(), 1u);
   EXPECT_EQ(loaded.columns[0].values, (std::vector<double>{0.01, 0.02, 3.0}));
 }
 
 TEST_F(SeriesStore, LoadsTheSameWithAndWithoutThePackedCopy) {
-  std::vector<ledger::NewVersion> batch{awkward_set()};
+  std::vector<store::NewVersion> batch{awkward_set()};
   for (int i = 0; i < 40; ++i)
     batch.push_back(returns(fmt::format("s{}", i), {i * 1e-4, kNaN, -0.0, 5e-324 * i}));
   store(batch);
-  std::vector<ledger::VersionRequest> wanted{{"awkward", std::nullopt}};
+  std::vector<store::VersionRequest> wanted{{"awkward", std::nullopt}};
   for (int i = 0; i < 40; ++i) wanted.push_back({fmt::format("s{}", i), std::nullopt});
-  const auto packed = ledger::load_versions(ledger_, wanted);
+  const auto packed = store::load_versions(ledger_, wanted);
 
   // The packed copies read back what was stored, bit for bit.
   ASSERT_EQ(packed[0].columns.size(), 2u);
@@ -476,11 +477,11 @@ TEST_F(SeriesStore, LoadsTheSameWithAndWithoutThePackedCopy) {
   // As a ledger from before schema version 5 has them: half of the columns without a packed
   // copy, then none. Loading falls back to the JSON and gives the same data.
   without_packed_triggers(ledger_, "DELETE FROM packed_columns WHERE column_id % 2 = 0");
-  const auto mixed = ledger::load_versions(ledger_, wanted);
+  const auto mixed = store::load_versions(ledger_, wanted);
   ASSERT_EQ(rows("packed_columns"), 21);
   ledger_.db().exec("DELETE FROM packed_columns");
   ASSERT_EQ(rows("packed_columns"), 0);
-  const auto from_json = ledger::load_versions(ledger_, wanted);
+  const auto from_json = store::load_versions(ledger_, wanted);
   ASSERT_EQ(mixed.size(), packed.size());
   ASSERT_EQ(from_json.size(), packed.size());
   for (std::size_t r = 0; r < packed.size(); ++r) {
@@ -495,7 +496,7 @@ TEST_F(SeriesStore, CorruptedPackedCopyIsALedgerErrorNamingTheColumn) {
   store({returns("fund", {0.01, 0.02, 0.03})});
   const auto expect_corrupted = [&](const std::string& problem) {
     try {
-      const auto loaded = ledger::load_version(ledger_, "fund");
+      const auto loaded = store::load_version(ledger_, "fund");
       ADD_FAILURE() << "loaded a corrupted packed copy: " << loaded.columns[0].values.size()
                     << " values";
     } catch (const Error& e) {
@@ -549,21 +550,21 @@ TEST(PackedUpgrade, VersionOneLedgerLoadsItsColumnsFromTheirJson) {
   const auto path = dir / "v1.db";
   std::filesystem::copy_file(source_path("fixtures/ledgers/v1.db"), path);
   std::ostringstream notices;
-  auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
-  ASSERT_EQ(l.schema_version(), ledger::current_schema_version());
+  auto l = store::Ledger::open(path, store::OpenMode::existing, notices);
+  ASSERT_EQ(l.schema_version(), store::current_schema_version());
   EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 0);
-  const auto old = ledger::load_version(l, "fund-one");
+  const auto old = store::load_version(l, "fund-one");
   ASSERT_EQ(old.columns.size(), 1u);
   EXPECT_EQ(old.columns[0].dates,
             (std::vector<core::Day>{day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}));
   EXPECT_EQ(old.columns[0].values, (std::vector<double>{0.01, -0.005, 0.012}));
 
   l.write_transaction([&] {
-    ledger::store_versions(l, {returns("fund-one", {0.01, -0.005, 0.012, 0.002})},
+    store::store_versions(l, {returns("fund-one", {0.01, -0.005, 0.012, 0.002})},
                            {"more.csv", std::string(64, 'b'), ""});
   });
   EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 1);
-  const auto both = ledger::load_versions(l, {{"fund-one", 1}, {"fund-one", 2}});
+  const auto both = store::load_versions(l, {{"fund-one", 1}, {"fund-one", 2}});
   EXPECT_EQ(both[0].columns[0].values, (std::vector<double>{0.01, -0.005, 0.012}));
   EXPECT_EQ(both[1].columns[0].values, (std::vector<double>{0.01, -0.005, 0.012, 0.002}));
 }
@@ -574,25 +575,25 @@ TEST(PackedUpgrade, VersionFourLedgerKeepsItsColumnsReadable) {
   ScratchDir dir;
   const auto path = dir / "v4.db";
   std::ostringstream notices;
-  ledger::LoadedVersion before;
+  store::LoadedVersion before;
   {
-    auto l = ledger::Ledger::open(path, ledger::OpenMode::create, notices);
+    auto l = store::Ledger::open(path, store::OpenMode::create, notices);
     l.write_transaction([&] {
-      ledger::store_versions(l, {awkward_set()}, {"set.csv", std::string(64, 'c'), ""});
+      store::store_versions(l, {awkward_set()}, {"set.csv", std::string(64, 'c'), ""});
     });
-    before = ledger::load_version(l, "awkward");
+    before = store::load_version(l, "awkward");
     l.db().exec("DROP TABLE packed_columns");
     l.db().exec("DROP INDEX version_columns_in_order");
     l.db().exec("DROP TABLE ledger_marks");
     l.db().exec("PRAGMA user_version = 4");
   }
-  auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
+  auto l = store::Ledger::open(path, store::OpenMode::existing, notices);
   EXPECT_NE(notices.str().find(
-                fmt::format("from schema version 4 to {}", ledger::current_schema_version())),
+                fmt::format("from schema version 4 to {}", store::current_schema_version())),
             std::string::npos)
       << notices.str();
   EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 0);
-  const auto after = ledger::load_version(l, "awkward");
+  const auto after = store::load_version(l, "awkward");
   expect_same_columns(before, after);
   EXPECT_EQ(bits(after.columns[1].values[1]), 0x8000000000000000u);
   EXPECT_TRUE(std::isnan(after.columns[0].values[5]));

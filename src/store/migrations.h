@@ -4,7 +4,7 @@
 #include <string>
 #include <vector>
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 struct Migration {
   std::string file;  // e.g. "0001_create_series.sql"; its number is the user_version it sets
@@ -14,4 +14,4 @@ struct Migration {
 // Returns the migrations in order; migration i (0-based) brings the ledger to version i + 1.
 const std::vector<Migration>& embedded_migrations();
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

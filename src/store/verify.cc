@@ -1,4 +1,4 @@
-#include "ledger/verify.h"
+#include "store/verify.h"
 
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
@@ -13,13 +13,13 @@
 
 #include "core/dates.h"
 #include "core/error.h"
-#include "ledger/content.h"
-#include "ledger/run_store.h"
+#include "record/content.h"
+#include "store/run_store.h"
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
 #include "record/stored_text.h"
 
-namespace alphatrail::ledger {
+namespace alphatrail::store {
 
 namespace {
 
@@ -34,7 +34,7 @@ Word word_at(std::string_view bytes, std::size_t at) {
 
 // Shows a day read from a packed copy, which may lie outside the years a date can be written.
 std::string shown_day(core::Day day) {
-  if (day < kFirstStoredDay || day > kLastStoredDay) return fmt::format("day number {}", day);
+  if (day < record::kFirstStoredDay || day > record::kLastStoredDay) return fmt::format("day number {}", day);
   return core::format_date(day);
 }
 
@@ -49,9 +49,9 @@ std::string shown_value(double x) {
 
 // Returns what differs between a column's packed copy and its decoded JSON, nullopt when they
 // are equal byte for byte (dates, every bit of every value, the one NaN where JSON has null).
-std::optional<std::string> packed_mismatch(const ColumnData& column, std::string_view days,
+std::optional<std::string> packed_mismatch(const record::ColumnData& column, std::string_view days,
                                            std::string_view numbers) {
-  const PackedColumn expected = encode_packed(column);
+  const record::PackedColumn expected = record::encode_packed(column);
   if (days == expected.days && numbers == expected.numbers) return std::nullopt;
   const std::size_t n = column.dates.size();
   if (days.size() != expected.days.size() || numbers.size() != expected.numbers.size())
@@ -87,10 +87,10 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
     ++report.versions_checked;
     const std::string object = fmt::format(
         "series {} version {}", versions.getColumn(1).getString(), versions.getColumn(3).getInt());
-    ContentMeta meta{versions.getColumn(2).getString(), versions.getColumn(4).getString(),
+    record::ContentMeta meta{versions.getColumn(2).getString(), versions.getColumn(4).getString(),
                      std::nullopt};
     if (!versions.getColumn(5).isNull()) meta.quote = versions.getColumn(5).getString();
-    std::vector<EncodedColumn> encoded;
+    std::vector<record::EncodedColumn> encoded;
     std::vector<core::Day> dates;
     std::int64_t missing = 0;
     columns.reset();
@@ -98,7 +98,7 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
     while (columns.executeStep()) {
       encoded.push_back({columns.getColumn(0).getString(), columns.getColumn(1).getString()});
       try {
-        const auto column = decode_values_json(encoded.back().name, encoded.back().values_json);
+        const auto column = record::decode_values_json(encoded.back().name, encoded.back().values_json);
         dates.insert(dates.end(), column.dates.begin(), column.dates.end());
         missing += std::count_if(column.values.begin(), column.values.end(),
                                  [](double v) { return std::isnan(v); });
@@ -140,7 +140,7 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
                                  described, observed)});
     }
     const std::string stored = versions.getColumn(6).getString();
-    const std::string computed = content_hash(meta, encoded);
+    const std::string computed = record::content_hash(meta, encoded);
     if (stored != computed)
       report.problems.push_back(
           {object, fmt::format("content hash {} does not match its observations ({})",
@@ -212,4 +212,4 @@ VerifyReport verify_ledger(Ledger& ledger) {
   return report;
 }
 
-}  // namespace alphatrail::ledger
+}  // namespace alphatrail::store

@@ -1,7 +1,7 @@
 // Tests of the ledger file: migrations from zero equal schema/ledger.sql, opening modes and
 // their refusals, transactions that are all or nothing, and the triggers that keep every
 // table append-only.
-#include "ledger/ledger.h"
+#include "store/ledger.h"
 
 #include <SQLiteCpp/Database.h>
 #include <SQLiteCpp/Statement.h>
@@ -18,13 +18,13 @@
 #include <vector>
 
 #include "core/error.h"
-#include "ledger/migrations.h"
+#include "store/migrations.h"
 #include "support/test_support.h"
 
 namespace {
 
 namespace fs = std::filesystem;
-namespace ledger = alphatrail::ledger;
+namespace store = alphatrail::store;
 using alphatrail::Error;
 using alphatrail::Failure;
 using alphatrail::testing::CommandResult;
@@ -70,12 +70,12 @@ std::string dump_rows(SQLite::Database& db) {
 
 TEST(Migrations, FromZeroEqualTheReferenceSchema) {
   auto migrated = memory_db();
-  EXPECT_EQ(ledger::migrate(migrated), ledger::current_schema_version());
+  EXPECT_EQ(store::migrate(migrated), store::current_schema_version());
   auto reference = memory_db();
   reference.exec(reference_schema_sql());
 
-  const std::string fingerprint = ledger::schema_fingerprint(migrated);
-  EXPECT_EQ(fingerprint, ledger::schema_fingerprint(reference));
+  const std::string fingerprint = store::schema_fingerprint(migrated);
+  EXPECT_EQ(fingerprint, store::schema_fingerprint(reference));
   // The fingerprint covers every kind of object, so the comparison means something.
   for (const char* part :
        {"table series on series:", "table series_versions on series_versions:",
@@ -91,7 +91,7 @@ TEST(Migrations, ReferenceSchemaStatesTheCurrentVersion) {
   const std::string sql = reference_schema_sql();
   std::smatch m;
   ASSERT_TRUE(std::regex_search(sql, m, std::regex(R"(PRAGMA user_version = (\d+))"))) << sql;
-  EXPECT_EQ(std::stoi(m[1].str()), ledger::current_schema_version());
+  EXPECT_EQ(std::stoi(m[1].str()), store::current_schema_version());
   EXPECT_TRUE(contains(sql, "PRAGMA application_id = 0x4154524C"));
 }
 
@@ -109,13 +109,13 @@ TEST(Migrations, FingerprintIgnoresLayoutButNotContent) {
   spaced.replace(spaced.find(create), create.size(), "CREATE TABLE series (  -- inside\n\t\t");
   auto relaid = memory_db();
   relaid.exec(spaced);
-  EXPECT_EQ(ledger::schema_fingerprint(relaid), ledger::schema_fingerprint(reference));
+  EXPECT_EQ(store::schema_fingerprint(relaid), store::schema_fingerprint(reference));
 
   // A missing trigger does.
   auto missing = memory_db();
   missing.exec(reference_schema_sql());
   missing.exec("DROP TRIGGER version_columns_no_delete");
-  EXPECT_NE(ledger::schema_fingerprint(missing), ledger::schema_fingerprint(reference));
+  EXPECT_NE(store::schema_fingerprint(missing), store::schema_fingerprint(reference));
 
   // So does a changed message inside a trigger (string literals keep their spaces).
   std::string reworded = reference_schema_sql();
@@ -123,12 +123,12 @@ TEST(Migrations, FingerprintIgnoresLayoutButNotContent) {
   reworded.replace(reworded.find(text), text.size(), "'series  are immutable");
   auto changed = memory_db();
   changed.exec(reworded);
-  EXPECT_NE(ledger::schema_fingerprint(changed), ledger::schema_fingerprint(reference));
+  EXPECT_NE(store::schema_fingerprint(changed), store::schema_fingerprint(reference));
 }
 
 TEST(Migrations, FilesAreNumberedInOrder) {
-  const auto& migrations = ledger::embedded_migrations();
-  ASSERT_EQ(static_cast<int>(migrations.size()), ledger::current_schema_version());
+  const auto& migrations = store::embedded_migrations();
+  ASSERT_EQ(static_cast<int>(migrations.size()), store::current_schema_version());
   for (std::size_t i = 0; i < migrations.size(); ++i) {
     std::smatch m;
     ASSERT_TRUE(
@@ -142,14 +142,14 @@ TEST(Migrations, FilesAreNumberedInOrder) {
 TEST(Migrations, FromEveryVersionReachTheSameSchema) {
   auto reference = memory_db();
   reference.exec(reference_schema_sql());
-  const auto& migrations = ledger::embedded_migrations();
+  const auto& migrations = store::embedded_migrations();
   for (std::size_t start = 0; start <= migrations.size(); ++start) {
     auto db = memory_db();
     for (std::size_t i = 0; i < start; ++i) db.exec(migrations[i].sql);
     db.exec("PRAGMA user_version = " + std::to_string(start));
-    EXPECT_EQ(ledger::migrate(db), static_cast<int>(migrations.size() - start)) << start;
-    EXPECT_EQ(ledger::schema_fingerprint(db), ledger::schema_fingerprint(reference)) << start;
-    EXPECT_EQ(db.execAndGet("PRAGMA user_version").getInt(), ledger::current_schema_version());
+    EXPECT_EQ(store::migrate(db), static_cast<int>(migrations.size() - start)) << start;
+    EXPECT_EQ(store::schema_fingerprint(db), store::schema_fingerprint(reference)) << start;
+    EXPECT_EQ(db.execAndGet("PRAGMA user_version").getInt(), store::current_schema_version());
   }
 }
 
@@ -161,21 +161,21 @@ TEST(Migrations, UpgradedOldLedgerEqualsANewOne) {
   const fs::path path = dir / "v1.db";
   fs::copy_file(source_path("fixtures/ledgers/v1.db"), path);
   std::ostringstream notices;
-  auto upgraded = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
+  auto upgraded = store::Ledger::open(path, store::OpenMode::existing, notices);
   auto fresh = memory_db();
-  ledger::migrate(fresh);
-  EXPECT_EQ(ledger::schema_fingerprint(upgraded.db()), ledger::schema_fingerprint(fresh));
+  store::migrate(fresh);
+  EXPECT_EQ(store::schema_fingerprint(upgraded.db()), store::schema_fingerprint(fresh));
 }
 
 TEST(Migrations, SetMarksAndRunOnce) {
   auto db = memory_db();
-  ledger::migrate(db);
-  EXPECT_EQ(db.execAndGet("PRAGMA user_version").getInt(), ledger::current_schema_version());
-  EXPECT_EQ(db.execAndGet("PRAGMA application_id").getInt(), ledger::kApplicationId);
-  EXPECT_EQ(ledger::kApplicationId, 0x4154524C);
-  const std::string once = ledger::schema_fingerprint(db);
-  EXPECT_EQ(ledger::migrate(db), 0);
-  EXPECT_EQ(ledger::schema_fingerprint(db), once);
+  store::migrate(db);
+  EXPECT_EQ(db.execAndGet("PRAGMA user_version").getInt(), store::current_schema_version());
+  EXPECT_EQ(db.execAndGet("PRAGMA application_id").getInt(), store::kApplicationId);
+  EXPECT_EQ(store::kApplicationId, 0x4154524C);
+  const std::string once = store::schema_fingerprint(db);
+  EXPECT_EQ(store::migrate(db), 0);
+  EXPECT_EQ(store::schema_fingerprint(db), once);
 }
 
 TEST(Migrations, FailingMigrationLeavesNothing) {
@@ -183,7 +183,7 @@ TEST(Migrations, FailingMigrationLeavesNothing) {
   // the migration remains.
   auto db = memory_db();
   db.exec("CREATE TABLE version_columns (x)");
-  EXPECT_THROW(ledger::migrate(db), SQLite::Exception);
+  EXPECT_THROW(store::migrate(db), SQLite::Exception);
   EXPECT_EQ(db.execAndGet("PRAGMA user_version").getInt(), 0);
   EXPECT_EQ(db.execAndGet("PRAGMA application_id").getInt(), 0);
   EXPECT_EQ(db.execAndGet("SELECT count(*) FROM sqlite_master").getInt(), 1);
@@ -196,18 +196,18 @@ TEST(LedgerOpen, CreateMakesACurrentWalLedgerAndSaysSo) {
   ScratchDir dir;
   const fs::path path = dir / "new.db";
   std::ostringstream notices;
-  auto l = ledger::Ledger::open(path, ledger::OpenMode::create, notices);
+  auto l = store::Ledger::open(path, store::OpenMode::create, notices);
   EXPECT_EQ(notices.str(), "created ledger " + path.string() + " (schema version " +
-                               std::to_string(ledger::current_schema_version()) + ")\n");
-  EXPECT_EQ(l.schema_version(), ledger::current_schema_version());
+                               std::to_string(store::current_schema_version()) + ")\n");
+  EXPECT_EQ(l.schema_version(), store::current_schema_version());
   EXPECT_EQ(l.path(), path);
   EXPECT_EQ(l.db().execAndGet("PRAGMA journal_mode").getString(), "wal");
-  EXPECT_EQ(l.db().execAndGet("PRAGMA application_id").getInt(), ledger::kApplicationId);
+  EXPECT_EQ(l.db().execAndGet("PRAGMA application_id").getInt(), store::kApplicationId);
   EXPECT_EQ(l.db().execAndGet("PRAGMA foreign_keys").getInt(), 1);
-  EXPECT_EQ(l.db().execAndGet("PRAGMA page_size").getInt(), ledger::kNewLedgerPageSize);
+  EXPECT_EQ(l.db().execAndGet("PRAGMA page_size").getInt(), store::kNewLedgerPageSize);
 
   std::ostringstream again;
-  auto reopened = ledger::Ledger::open(path, ledger::OpenMode::existing, again);
+  auto reopened = store::Ledger::open(path, store::OpenMode::existing, again);
   EXPECT_EQ(again.str(), "");
 }
 
@@ -216,12 +216,12 @@ TEST(LedgerOpen, ExistingLedgerIsSwitchedToWal) {
   ScratchDir dir;
   const fs::path path = dir / "ledger.db";
   std::ostringstream notices;
-  { ledger::Ledger::open(path, ledger::OpenMode::create, notices); }
+  { store::Ledger::open(path, store::OpenMode::create, notices); }
   {
     SQLite::Database db(path.string(), SQLite::OPEN_READWRITE);
     db.exec("PRAGMA journal_mode = DELETE");
   }
-  { ledger::Ledger::open(path, ledger::OpenMode::existing, notices); }
+  { store::Ledger::open(path, store::OpenMode::existing, notices); }
   SQLite::Database db(path.string(), SQLite::OPEN_READONLY);
   EXPECT_EQ(db.execAndGet("PRAGMA journal_mode").getString(), "wal");
 }
@@ -233,7 +233,7 @@ TEST(LedgerOpen, OlderLedgerKeepsItsPageSize) {
   const fs::path path = dir / "ledger.db";
   fs::copy_file(source_path("fixtures/ledgers/v1.db"), path);
   std::ostringstream notices;
-  auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
+  auto l = store::Ledger::open(path, store::OpenMode::existing, notices);
   EXPECT_EQ(l.db().execAndGet("PRAGMA page_size").getInt(), 4096);
   EXPECT_EQ(l.db().execAndGet("PRAGMA integrity_check").getString(), "ok");
 }
@@ -241,10 +241,10 @@ TEST(LedgerOpen, OlderLedgerKeepsItsPageSize) {
 TEST(LedgerOpen, ExistingAndReadOnlyNeedAFile) {
   ScratchDir dir;
   const fs::path path = dir / "absent.db";
-  for (auto mode : {ledger::OpenMode::existing, ledger::OpenMode::read_only}) {
+  for (auto mode : {store::OpenMode::existing, store::OpenMode::read_only}) {
     std::ostringstream notices;
     try {
-      ledger::Ledger::open(path, mode, notices);
+      store::Ledger::open(path, mode, notices);
       ADD_FAILURE() << "opened a missing ledger";
     } catch (const Error& e) {
       EXPECT_EQ(e.kind(), Failure::unusable_ledger);
@@ -258,8 +258,8 @@ TEST(LedgerOpen, ReadOnlyRefusesWrites) {
   ScratchDir dir;
   const fs::path path = dir / "ro.db";
   std::ostringstream notices;
-  { ledger::Ledger::open(path, ledger::OpenMode::create, notices); }
-  auto l = ledger::Ledger::open(path, ledger::OpenMode::read_only, notices);
+  { store::Ledger::open(path, store::OpenMode::create, notices); }
+  auto l = store::Ledger::open(path, store::OpenMode::read_only, notices);
   EXPECT_NE(sql_error(l.db(),
                       "INSERT INTO series (name, kind, created_at) VALUES ('x', "
                       "'strategy', '2021-01-01T00:00:00.000Z')"),
@@ -292,7 +292,7 @@ TEST(LedgerOpen, ReadOnlyRefusesWhatItWouldHaveToChange) {
     const std::string before = read_file(c.path);
     std::ostringstream notices;
     try {
-      ledger::Ledger::open(c.path, ledger::OpenMode::read_only, notices);
+      store::Ledger::open(c.path, store::OpenMode::read_only, notices);
       ADD_FAILURE() << "opened read-only";
     } catch (const Error& e) {
       EXPECT_EQ(e.kind(), Failure::unusable_ledger);
@@ -312,13 +312,13 @@ TEST(LedgerOpen, NewerLedgerIsRefused) {
   const fs::path path = dir / "future.db";
   std::ostringstream notices;
   {
-    auto l = ledger::Ledger::open(path, ledger::OpenMode::create, notices);
+    auto l = store::Ledger::open(path, store::OpenMode::create, notices);
     l.db().exec("PRAGMA user_version = 999");
   }
   for (auto mode :
-       {ledger::OpenMode::create, ledger::OpenMode::existing, ledger::OpenMode::read_only}) {
+       {store::OpenMode::create, store::OpenMode::existing, store::OpenMode::read_only}) {
     try {
-      ledger::Ledger::open(path, mode, notices);
+      store::Ledger::open(path, mode, notices);
       ADD_FAILURE() << "opened a ledger newer than the binary";
     } catch (const Error& e) {
       EXPECT_EQ(e.kind(), Failure::unusable_ledger);
@@ -334,9 +334,9 @@ TEST(LedgerOpen, OlderLedgerIsUpgradedAndSaysSo) {
   const fs::path path = dir / "v1.db";
   fs::copy_file(source_path("fixtures/ledgers/v1.db"), path);
   std::ostringstream notices;
-  auto l = ledger::Ledger::open(path, ledger::OpenMode::existing, notices);
-  EXPECT_EQ(l.schema_version(), ledger::current_schema_version());
-  if (ledger::current_schema_version() > 1)
+  auto l = store::Ledger::open(path, store::OpenMode::existing, notices);
+  EXPECT_EQ(l.schema_version(), store::current_schema_version());
+  if (store::current_schema_version() > 1)
     EXPECT_TRUE(
         contains(notices.str(), "upgraded ledger " + path.string() + " from schema version 1 to "))
         << notices.str();
@@ -350,13 +350,13 @@ TEST(LedgerPath, OptionThenEnvironmentThenDefault) {
   const char* saved = std::getenv("ALPHATRAIL_LEDGER");
   const std::string saved_value = saved ? saved : "";
   unsetenv("ALPHATRAIL_LEDGER");
-  EXPECT_EQ(ledger::resolve_ledger_path(""), fs::path("alphatrail.db"));
-  EXPECT_EQ(ledger::resolve_ledger_path("x.db"), fs::path("x.db"));
+  EXPECT_EQ(store::resolve_ledger_path(""), fs::path("alphatrail.db"));
+  EXPECT_EQ(store::resolve_ledger_path("x.db"), fs::path("x.db"));
   setenv("ALPHATRAIL_LEDGER", "/tmp/env.db", 1);
-  EXPECT_EQ(ledger::resolve_ledger_path(""), fs::path("/tmp/env.db"));
-  EXPECT_EQ(ledger::resolve_ledger_path("x.db"), fs::path("x.db"));
+  EXPECT_EQ(store::resolve_ledger_path(""), fs::path("/tmp/env.db"));
+  EXPECT_EQ(store::resolve_ledger_path("x.db"), fs::path("x.db"));
   setenv("ALPHATRAIL_LEDGER", "", 1);
-  EXPECT_EQ(ledger::resolve_ledger_path(""), fs::path("alphatrail.db"));
+  EXPECT_EQ(store::resolve_ledger_path(""), fs::path("alphatrail.db"));
   if (saved)
     setenv("ALPHATRAIL_LEDGER", saved_value.c_str(), 1);
   else
@@ -367,14 +367,14 @@ TEST(LedgerPath, BusyTimeoutFromTheEnvironment) {
   const char* saved = std::getenv("ALPHATRAIL_BUSY_TIMEOUT_MS");
   const std::string saved_value = saved ? saved : "";
   unsetenv("ALPHATRAIL_BUSY_TIMEOUT_MS");
-  EXPECT_EQ(ledger::busy_timeout_ms(), 10000);
+  EXPECT_EQ(store::busy_timeout_ms(), 10000);
   setenv("ALPHATRAIL_BUSY_TIMEOUT_MS", "250", 1);
-  EXPECT_EQ(ledger::busy_timeout_ms(), 250);
+  EXPECT_EQ(store::busy_timeout_ms(), 250);
   setenv("ALPHATRAIL_BUSY_TIMEOUT_MS", "0", 1);
-  EXPECT_EQ(ledger::busy_timeout_ms(), 0);
+  EXPECT_EQ(store::busy_timeout_ms(), 0);
   for (const char* bad : {"", "abc", "-5", "12ms"}) {
     setenv("ALPHATRAIL_BUSY_TIMEOUT_MS", bad, 1);
-    EXPECT_EQ(ledger::busy_timeout_ms(), 10000) << bad;
+    EXPECT_EQ(store::busy_timeout_ms(), 10000) << bad;
   }
   if (saved)
     setenv("ALPHATRAIL_BUSY_TIMEOUT_MS", saved_value.c_str(), 1);
@@ -389,7 +389,7 @@ class LedgerRows : public ::testing::Test {
   void SetUp() override {
     fs::copy_file(source_path("fixtures/ledgers/v1.db"), path_);
     std::ostringstream notices;
-    ledger_.emplace(ledger::Ledger::open(path_, ledger::OpenMode::existing, notices));
+    ledger_.emplace(store::Ledger::open(path_, store::OpenMode::existing, notices));
   }
   SQLite::Database& db() { return ledger_->db(); }
 
@@ -408,7 +408,7 @@ class LedgerRows : public ::testing::Test {
 
   ScratchDir dir_;
   fs::path path_ = dir_ / "ledger.db";
-  std::optional<ledger::Ledger> ledger_;
+  std::optional<store::Ledger> ledger_;
 };
 
 TEST_F(LedgerRows, UpdatesAndDeletesAbortWithTheTriggerMessage) {
