@@ -123,7 +123,7 @@ void write_run_report(store::Ledger& ledger, std::int64_t run_id,
   auto pending = evaluate_request(ledger, request);
   const PendingRun& p = pending.front();
   const std::string recomputed =
-      store::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
+      record::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
   in.reproduction =
       recomputed == in.run["inputs_hash"].get<std::string>()
           ? "recomputed from the run's own input versions and parameters; inputs hash identical"
@@ -148,7 +148,7 @@ void write_run_report(store::Ledger& ledger, std::int64_t run_id,
     request.rolling = {RollingChoice::Mode::automatic, 0};
     try {
       in.rolling =
-          store::result_json(evaluate_request(ledger, request).front().result, {})["rolling"];
+          record::result_json(evaluate_request(ledger, request).front().result, {})["rolling"];
     } catch (const Error&) {  // the sample is shorter than the window: the page says so
     }
   }

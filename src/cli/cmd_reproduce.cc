@@ -17,15 +17,15 @@ namespace {
 void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
   auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
                                      store::OpenMode::read_only, std::cerr);
-  const store::RunRow row = store::existing_run_row(ledger, run_id);
+  const record::RunRow row = store::existing_run_row(ledger, run_id);
   auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
   const auto& p = pending.front();
   const std::string recomputed_hash =
-      store::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
+      record::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
 
   // The reading counts runs in the ledger, so compare the figures, not the words.
   auto stored = record::read_result(run_id, row.result_json);
-  auto fresh = store::result_json(p.result, {});
+  auto fresh = record::result_json(p.result, {});
   for (auto* j : {&stored, &fresh}) j->erase("reading");
   const auto differences = json_differences(stored, fresh);
 

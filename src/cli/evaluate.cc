@@ -265,7 +265,7 @@ void evaluate_in_snapshot(store::Ledger& ledger, const EvaluateRequest& rq, cons
                                 fmt::join(fc.columns, ","));
   const auto input_of = [](const std::string& role, int position, const store::VersionInfo& info,
                            std::vector<std::string> columns) {
-    return store::RunInput{role,         position,          info.version_id,   info.name,
+    return record::RunInput{role,         position,          info.version_id,   info.name,
                             info.version, info.content_hash, std::move(columns)};
   };
   const auto pending_run = [&](const Plan& plan, const store::VersionInfo& strategy,
@@ -274,7 +274,7 @@ void evaluate_in_snapshot(store::Ledger& ledger, const EvaluateRequest& rq, cons
     p.result = std::move(result);
     p.settings = settings;
     p.settings.rolling_window = plan.rolling_window;
-    store::NewRun& run = p.run;
+    record::NewRun& run = p.run;
     run.strategy = strategy.name;
     run.benchmark = benchmark.info.name;
     run.rate = fmt::format("{}:{}", rate.info.name, plan.tenor);
@@ -427,7 +427,7 @@ std::vector<std::int64_t> record_in_transaction(store::Ledger& ledger,
                             p.run.result = &p.result;
                           }
                         });
-  std::vector<const store::NewRun*> runs;
+  std::vector<const record::NewRun*> runs;
   runs.reserve(pending.size());
   for (const auto& p : pending) runs.push_back(&p.run);
   return store::store_runs(ledger, runs, on_stored);
@@ -680,7 +680,7 @@ std::string RollingChoice::text() const {
 }
 
 EvaluateRequest request_from_run(store::Ledger& ledger, std::int64_t run_id, bool pin_versions) {
-  const store::RunRow row = store::existing_run_row(ledger, run_id);
+  const record::RunRow row = store::existing_run_row(ledger, run_id);
   // The one reader of stored parameters: a field it cannot read stops here (exit 8) rather
   // than deep in the evaluation. Re-runs and reproductions read the stored result too.
   const auto p = record::read_parameters(run_id, row.engine_version, row.parameters_json);

@@ -55,7 +55,7 @@ struct EvaluateRequest {
 
 // One evaluated strategy, ready to be recorded.
 struct PendingRun {
-  store::NewRun run;
+  record::NewRun run;
   core::EvaluationResult result;
   core::EvaluationSettings settings;
 };
@@ -80,8 +80,8 @@ std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger,
 
 // A re-run: the run revised, the run that revises it, and the significance level of both.
 struct RerunOutcome {
-  store::RunRow before;
-  store::RunRow after;
+  record::RunRow before;
+  record::RunRow after;
   double level = 0.05;
 };
 

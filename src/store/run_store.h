@@ -13,59 +13,18 @@
 #include <vector>
 
 #include "core/evaluation.h"
+#include "record/run_record.h"
 #include "store/ledger.h"
 
 namespace alphatrail::store {
 
-// One input version of a run and its role in it.
-struct RunInput {
-  std::string role;  // strategy | benchmark | rate | factor
-  int position = 1;  // order among inputs of the same role
-  std::int64_t version_id = 0;
-  std::string series;
-  int version = 0;
-  std::string content_hash;
-  std::vector<std::string> columns;  // columns used: the tenor, the factors
-};
-
-// Returns the inputs hash: SHA-256 over the engine version, the canonical parameters and
-// every input's role, position, series, version, content hash and columns.
-// parameters_json is the canonical text (nlohmann::json dump: sorted keys, no spaces).
-std::string inputs_hash(const std::string& engine_version, const std::string& parameters_json,
-                        const std::vector<RunInput>& inputs);
-
 // Returns the inputs of a stored run with their versions' names, numbers and hashes.
-std::vector<RunInput> read_run_inputs(Ledger& ledger, std::int64_t run_id);
-
-// A run to record.
-struct NewRun {
-  std::string strategy;
-  std::string benchmark;
-  std::string rate;     // curve:tenor
-  std::string factors;  // "set:col,col; set2" or empty
-  std::string study;
-  std::string note;
-  std::optional<std::int64_t> revises_run_id;
-  std::string parameters_json;  // canonical JSON: sorted keys, every default written out
-  std::vector<RunInput> inputs;
-  const core::EvaluationResult* result = nullptr;
-  std::vector<std::string> reading;
-};
-
-// Returns the result part of a run (sample, coefficients, statistics, reading, preparation,
-// warnings, rolling) as the text stored in runs.result_json: nlohmann-json's compact dump of
-// it, non-finite numbers as null.
-std::string result_json_text(const core::EvaluationResult& result,
-                             const std::vector<std::string>& reading);
-
-// Returns the same as a JSON document.
-nlohmann::ordered_json result_json(const core::EvaluationResult& result,
-                                   const std::vector<std::string>& reading);
+std::vector<record::RunInput> read_run_inputs(Ledger& ledger, std::int64_t run_id);
 
 // Records runs in order, each chained to the one before, all with one time of recording;
 // must run inside Ledger::write_transaction. Builds the rows on all cores, then inserts them
 // one by one, calling on_stored(number stored so far) after each. Returns their run ids.
-std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const NewRun*>& runs,
+std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const record::NewRun*>& runs,
                                      const std::function<void(std::size_t)>& on_stored = {});
 
 // Returns how many runs a study has (0 for an empty study name).
@@ -124,61 +83,11 @@ struct NewerInput {
 // Returns the inputs of a run that have newer versions, in the run's input order.
 std::vector<NewerInput> newer_input_versions(Ledger& ledger, std::int64_t run_id);
 
-// A run as stored: every field its record hash covers.
-struct RunRow {
-  std::int64_t run_id = 0;
-  std::string created_at;
-  std::string engine_version;
-  std::string strategy;
-  std::string benchmark;
-  std::string rate;
-  std::optional<std::string> factors;
-  std::optional<std::string> study;
-  std::optional<std::string> note;
-  std::optional<std::int64_t> revises_run_id;
-  std::string parameters_json;
-  std::string inputs_hash;
-  std::string frequency;
-  std::string first_period;
-  std::string last_period;
-  int observations = 0;
-  int dropped_periods = 0;
-  std::string errors;
-  int lags = 0;
-  double alpha = 0;
-  double alpha_std_error = 0;
-  double alpha_t = 0;
-  double alpha_p = 0;
-  double alpha_annualized = 0;
-  double beta = 0;
-  double beta_t = 0;
-  double r_squared = 0;
-  std::string result_json;
-  std::string previous_record_hash;
-  std::string record_hash;
-  struct Input {
-    std::string role;
-    int position = 0;
-    std::int64_t version_id = 0;
-    std::string columns;
-  };
-  std::vector<Input> inputs;
-  std::vector<core::Coefficient> coefficients;
-};
-
 // Reads a run row with its inputs and coefficients; nullopt when absent.
-std::optional<RunRow> read_run_row(Ledger& ledger, std::int64_t run_id);
+std::optional<record::RunRow> read_run_row(Ledger& ledger, std::int64_t run_id);
 
 // Returns the row of a run that must exist; throws Error(Failure::not_found) naming the run,
 // the ledger and the command that lists the runs.
-RunRow existing_run_row(Ledger& ledger, std::int64_t run_id);
-
-// Returns the canonical text of a run row that its record hash covers (all but record_hash).
-std::string canonical_run_record(const RunRow& row);
-
-// Returns SHA-256 of previous hash, a line break and a canonical record.
-std::string chain_hash(const std::string& previous_record_hash, const std::string& record);
-
-inline const std::string kGenesisHash(64, '0');
+record::RunRow existing_run_row(Ledger& ledger, std::int64_t run_id);
 
 }  // namespace alphatrail::store

@@ -150,7 +150,7 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
 
 void verify_runs(Ledger& ledger, VerifyReport& report) {
   SQLite::Statement ids(ledger.db(), "SELECT run_id FROM runs ORDER BY run_id");
-  std::string previous = kGenesisHash;
+  std::string previous = record::kGenesisHash;
   std::int64_t expected_id = 1;
   while (ids.executeStep()) {
     const std::int64_t id = ids.getColumn(0).getInt64();
@@ -163,7 +163,7 @@ void verify_runs(Ledger& ledger, VerifyReport& report) {
     expected_id = id + 1;
     const auto row = read_run_row(ledger, id);
     const std::string inputs =
-        inputs_hash(row->engine_version, row->parameters_json, read_run_inputs(ledger, id));
+        record::inputs_hash(row->engine_version, row->parameters_json, read_run_inputs(ledger, id));
     if (inputs != row->inputs_hash)
       report.problems.push_back(
           {object, fmt::format("inputs hash {} does not match its inputs and parameters ({})",
@@ -173,7 +173,7 @@ void verify_runs(Ledger& ledger, VerifyReport& report) {
           {object,
            "the hash chain is broken before this run: a run was removed, reordered or "
            "edited"});
-    const std::string record = chain_hash(row->previous_record_hash, canonical_run_record(*row));
+    const std::string record = record::chain_hash(row->previous_record_hash, record::canonical_run_record(*row));
     if (record != row->record_hash)
       report.problems.push_back(
           {object, "its record does not match its record hash: the run was edited"});
@@ -193,7 +193,7 @@ void verify_runs(Ledger& ledger, VerifyReport& report) {
 
 VerifyReport verify_ledger(Ledger& ledger) {
   VerifyReport report;
-  report.chain_head = kGenesisHash;
+  report.chain_head = record::kGenesisHash;
   SQLite::Statement integrity(ledger.db(), "PRAGMA integrity_check");
   while (integrity.executeStep()) {
     const std::string text = integrity.getColumn(0).getString();

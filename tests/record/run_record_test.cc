@@ -1,6 +1,6 @@
 // The stored text of a run's result: written directly, it must be exactly what a
 // nlohmann-json document of it dumps (the form every stored run has), values and all.
-#include "store/run_store.h"
+#include "record/run_record.h"
 
 #include <gtest/gtest.h>
 
@@ -9,7 +9,7 @@
 #include <string>
 #include <vector>
 
-namespace alphatrail::store {
+namespace alphatrail::record {
 namespace {
 
 using nlohmann::ordered_json;
@@ -71,7 +71,7 @@ core::EvaluationResult awkward_result(bool rolling) {
   return r;
 }
 
-TEST(RunStore, ResultTextIsNlohmannJsonsOwnDump) {
+TEST(RunRecord, ResultTextIsNlohmannJsonsOwnDump) {
   const std::vector<std::string> reading = {"Beta is 0.54: \"less strongly\".", "p \\ q"};
   for (const bool rolling : {false, true}) {
     SCOPED_TRACE(rolling ? "with rolling windows" : "without");
@@ -111,4 +111,4 @@ TEST(RunStore, ResultTextIsNlohmannJsonsOwnDump) {
 }
 
 }  // namespace
-}  // namespace alphatrail::store
+}  // namespace alphatrail::record
