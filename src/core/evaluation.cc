@@ -8,7 +8,6 @@
 #include <map>
 
 #include "core/error.h"
-#include "core/number_text.h"
 #include "core/parallel.h"
 
 namespace alphatrail::core {
@@ -208,15 +207,16 @@ Evaluator::Evaluator(const SharedInputs& shared, Frequency frequency,
         shared.rate.name, count_label(frequency, static_cast<std::int64_t>(rates.stale.size())),
         period_label(frequency, rates.stale.front())));
 
-  std::vector<NamedSeries> inputs{{"benchmark", std::move(bench.series)},
-                                  {"rate", std::move(rates.series)}};
-  term_names_ = {"alpha", "beta"};
+  // Named as the design reads them (model.h); a factor's column is named as its term.
+  std::vector<NamedSeries> inputs{{kBenchmarkColumn, std::move(bench.series)},
+                                  {kRateColumn, std::move(rates.series)}};
+  std::vector<std::string> factor_names;
   for (const auto& factor : shared.factors) {
     Resampled r = resample(factor, "factor", frequency, prep, warn);
     inputs.push_back({factor.name, std::move(r.series)});
-    factor_names_.push_back(factor.name);
-    term_names_.push_back(factor.name);
+    factor_names.push_back(factor.name);
   }
+  model_ = ModelSpec::with_factors(factor_names);
   common_.emplace(inputs, AlignOptions{settings.from, settings.to});
 }
 
@@ -240,23 +240,14 @@ struct Design {
   Eigen::VectorXd y;
 };
 
-// Builds [1, r_m - r_f, factors...] and r_s - r_f from an aligned sample.
-Design build_design(const Aligned& a, const std::vector<std::string>& factor_names) {
+// Builds the model's design (model.h: [1, r_m - r_f, factors...]) and r_s - r_f from an
+// aligned sample.
+Design build_design(const Aligned& a, const ModelSpec& model) {
   const auto T = static_cast<Eigen::Index>(a.keys->size());
-  const auto k = static_cast<Eigen::Index>(2 + factor_names.size());
-  Design d{Eigen::MatrixXd(T, k), Eigen::VectorXd(T)};
+  Design d{design_matrix(model, a), Eigen::VectorXd(T)};
   const auto& s = a.column("strategy");
-  const auto& m = a.column("benchmark");
-  const auto& rf = a.column("rate");
-  for (Eigen::Index t = 0; t < T; ++t) {
-    d.X(t, 0) = 1.0;
-    d.X(t, 1) = m[t] - rf[t];
-    d.y(t) = s[t] - rf[t];
-  }
-  for (std::size_t j = 0; j < factor_names.size(); ++j) {
-    const auto& f = a.column(factor_names[j]);
-    for (Eigen::Index t = 0; t < T; ++t) d.X(t, static_cast<Eigen::Index>(2 + j)) = f[t];
-  }
+  const auto& rf = a.column(kRateColumn);
+  for (Eigen::Index t = 0; t < T; ++t) d.y(t) = s[t] - rf[t];
   return d;
 }
 
@@ -268,8 +259,7 @@ Design build_design(const Aligned& a, const std::vector<std::string>& factor_nam
 // constant excess return, a Sharpe ratio of zero spread) stay NaN and are recorded as null.
 void require_finite_figures(const OlsResult& fit, const DerivedStatistics& d) {
   std::vector<std::string> bad;
-  for (std::size_t j = 0; j < fit.coefficients.size(); ++j) {
-    const Coefficient& c = fit.coefficients[j];
+  for (const Coefficient& c : fit.coefficients) {
     if (!std::isfinite(c.estimate)) bad.push_back(c.term);
     if (!std::isfinite(c.std_error)) bad.push_back(c.term + "'s standard error");
   }
@@ -290,6 +280,7 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit, bool keep_seri
   EvaluationResult r;
   r.strategy = p.name;
   r.rate_tenor = rate_tenor_;
+  r.model = model_;
   const Aligned& a = p.aligned;
   const Frequency f = frequency_;
   const int P = periods_per_year(f);
@@ -325,8 +316,8 @@ EvaluationResult Evaluator::finish(Prepared&& p, OlsResult&& fit, bool keep_seri
 
   auto& d = r.derived;
   d.periods_per_year = P;
-  const double alpha = fit.coefficients[0].estimate;
-  const double beta = fit.coefficients[1].estimate;
+  const double alpha = coefficient(fit, model_, TermRole::intercept).estimate;
+  const double beta = coefficient(fit, model_, TermRole::market).estimate;
   const double root_p = std::sqrt(static_cast<double>(P));
   d.alpha_annualized = annualize(alpha, settings_.annualize, P);
   d.appraisal_ratio = alpha / fit.residual_std * root_p;
@@ -369,9 +360,9 @@ void Evaluator::add_rolling(EvaluationResult& r, const Aligned& a) const {
   const int N = settings_.rolling_window;
   r.rolling_window = N;
   r.rolling_auto_lags = c.kind == ErrorKind::newey_west && c.lags == -1;
-  const Design d = build_design(a, factor_names_);
+  const Design d = build_design(a, model_);
   r.rolling =
-      rolling_fits(d.X, d.y, term_names_, *a.keys, frequency_,
+      rolling_fits(d.X, d.y, model_, *a.keys, frequency_,
                    {N, c, settings_.confidence, settings_.annualize, periods_per_year(frequency_)});
   auto& warnings = r.sample.warnings;
   if (r.rolling.empty())
@@ -392,8 +383,9 @@ void Evaluator::add_rolling(EvaluationResult& r, const Aligned& a) const {
 EvaluationResult Evaluator::evaluate(const ReturnInput& strategy) const {
   Prepared p = prepare(strategy);
   if (!p.error.empty()) throw Error(p.failure, p.error);
-  const Design d = build_design(p.aligned, factor_names_);
-  OlsResult fit = fit_ols(d.X, d.y, term_names_, true, settings_.covariance, settings_.confidence);
+  const Design d = build_design(p.aligned, model_);
+  OlsResult fit = fit_ols(d.X, d.y, model_.term_names(), model_.has(TermRole::intercept),
+                          settings_.covariance, settings_.confidence);
   return finish(std::move(p), std::move(fit), true);
 }
 
@@ -445,7 +437,7 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
   };
   for (const auto& group : groups) {
     const std::vector<std::size_t>& members = group.second;  // named: lambdas capture it
-    const Design d = build_design(prepared[members.front() - begin].aligned, factor_names_);
+    const Design d = build_design(prepared[members.front() - begin].aligned, model_);
     // The excess return r_s - r_f of member j, written where the fit wants it.
     const auto response = [&](Eigen::Index j, Eigen::VectorXd& y) {
       const Aligned& a = prepared[members[static_cast<std::size_t>(j)] - begin].aligned;
@@ -456,16 +448,18 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
     };
     std::vector<OlsResult> fits;
     try {
-      fits = fit_ols_many(d.X, static_cast<Eigen::Index>(members.size()), response, term_names_,
-                          true, settings_.covariance, settings_.confidence, threads, keep_series);
+      fits = fit_ols_many(d.X, static_cast<Eigen::Index>(members.size()), response,
+                          model_.term_names(), model_.has(TermRole::intercept),
+                          settings_.covariance, settings_.confidence, threads, keep_series);
     } catch (const Error&) {
       // One column can fail where others do not (e.g. an exact fit): fit them one by one.
       for (std::size_t j = 0; j < members.size(); ++j) {
         try {
           Eigen::VectorXd y;
           response(static_cast<Eigen::Index>(j), y);
-          finish_member(members[j], fit_ols(d.X, y, term_names_, true, settings_.covariance,
-                                            settings_.confidence));
+          finish_member(members[j],
+                        fit_ols(d.X, y, model_.term_names(), model_.has(TermRole::intercept),
+                                settings_.covariance, settings_.confidence));
         } catch (const Error& e) {
           outcomes[members[j]].error = e.what();
           outcomes[members[j]].failure = e.kind();
@@ -479,112 +473,6 @@ void Evaluator::evaluate_block(const std::vector<ReturnInput>& strategies, std::
                         finish_member(members[j], std::move(fits[j]));
                     });
   }
-}
-
-const std::vector<std::string>& standard_cautions() {
-  static const std::vector<std::string> cautions{
-      "These are statistical estimates from past data, not investment advice.",
-      "Survivorship bias, look-ahead bias, short samples and many tried variants all overstate "
-      "alpha; a back-test is not a track record."};
-  return cautions;
-}
-
-namespace {
-
-std::string percent(double x, int digits = 2) {
-  return signed_percent(x, digits);
-}
-
-}  // namespace
-
-std::vector<std::string> compose_reading(const EvaluationResult& r,
-                                         const EvaluationSettings& settings,
-                                         const ReadingContext& context) {
-  std::vector<std::string> out;
-  const auto& fit = r.fit;
-  const Frequency f = r.sample.frequency;
-  const double beta = fit.coefficients[1].estimate;
-  const auto& a = fit.coefficients[0];
-
-  // Classify beta as it is printed, so that 1.00 never reads as "more" or "less" strongly.
-  const double shown = std::round(beta * 100) / 100;
-  if (shown > 1)
-    out.push_back(fmt::format(
-        "Beta is {:.2f}: the strategy moves with the market, more strongly than the market "
-        "itself (a 1% market excess return goes with about {:.2f}% in the strategy).",
-        beta, beta));
-  else if (shown == 1)
-    out.push_back(
-        fmt::format("Beta is {:.2f}: the strategy moves with the market about one for one.", beta));
-  else if (shown > 0)
-    out.push_back(fmt::format(
-        "Beta is {:.2f}: the strategy moves with the market, less strongly than the market "
-        "itself (a 1% market excess return goes with about {:.2f}% in the strategy).",
-        beta, beta));
-  else if (shown == 0)
-    out.push_back(fmt::format("Beta is {:.2f}: the strategy hardly moves with the market at all.",
-                              std::abs(beta)));
-  else
-    out.push_back(fmt::format(
-        "Beta is {:.2f}: the strategy tends to move against the market (a 1% market excess "
-        "return goes with about {:.2f}% in the strategy).",
-        beta, beta));
-
-  out.push_back(fmt::format(
-      "Alpha, the return not explained by the {}, is {} per {} ({} a year, {} annualized).",
-      fit.coefficients.size() > 2 ? "market and the factors" : "market", percent(a.estimate, 3),
-      period_noun(f), percent(r.derived.alpha_annualized), annualize_name(settings.annualize)));
-
-  const double level = 1.0 - settings.confidence;
-  const std::string errors =
-      fit.errors == ErrorKind::newey_west
-          ? fmt::format("Newey-West standard errors ({} lags{})", fit.lags,
-                        fit.small_sample_applied ? ", small-sample factor T/(T-k)" : "")
-          : fmt::format("{} standard errors", error_kind_name(fit.errors));
-  if (a.p_value < level)
-    out.push_back(fmt::format(
-        "With {}, alpha's t statistic is {:.2f} (p = {:.4f}): significant at the {:g}% level; "
-        "the {:g}% interval runs from {} to {} per {}.",
-        errors, a.t_stat, a.p_value, 100 * level, 100 * settings.confidence, percent(a.ci_low, 3),
-        percent(a.ci_high, 3), period_noun(f)));
-  else
-    out.push_back(fmt::format(
-        "With {}, alpha's t statistic is {:.2f} (p = {:.4f}): not significant at the {:g}% "
-        "level; the data cannot tell this alpha from zero.",
-        errors, a.t_stat, a.p_value, 100 * level));
-
-  if (fit.coefficients.size() > 2) {
-    std::vector<std::string> loadings;
-    for (std::size_t j = 2; j < fit.coefficients.size(); ++j)
-      loadings.push_back(fmt::format("{} {:.2f} (t {:.2f})", fit.coefficients[j].term,
-                                     fit.coefficients[j].estimate, fit.coefficients[j].t_stat));
-    out.push_back(fmt::format("Factor loadings: {}.", fmt::join(loadings, ", ")));
-  }
-
-  out.push_back(
-      fmt::format("The {} explain{} {:.1f}% of the variance of the strategy's excess "
-                  "return (R-squared).",
-                  fit.coefficients.size() > 2 ? "market and the factors" : "market",
-                  fit.coefficients.size() > 2 ? "" : "s", 100 * fit.r_squared));
-
-  out.push_back(fmt::format("The sample has {} {} periods, {} to {}.", r.sample.observations,
-                            frequency_name(f), r.sample.first, r.sample.last));
-  if (r.sample.observations < short_sample_threshold(f))
-    out.push_back(fmt::format(
-        "Caution: fewer than {} periods (three years) is a short sample; the estimate is fragile.",
-        short_sample_threshold(f)));
-
-  if (!context.study.empty() && context.study_trials > 1)
-    out.push_back(fmt::format(
-        "This is one of {} runs recorded in study '{}': the best of many variants looks better "
-        "than it is; discount for the trials (a t statistic above 3 is a common bar for a "
-        "new idea, Harvey, Liu & Zhu 2016).",
-        context.study_trials, context.study));
-  if (context.strategy_runs > 1)
-    out.push_back(fmt::format("The ledger holds {} runs of this strategy, this one included.",
-                              context.strategy_runs));
-  for (const auto& c : standard_cautions()) out.push_back(c);
-  return out;
 }
 
 }  // namespace alphatrail::core

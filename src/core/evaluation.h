@@ -4,7 +4,9 @@
 // supplies the series and records the result.
 //
 // Model: r_s - r_f = alpha + beta (r_m - r_f) + sum_j b_j f_j + e, where f_j are factor
-// returns used as given (factor sets hold zero-investment spread returns).
+// returns used as given (factor sets hold zero-investment spread returns). Its terms and their
+// order are the Evaluator's ModelSpec (model.h); each result carries a copy, so alpha, beta and
+// the loadings are found by role: coefficient(result.fit, result.model, TermRole::market).
 //
 // Failure: throws alphatrail::Error(Failure::cannot_estimate) when the aligned sample is too short,
 // the design is collinear or ill-conditioned, or a figure every run must hold (an estimate, a
@@ -21,10 +23,14 @@
 #include "core/annualize.h"
 #include "core/dates.h"
 #include "core/error.h"
+#include "core/model.h"
 #include "core/rates.h"
 #include "core/regression.h"
 #include "core/resample.h"
 #include "core/rolling.h"
+// The reading (ReadingContext, compose_reading, standard_cautions) moved to core/reading.h;
+// included here for now so that callers still build. Callers should include core/reading.h.
+#include "core/reading.h"
 
 namespace alphatrail::core {
 
@@ -97,6 +103,7 @@ struct EvaluationResult {
   std::string strategy;
   std::string rate_tenor;
   SampleDescription sample;
+  ModelSpec model;  // the terms of `fit`, one per coefficient in the same order
   OlsResult fit;
   DerivedStatistics derived;
   // The aligned sample, for charts: period keys, strategy and benchmark excess returns, the
@@ -146,6 +153,8 @@ class Evaluator {
                                      bool keep_series = true) const;
 
   Frequency frequency() const { return frequency_; }
+  // The model every result of this Evaluator is fitted with.
+  const ModelSpec& model() const { return model_; }
 
  private:
   struct Prepared;  // one strategy aligned on the shared sample
@@ -161,27 +170,10 @@ class Evaluator {
   EvaluationSettings settings_;
   Frequency frequency_;
   std::string rate_tenor_;
-  std::vector<std::string> factor_names_;
-  std::vector<std::string> term_names_;
+  ModelSpec model_;
   std::vector<std::string> shared_preparation_;
   std::vector<std::string> shared_warnings_;
   std::optional<CommonSample> common_;
 };
-
-// Context for the plain-language reading that only the ledger knows.
-struct ReadingContext {
-  std::string study;      // empty when the run belongs to no study
-  int study_trials = 0;   // runs of this study in the ledger, this one included
-  int strategy_runs = 0;  // runs of this strategy in the ledger, this one included
-};
-
-// Returns the plain-language reading of a result: exposure, alpha's size and significance,
-// sample and multiple-trial warnings, and the cautions.
-std::vector<std::string> compose_reading(const EvaluationResult& result,
-                                         const EvaluationSettings& settings,
-                                         const ReadingContext& context);
-
-// The cautions that go with every result that could lead someone to risk money.
-const std::vector<std::string>& standard_cautions();
 
 }  // namespace alphatrail::core

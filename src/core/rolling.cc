@@ -46,10 +46,14 @@ std::string rolling_window_problem(int window, int coefficients,
   return "";
 }
 
-std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
-                                        const std::vector<std::string>& names,
-                                        const std::vector<std::int64_t>& keys, Frequency f,
-                                        const RollingOptions& options) {
+namespace {
+
+// Both overloads: alpha and beta are the coefficients at columns `alpha_at` and `beta_at`.
+std::vector<RollingWindow> fit_windows(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
+                                       const std::vector<std::string>& names, bool has_intercept,
+                                       std::size_t alpha_at, std::size_t beta_at,
+                                       const std::vector<std::int64_t>& keys, Frequency f,
+                                       const RollingOptions& options) {
   if (X.rows() != y.size() || static_cast<std::size_t>(X.rows()) != keys.size() || X.cols() < 2)
     throw Error(Failure::internal,
                 "rolling_fits: the design, response and keys must have one row per period and "
@@ -75,9 +79,10 @@ std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::V
     const Eigen::MatrixXd Xw = X.middleRows(start, N);
     const Eigen::VectorXd yw = y.segment(start, N);
     try {
-      const OlsResult fit = fit_ols(Xw, yw, names, true, options.covariance, options.confidence);
-      const Coefficient& a = fit.coefficients[0];
-      const Coefficient& b = fit.coefficients[1];
+      const OlsResult fit =
+          fit_ols(Xw, yw, names, has_intercept, options.covariance, options.confidence);
+      const Coefficient& a = fit.coefficients[alpha_at];
+      const Coefficient& b = fit.coefficients[beta_at];
       w.lags = fit.lags;
       w.alpha = a.estimate;
       w.alpha_std_error = a.std_error;
@@ -99,6 +104,28 @@ std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::V
     windows.push_back(std::move(w));
   }
   return windows;
+}
+
+}  // namespace
+
+std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
+                                        const ModelSpec& model,
+                                        const std::vector<std::int64_t>& keys, Frequency f,
+                                        const RollingOptions& options) {
+  if (static_cast<std::size_t>(X.cols()) != model.size())
+    throw Error(Failure::internal,
+                fmt::format("rolling_fits: the design has {} columns but the model {} terms",
+                            X.cols(), model.size()));
+  return fit_windows(X, y, model.term_names(), model.has(TermRole::intercept),
+                     model.index_of(TermRole::intercept), model.index_of(TermRole::market), keys, f,
+                     options);
+}
+
+std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
+                                        const std::vector<std::string>& names,
+                                        const std::vector<std::int64_t>& keys, Frequency f,
+                                        const RollingOptions& options) {
+  return fit_windows(X, y, names, true, 0, 1, keys, f, options);
 }
 
 }  // namespace alphatrail::core

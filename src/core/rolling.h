@@ -22,6 +22,7 @@
 
 #include "core/annualize.h"
 #include "core/dates.h"
+#include "core/model.h"
 #include "core/regression.h"
 
 namespace alphatrail::core {
@@ -65,9 +66,21 @@ int default_rolling_window(Frequency f);
 std::string rolling_window_problem(int window, int coefficients,
                                    const CovarianceOptions& covariance);
 
-// Fits y on the columns of X (column 0 the intercept alpha, column 1 the benchmark's beta)
-// over every window of options.window consecutive rows; keys are the rows' period keys at
-// frequency f. Returns one window per end, oldest first.
+// Fits y on the columns of X, one per term of the model (design_matrix in model.h), over every
+// window of options.window consecutive rows; keys are the rows' period keys at frequency f.
+// Alpha and beta are the model's intercept and market terms. Returns one window per end,
+// oldest first. Also throws Error(Failure::internal) when the model has no intercept or market
+// term or not one term per column.
+// Example: rolling_fits(X, y, ModelSpec::single_index(), keys, Frequency::monthly, {36}).size()
+//          == keys.size() - 35.
+std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
+                                        const ModelSpec& model,
+                                        const std::vector<std::int64_t>& keys, Frequency f,
+                                        const RollingOptions& options);
+
+// The same by position, as before model specs: column 0 is the intercept alpha, column 1 the
+// benchmark's beta, names one term name per column. Kept for callers that build their own
+// design; prefer the ModelSpec overload.
 // Example: rolling_fits(X, y, {"alpha", "beta"}, keys, Frequency::monthly, {36}).size()
 //          == keys.size() - 35.
 std::vector<RollingWindow> rolling_fits(const Eigen::MatrixXd& X, const Eigen::VectorXd& y,
