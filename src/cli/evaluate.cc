@@ -11,6 +11,7 @@
 #include <map>
 #include <set>
 
+#include "core/reading.h"
 #include "core/error.h"
 #include "core/evaluation.h"
 #include "core/number_text.h"

@@ -28,9 +28,6 @@
 #include "core/regression.h"
 #include "core/resample.h"
 #include "core/rolling.h"
-// The reading (ReadingContext, compose_reading, standard_cautions) moved to core/reading.h;
-// included here for now so that callers still build. Callers should include core/reading.h.
-#include "core/reading.h"
 
 namespace alphatrail::core {
 

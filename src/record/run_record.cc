@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "core/model.h"
 #include "core/sha256.h"
 #include "version.h"
 
@@ -304,8 +305,8 @@ std::pair<std::string, std::string> canonical_record_parts(const RunRow& r) {
 // A run's row with every field but the two hashes; pure, so a batch drafts on all cores.
 RunRow draft_row(const NewRun& run, std::int64_t run_id, const std::string& created_at) {
   const core::EvaluationResult& r = *run.result;
-  const auto& alpha = r.fit.coefficients.at(0);
-  const auto& beta = r.fit.coefficients.at(1);
+  const auto& alpha = core::coefficient(r.fit, r.model, core::TermRole::intercept);
+  const auto& beta = core::coefficient(r.fit, r.model, core::TermRole::market);
   RunRow row;
   row.run_id = run_id;
   row.created_at = created_at;

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "core/reading.h"
 #include "core/annualize.h"
 #include "core/evaluation.h"
 #include "core/number_text.h"

@@ -4,6 +4,7 @@
 //
 // All data are built in the test (no files): monthly month-end dates, benchmark returns and
 // percent yields that change every month, strategies built from them.
+#include "core/reading.h"
 #include "core/evaluation.h"
 
 #include <gtest/gtest.h>
