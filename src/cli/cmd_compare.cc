@@ -9,7 +9,7 @@
 #include "cli/json_diff.h"
 #include "cli/output.h"
 #include "core/series_diff.h"
-#include "store/series_store.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
@@ -38,8 +38,8 @@ std::string change(const ordered_json& a, const ordered_json& b) {
 
 // Summarises what changed between two versions of one series.
 std::string revision_summary(store::Ledger& ledger, const std::string& series, int va, int vb) {
-  const auto a = store::load_version(ledger, series, va);
-  const auto b = store::load_version(ledger, series, vb);
+  const auto a = ledger.load_version(series, va);
+  const auto b = ledger.load_version(series, vb);
   std::size_t added = 0;
   std::size_t removed = 0;
   std::size_t changed = 0;
@@ -60,10 +60,11 @@ std::vector<std::int64_t> sample_keys(store::Ledger& ledger, std::int64_t run_id
 }
 
 void run_compare(const CompareOptions& o, const GlobalOptions& global) {
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::read_only, std::cerr);
-  const auto a = store::load_run(ledger, o.a);
-  const auto b = store::load_run(ledger, o.b);
+  auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::read_only, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
+  const auto a = ledger.load_run(o.a);
+  const auto b = ledger.load_run(o.b);
 
   ordered_json inputs = ordered_json::array();
   for (const auto& ia : a["inputs"]) {

@@ -11,8 +11,6 @@
 #include "cli/report.h"
 #include "core/error.h"
 #include "store/ledger.h"
-#include "store/run_store.h"
-#include "store/series_store.h"
 
 namespace alphatrail::cli {
 
@@ -57,9 +55,9 @@ void check_replaceable(const std::filesystem::path& path) {
     throw not_a_demo_ledger(path, "it is not a regular file");
   try {
     std::ostringstream ignored;
-    auto existing = store::Ledger::open(path, store::OpenMode::read_only, ignored);
-    if (!store::has_mark(existing, kDemoMark))
-      throw not_a_demo_ledger(path, "it has no demo mark");
+    auto existing_opened = store::open_ledger(path, store::OpenMode::read_only, ignored);
+    store::Ledger& existing = *existing_opened;
+    if (!existing.has_mark(kDemoMark)) throw not_a_demo_ledger(path, "it has no demo mark");
   } catch (const Error& e) {
     if (e.kind() != Failure::unusable_ledger) throw;
     throw not_a_demo_ledger(path, "it is not an alphatrail ledger of this version");
@@ -100,18 +98,19 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   const auto files = write_demo_files(folder, options.seed);
   const IngestRequest revision = ingest_request(write_restated_benchmark(folder));
 
-  auto ledger = store::Ledger::open(
+  auto ledger_opened = store::open_ledger(
       path, replacing ? store::OpenMode::existing : store::OpenMode::create, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
   // One write transaction for the whole demo: a ledger being replaced is emptied in place
   // while the write lock is held (a process that has the file open sees the new demo, never a
   // deleted file), and a failure anywhere leaves the file as it was.
   ledger.write_transaction([&] {
     if (replacing) {
-      if (!store::has_mark(ledger, kDemoMark))  // checked again under the lock
+      if (!ledger.has_mark(kDemoMark))  // checked again under the lock
         throw not_a_demo_ledger(path, "it has no demo mark");
-      store::erase_and_recreate(ledger);
+      ledger.erase_and_recreate();
     }
-    store::add_mark(ledger, kDemoMark, fmt::format("seed {}", options.seed), store::utc_now());
+    ledger.add_mark(kDemoMark, fmt::format("seed {}", options.seed), store::utc_now());
 
     for (const auto& file : files) {
       const IngestRequest request = ingest_request(file);
@@ -149,7 +148,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
     print_runs(std::cout, ledger, runs, Format::table);
 
     std::cout << fmt::format("\n$ alphatrail show {}\n\n", runs.front());
-    print_run_text(std::cout, store::load_run(ledger, runs.front()));
+    print_run_text(std::cout, ledger.load_run(runs.front()));
     // The vendor restates a month of the index: re-run what it touched and show what changed.
     std::cout << fmt::format("$ alphatrail ingest benchmark {} --name {} --levels --note \"{}\"\n",
                              revision.file, revision.name, revision.note);
@@ -159,7 +158,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
   });
 
   // The page a colleague would open: the latest run of the first strategy (a revision).
-  const auto main_runs = store::list_runs(ledger, {"trend-12m", "", 0, 0});
+  const auto main_runs = ledger.list_runs({"trend-12m", "", 0, 0});
   const std::int64_t main_run = main_runs.back().run_id;
   const auto page = std::filesystem::absolute(folder / fmt::format("report-run-{}.html", main_run));
   std::cout << fmt::format("\n$ alphatrail report {} -o {}\n", main_run, page.string());

@@ -85,8 +85,9 @@ void run_evaluate_command(const EvaluateRequest& request, Format format,
   // Text the runs store, checked before the ledger is opened; an empty study is none.
   if (!request.study.empty()) require_storable_name("--study", request.study);
   require_storable_text("--note", request.note);
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::existing, std::cerr);
+  auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::existing, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
   const auto runs = evaluate_and_record(ledger, request, isatty(2) != 0);
   print_runs(std::cout, ledger, runs, format);
   core::mark_phase("evaluate: printed");

@@ -12,7 +12,7 @@
 #include "core/series_file.h"
 #include "core/sha256.h"
 #include "core/text.h"
-#include "store/series_store.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
@@ -135,9 +135,8 @@ CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
 
 void store_file(store::Ledger& ledger, CheckedFile checked, std::ostream& out) {
   std::vector<store::StoreOutcome> outcomes;
-  ledger.write_transaction([&] {
-    outcomes = store::store_versions(ledger, std::move(checked.versions), checked.source);
-  });
+  ledger.write_transaction(
+      [&] { outcomes = ledger.store_versions(std::move(checked.versions), checked.source); });
 
   int added = 0;
   int unchanged = 0;
@@ -159,7 +158,8 @@ void store_file(store::Ledger& ledger, CheckedFile checked, std::ostream& out) {
 void ingest_file(const std::filesystem::path& ledger_path, const IngestRequest& o,
                  std::ostream& out, std::ostream& notes) {
   CheckedFile checked = check_file(o, notes);  // before the ledger is opened (or created)
-  auto ledger = store::Ledger::open(ledger_path, store::OpenMode::create, notes);
+  auto ledger_opened = store::open_ledger(ledger_path, store::OpenMode::create, notes);
+  store::Ledger& ledger = *ledger_opened;
   store_file(ledger, std::move(checked), out);
 }
 

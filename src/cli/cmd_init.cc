@@ -15,7 +15,8 @@ void run_init(const GlobalOptions& global) {
   const auto path = store::resolve_ledger_path(global.ledger);
   const bool existed = std::filesystem::exists(path);
   std::ostringstream notices;  // init reports on stdout: creating is its job
-  auto ledger = store::Ledger::open(path, store::OpenMode::create, notices);
+  auto ledger_opened = store::open_ledger(path, store::OpenMode::create, notices);
+  store::Ledger& ledger = *ledger_opened;
   std::cout << notices.str();
   if (existed && notices.str().empty())
     std::cout << fmt::format("ledger {} is up to date (schema version {})\n", path.string(),

@@ -21,7 +21,7 @@
 #include "cli/commands.h"
 #include "cli/output.h"
 #include "core/error.h"
-#include "store/ledger.h"
+#include "store/sqlite_ledger.h"
 
 namespace alphatrail::cli {
 
@@ -378,8 +378,8 @@ class FlushWhileWorking {
 };
 
 void run_query(const QueryOptions& o, const GlobalOptions& global) {
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::read_only, std::cerr);
+  auto ledger = store::SqliteLedger::open(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::read_only, std::cerr);
   sqlite3* db = ledger.db().getHandle();
   std::string refused;  // what the authorizer refused, for the message
   const StatementHandle statement = prepare_read(db, o.sql, refused);

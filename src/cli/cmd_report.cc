@@ -11,10 +11,9 @@
 #include "cli/evaluate.h"
 #include "cli/report.h"
 #include "core/error.h"
-#include "store/run_store.h"
-#include "store/series_store.h"
 #include "report/html.h"
 #include "report/reports.h"
+#include "store/ledger.h"
 #include "version.h"
 
 namespace alphatrail::cli {
@@ -105,8 +104,8 @@ void write_page(const std::filesystem::path& output, const std::string& html,
 
 std::vector<ordered_json> load_runs(store::Ledger& ledger, const store::RunFilter& filter) {
   std::vector<ordered_json> runs;
-  for (const auto& summary : store::list_runs(ledger, filter))
-    runs.push_back(store::load_run(ledger, summary.run_id));
+  for (const auto& summary : ledger.list_runs(filter))
+    runs.push_back(ledger.load_run(summary.run_id));
   return runs;
 }
 
@@ -115,7 +114,7 @@ std::vector<ordered_json> load_runs(store::Ledger& ledger, const store::RunFilte
 void write_run_report(store::Ledger& ledger, std::int64_t run_id,
                       const std::filesystem::path& output, bool force) {
   report::RunReportInput in;
-  in.run = store::load_run(ledger, run_id);
+  in.run = ledger.load_run(run_id);
 
   // The charts need the sample period by period: recompute it from the run's own versions.
   EvaluateRequest request = request_from_run(ledger, run_id, true);
@@ -153,7 +152,7 @@ void write_run_report(store::Ledger& ledger, std::int64_t run_id,
     }
   }
   if (in.run["revises_run_id"].is_number())
-    in.revised = store::load_run(ledger, in.run["revises_run_id"].get<std::int64_t>());
+    in.revised = ledger.load_run(in.run["revises_run_id"].get<std::int64_t>());
   in.made_by = made_by(ledger);
   write_page(output, report::run_report(in), {ledger.path(), force});
 }
@@ -162,7 +161,7 @@ void write_strategy_report(store::Ledger& ledger, const std::string& strategy,
                            const std::filesystem::path& output, bool force) {
   report::StrategyReportInput in;
   in.strategy = strategy;
-  for (const auto& v : store::version_history(ledger, strategy))
+  for (const auto& v : ledger.version_history(strategy))
     in.versions.push_back({v.version, v.ingested_at, v.content_hash, v.source_file, v.note});
   in.runs = load_runs(ledger, {strategy, "", 0, 0});
   if (in.runs.empty())
@@ -204,8 +203,9 @@ void run_report(const ReportOptions& o, const GlobalOptions& global) {
     throw Error(Failure::invalid_argument,
                 "name one subject: a RUN id, --strategy NAME or --study NAME (for example "
                 "`alphatrail report 7 -o run-7.html`)");
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::read_only, std::cerr);
+  auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::read_only, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
   if (o.run_id != 0)
     write_run_report(ledger, o.run_id, o.output, o.force);
   else if (!o.strategy.empty())

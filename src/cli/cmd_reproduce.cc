@@ -15,9 +15,10 @@ namespace alphatrail::cli {
 namespace {
 
 void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::read_only, std::cerr);
-  const record::RunRow row = store::existing_run_row(ledger, run_id);
+  auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::read_only, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
+  const record::RunRow row = ledger.existing_run_row(run_id);
   auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
   const auto& p = pending.front();
   const std::string recomputed_hash =

@@ -24,7 +24,7 @@ struct RerunOptions {
 
 std::string revisions_of(store::Ledger& ledger, std::int64_t run_id) {
   std::vector<std::string> parts;
-  for (const auto& n : store::newer_input_versions(ledger, run_id))
+  for (const auto& n : ledger.newer_input_versions(run_id))
     parts.push_back(fmt::format("{} v{} -> v{}", n.series, n.version, n.latest_version));
   return parts.empty() ? "no newer input versions" : fmt::format("{}", fmt::join(parts, ", "));
 }
@@ -55,8 +55,7 @@ std::vector<RerunOutcome> rerun_runs(store::Ledger& ledger, const std::vector<st
     }
     const auto new_ids = record_runs(ledger, pending, progress);
     for (std::size_t i = 0; i < ids.size(); ++i)
-      outcomes.push_back({*store::read_run_row(ledger, ids[i]),
-                          *store::read_run_row(ledger, new_ids[i]),
+      outcomes.push_back({*ledger.read_run_row(ids[i]), *ledger.read_run_row(new_ids[i]),
                           1.0 - pending[i].settings.confidence});
   });
   return outcomes;
@@ -115,8 +114,8 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
     throw Error(Failure::invalid_argument, "name the runs to re-run, or pass --all-stale");
   const auto path = store::resolve_ledger_path(global.ledger);
   const auto runs_to_redo = [&](store::Ledger& ledger) {
-    if (o.all_stale) return store::unrevised_stale_runs(ledger);
-    for (auto id : o.runs) store::existing_run_row(ledger, id);  // each must exist
+    if (o.all_stale) return ledger.unrevised_stale_runs();
+    for (auto id : o.runs) ledger.existing_run_row(id);  // each must exist
     return o.runs;
   };
   const auto none_stale = [] {
@@ -124,20 +123,21 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
   };
 
   if (o.dry_run) {
-    auto ledger = store::Ledger::open(path, store::OpenMode::read_only, std::cerr);
+    auto ledger_opened = store::open_ledger(path, store::OpenMode::read_only, std::cerr);
+    store::Ledger& ledger = *ledger_opened;
     ledger.read_transaction([&] {
       const auto ids = runs_to_redo(ledger);
       if (ids.empty()) return none_stale();
       for (auto id : ids)
         std::cout << fmt::format("would re-run run {} ({}): {}\n", id,
-                                 store::read_run_row(ledger, id)->strategy,
-                                 revisions_of(ledger, id));
+                                 ledger.read_run_row(id)->strategy, revisions_of(ledger, id));
     });
     return;
   }
   // The stale set is read, evaluated and recorded in one write transaction: every re-run uses
   // the versions of one snapshot, and a second rerun waits and then finds these runs revised.
-  auto ledger = store::Ledger::open(path, store::OpenMode::existing, std::cerr);
+  auto ledger_opened = store::open_ledger(path, store::OpenMode::existing, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
   std::vector<RerunOutcome> outcomes;
   ledger.write_transaction([&] {
     const auto ids = runs_to_redo(ledger);

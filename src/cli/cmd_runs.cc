@@ -9,7 +9,7 @@
 #include "cli/output.h"
 #include "core/evaluation.h"
 #include "core/number_text.h"
-#include "store/run_store.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
@@ -24,9 +24,10 @@ struct RunsOptions {
 using core::fixed;
 
 void run_runs(const RunsOptions& o, const GlobalOptions& global) {
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::read_only, std::cerr);
-  const auto runs = store::list_runs(ledger, {o.strategy, o.study});
+  auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::read_only, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
+  const auto runs = ledger.list_runs({o.strategy, o.study});
   if (o.format == Format::json) {
     auto array = nlohmann::ordered_json::array();
     for (const auto& r : runs)
@@ -128,9 +129,10 @@ void print_windows_csv(std::ostream& out, const nlohmann::ordered_json& run) {
 }
 
 void run_show(const ShowOptions& o, const GlobalOptions& global) {
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::read_only, std::cerr);
-  const auto run = store::load_run(ledger, o.run_id);
+  auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::read_only, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
+  const auto run = ledger.load_run(o.run_id);
   switch (o.format) {
     case Format::json: print_json(std::cout, run); break;
     case Format::csv: {

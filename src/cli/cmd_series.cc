@@ -9,7 +9,7 @@
 #include "cli/output.h"
 #include "core/error.h"
 #include "core/series_diff.h"
-#include "store/series_store.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
@@ -22,8 +22,8 @@ struct SeriesOptions {
 };
 
 void print_diff(store::Ledger& ledger, const SeriesOptions& o) {
-  const auto older = store::load_version(ledger, o.name, o.diff[0]);
-  const auto newer = store::load_version(ledger, o.name, o.diff[1]);
+  const auto older = ledger.load_version(o.name, o.diff[0]);
+  const auto newer = ledger.load_version(o.name, o.diff[1]);
   auto json = nlohmann::ordered_json::array();
   Table table;
   table.header = {"column", "date", "change", "before", "after", "difference"};
@@ -149,17 +149,18 @@ void print_versions(const std::vector<store::VersionInfo>& versions, Format form
 }
 
 void run_series(const SeriesOptions& options, const GlobalOptions& global) {
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::read_only, std::cerr);
+  auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::read_only, std::cerr);
+  store::Ledger& ledger = *ledger_opened;
   if (!options.diff.empty()) {
     if (options.name.empty())
       throw Error(Failure::invalid_argument,
                   "--diff needs a series name: series NAME --diff V1 V2");
     print_diff(ledger, options);
   } else if (options.name.empty())
-    print_versions(store::list_latest_versions(ledger), options.format, false);
+    print_versions(ledger.list_latest_versions(), options.format, false);
   else
-    print_versions(store::version_history(ledger, options.name), options.format, true);
+    print_versions(ledger.version_history(options.name), options.format, true);
 }
 
 }  // namespace

@@ -25,8 +25,8 @@ std::string printable(const std::string& text) {
 }
 
 void run_verify(const GlobalOptions& global) {
-  auto ledger = store::Ledger::open(store::resolve_ledger_path(global.ledger),
-                                     store::OpenMode::read_only, std::cerr);
+  auto ledger = store::SqliteLedger::open(store::resolve_ledger_path(global.ledger),
+                                          store::OpenMode::read_only, std::cerr);
   const auto report = store::verify_ledger(ledger);
   for (const auto& p : report.problems)
     std::cout << fmt::format("MISMATCH {}: {}\n", printable(p.object), printable(p.problem));

@@ -11,17 +11,16 @@
 #include <map>
 #include <set>
 
-#include "core/reading.h"
 #include "core/error.h"
 #include "core/evaluation.h"
 #include "core/number_text.h"
 #include "core/parallel.h"
+#include "core/reading.h"
 #include "core/timings.h"
-#include "store/run_store.h"
-#include "store/series_store.h"
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
 #include "report/reports.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
@@ -39,7 +38,7 @@ bool is_pattern(const std::string& s) {
 
 std::vector<std::string> resolve_strategies(store::Ledger& ledger,
                                             const std::vector<std::string>& requested) {
-  const auto all = store::series_names(ledger, core::SeriesKind::strategy);
+  const auto all = ledger.series_names(core::SeriesKind::strategy);
   std::vector<std::string> chosen;
   std::set<std::string> seen;
   for (const auto& want : requested) {
@@ -66,9 +65,9 @@ std::optional<int> pinned(const EvaluateRequest& rq, const std::string& name) {
 }
 
 store::LoadedVersion load_kind(store::Ledger& ledger, const EvaluateRequest& rq,
-                                const std::string& name, const std::vector<std::string>& kinds,
-                                const std::string& role) {
-  auto loaded = store::load_version(ledger, name, pinned(rq, name));
+                               const std::string& name, const std::vector<std::string>& kinds,
+                               const std::string& role) {
+  auto loaded = ledger.load_version(name, pinned(rq, name));
   if (std::find(kinds.begin(), kinds.end(), loaded.info.kind) == kinds.end())
     throw usage(fmt::format("'{}' is a {} series, not a {}; name a {} series with --{}", name,
                             loaded.info.kind, role, kinds.front(), role));
@@ -196,7 +195,7 @@ void evaluate_in_snapshot(store::Ledger& ledger, const EvaluateRequest& rq, cons
   for (const auto& name : strategy_names) wanted.push_back({name, pinned(rq, name)});
   // The version rows now (the frequencies decide the plans); the observations chunk by chunk
   // while evaluating, below.
-  const std::vector<store::VersionInfo> strategies = store::find_versions(ledger, wanted);
+  const std::vector<store::VersionInfo> strategies = ledger.find_versions(wanted);
   core::mark_phase("evaluate: inputs found");
 
   const auto detected = [](const store::VersionInfo& info, const std::string& what) {
@@ -339,7 +338,7 @@ void evaluate_in_snapshot(store::Ledger& ledger, const EvaluateRequest& rq, cons
       std::vector<store::VersionInfo> chunk;
       for (std::size_t j = first; j < chunk_end(first); ++j)
         chunk.push_back(strategies[plan.members[j]]);
-      return store::load_observations(ledger, std::move(chunk));
+      return ledger.load_observations(std::move(chunk));
     };
     std::vector<store::LoadedVersion> loaded = load_chunk(0);
     for (std::size_t first = 0; first < count; first = chunk_end(first)) {
@@ -408,16 +407,18 @@ std::vector<std::int64_t> record_in_transaction(store::Ledger& ledger,
   std::map<std::string, int> study_runs;
   std::map<std::string, int> strategy_runs;
   const auto counted = [&](std::map<std::string, int>& counts, const std::string& name,
-                           int (*count)(store::Ledger&, const std::string&)) {
+                           int (store::Ledger::*count)(const std::string&)) {
     auto [it, fresh] = counts.try_emplace(name, 0);
-    if (fresh) it->second = count(ledger, name);
+    if (fresh) it->second = (ledger.*count)(name);
     return ++it->second;
   };
   for (const auto& p : pending) {
-    const int study =
-        p.run.study.empty() ? 0 : counted(study_runs, p.run.study, store::count_study_runs);
+    const int study = p.run.study.empty()
+                          ? 0
+                          : counted(study_runs, p.run.study, &store::Ledger::count_study_runs);
     contexts.push_back(
-        {p.run.study, study, counted(strategy_runs, p.run.strategy, store::count_strategy_runs)});
+        {p.run.study, study,
+         counted(strategy_runs, p.run.strategy, &store::Ledger::count_strategy_runs)});
   }
   core::parallel_ranges(pending.size(), core::worker_count(pending.size(), 16),
                         [&](std::size_t first, std::size_t last) {
@@ -431,7 +432,7 @@ std::vector<std::int64_t> record_in_transaction(store::Ledger& ledger,
   std::vector<const record::NewRun*> runs;
   runs.reserve(pending.size());
   for (const auto& p : pending) runs.push_back(&p.run);
-  return store::store_runs(ledger, runs, on_stored);
+  return ledger.store_runs(runs, on_stored);
 }
 
 }  // namespace
@@ -620,12 +621,12 @@ void print_runs(std::ostream& out, store::Ledger& ledger, const std::vector<std:
                 Format format) {
   if (format == Format::json) {
     ordered_json array = ordered_json::array();
-    for (auto id : runs) array.push_back(store::load_run(ledger, id));
+    for (auto id : runs) array.push_back(ledger.load_run(id));
     print_json(out, array);
     return;
   }
   if (format == Format::table && runs.size() <= 3) {
-    for (auto id : runs) print_run_text(out, store::load_run(ledger, id));
+    for (auto id : runs) print_run_text(out, ledger.load_run(id));
     return;
   }
   // Many runs: one line each, read in one query (runs of one command have consecutive ids).
@@ -643,8 +644,7 @@ void print_runs(std::ostream& out, store::Ledger& ledger, const std::vector<std:
   const auto number = [](double v, int digits) {
     return std::isnan(v) ? std::string("n/a") : fmt::format("{:.{}f}", v, digits);
   };
-  const auto summaries =
-      runs.empty() ? std::vector<store::RunSummary>{} : store::list_runs(ledger, filter);
+  const auto summaries = runs.empty() ? std::vector<store::RunSummary>{} : ledger.list_runs(filter);
   for (const auto& r : summaries) {
     if (wanted.count(r.run_id) == 0) continue;
     table.rows.push_back(
@@ -681,7 +681,7 @@ std::string RollingChoice::text() const {
 }
 
 EvaluateRequest request_from_run(store::Ledger& ledger, std::int64_t run_id, bool pin_versions) {
-  const record::RunRow row = store::existing_run_row(ledger, run_id);
+  const record::RunRow row = ledger.existing_run_row(run_id);
   // The one reader of stored parameters: a field it cannot read stops here (exit 8) rather
   // than deep in the evaluation. Re-runs and reproductions read the stored result too.
   const auto p = record::read_parameters(run_id, row.engine_version, row.parameters_json);
@@ -706,7 +706,7 @@ EvaluateRequest request_from_run(store::Ledger& ledger, std::int64_t run_id, boo
   rq.study = row.study.value_or("");
   rq.note = row.note.value_or("");
   if (pin_versions)
-    for (const auto& in : store::read_run_inputs(ledger, run_id))
+    for (const auto& in : ledger.read_run_inputs(run_id))
       rq.pinned_versions[in.series] = in.version;
   return rq;
 }

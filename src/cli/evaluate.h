@@ -11,9 +11,8 @@
 
 #include "cli/output.h"
 #include "core/evaluation.h"
-#include "store/ledger.h"
-#include "store/run_store.h"
 #include "record/run_parameters.h"
+#include "store/ledger.h"
 
 namespace alphatrail::cli {
 
@@ -75,8 +74,8 @@ EvaluateRequest request_from_run(store::Ledger& ledger, std::int64_t run_id, boo
 // Evaluates every strategy the request names and records each as a run, all in one
 // transaction. Shows a progress bar on stderr when `progress` and many strategies.
 // Returns the new run ids. Throws alphatrail::Error; on failure nothing is recorded.
-std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger,
-                                              const EvaluateRequest& request, bool progress);
+std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger, const EvaluateRequest& request,
+                                              bool progress);
 
 // A re-run: the run revised, the run that revises it, and the significance level of both.
 struct RerunOutcome {

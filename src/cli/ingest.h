@@ -8,7 +8,6 @@
 #include <vector>
 
 #include "store/ledger.h"
-#include "store/series_store.h"
 
 namespace alphatrail::cli {
 

@@ -1,28 +1,31 @@
-// The ledger file: opening, creating and migrating an alphatrail SQLite ledger.
+// The ledger store: everything alphatrail keeps (series versions, runs, marks) behind one
+// abstract interface, so that commands and use cases never see the storage engine. Values go
+// in and come out typed (record/ and the types below); no SQL crosses this line.
 //
-// A Ledger owns one SQLite connection. Opening checks the file's application_id and refuses a
-// ledger newer than this binary. Opening to write upgrades an older ledger in one transaction
-// (saying so on the notice stream); opening read-only writes nothing and refuses an older
-// ledger instead. Failures throw alphatrail::Error with Failure::unusable_ledger.
+// One implementation exists today, SQLite (store/sqlite_ledger.h), chosen by open_ledger from
+// the ledger's location. A second engine implements this class and is chosen there too.
+//
+// Contracts every implementation keeps: nothing stored is ever updated or deleted (a new
+// version or run is added instead); writes happen inside write_transaction, all or nothing;
+// reads inside read_transaction see one snapshot. Failures throw alphatrail::Error with a
+// kind (core/error.h): unusable_ledger, busy, not_found, corruption, bad_input.
 #pragma once
 
-#include <SQLiteCpp/Database.h>
-#include <SQLiteCpp/Statement.h>
-
+#include <cstdint>
 #include <filesystem>
 #include <functional>
 #include <memory>
+#include <nlohmann/json.hpp>
+#include <optional>
 #include <ostream>
 #include <string>
-#include <unordered_map>
+#include <vector>
+
+#include "core/series_file.h"
+#include "record/content.h"
+#include "record/run_record.h"
 
 namespace alphatrail::store {
-
-// PRAGMA application_id of every alphatrail ledger: the bytes "ATRL".
-inline constexpr int kApplicationId = 0x4154524C;
-
-// PRAGMA page_size of a ledger this binary creates; older ledgers keep the size they have.
-inline constexpr int kNewLedgerPageSize = 16384;
 
 enum class OpenMode {
   create,    // create the file if missing (and say so), migrate
@@ -38,89 +41,199 @@ enum class OpenMode {
 // ./alphatrail.db.
 std::filesystem::path resolve_ledger_path(const std::string& option_value);
 
-// A prepared statement borrowed from a Ledger's cache; handing it back resets it and clears
-// its bindings, so a finished read never holds a snapshot open. Use it as a SQLite::Statement.
-class CachedStatement {
- public:
-  explicit CachedStatement(SQLite::Statement& statement) : statement_(&statement) {}
-  ~CachedStatement() {
-    statement_->tryReset();
-    statement_->clearBindings();
-  }
-  CachedStatement(const CachedStatement&) = delete;
-  CachedStatement& operator=(const CachedStatement&) = delete;
-  SQLite::Statement* operator->() { return statement_; }
-  SQLite::Statement& operator*() { return *statement_; }
+// Returns the milliseconds a command waits for a busy ledger ($ALPHATRAIL_BUSY_TIMEOUT_MS,
+// default 10000).
+int busy_timeout_ms();
 
- private:
-  SQLite::Statement* statement_;
+// A version to store, as prepared from an ingest file.
+struct NewVersion {
+  std::string name;
+  record::ContentMeta meta;
+  std::string input_unit;  // decimal | percent | levels: how the file stated the values
+  std::vector<record::ColumnData> columns;
+};
+
+// Where a batch of versions came from.
+struct SourceInfo {
+  std::string file;    // as the user named it
+  std::string sha256;  // of the file's bytes
+  std::string note;    // --note, may be empty
+};
+
+struct StoreOutcome {
+  std::string name;
+  std::string kind;
+  int version = 0;
+  bool new_series = false;
+  bool unchanged = false;  // identical content to the latest version: nothing written
+  std::string content_hash;
+};
+
+// One version's description (without observations).
+struct VersionInfo {
+  std::string name;
+  std::string kind;
+  int version = 0;
+  std::int64_t version_id = 0;
+  std::string content_hash;
+  std::string unit;
+  std::string input_unit;
+  std::optional<std::string> quote;
+  std::optional<std::string> frequency;
+  std::string first_date;
+  std::string last_date;
+  std::int64_t observations = 0;
+  std::int64_t missing = 0;
+  std::string source_file;
+  std::string source_sha256;
+  std::string ingested_at;
+  std::string ingested_by;
+  std::string note;
+  std::vector<std::string> columns;
+};
+
+// A version with its observations.
+struct LoadedVersion {
+  VersionInfo info;
+  std::vector<record::ColumnData> columns;
+};
+
+struct VersionRequest {
+  std::string name;
+  std::optional<int> version;  // nullopt: the latest
+};
+
+struct RunFilter {
+  std::string strategy;        // empty: any
+  std::string study;           // empty: any
+  std::int64_t first_run = 0;  // run ids from .. to (inclusive); 0: unbounded
+  std::int64_t last_run = 0;
+  bool staleness = true;  // false: leave RunSummary::stale false, which saves a join per run
+};
+
+// One line of `alphatrail runs`.
+struct RunSummary {
+  std::int64_t run_id = 0;
+  std::string created_at;
+  std::string strategy;
+  std::string benchmark;
+  std::string study;
+  std::string inputs_hash;
+  std::string frequency;
+  int observations = 0;
+  double alpha = 0;
+  double alpha_annualized = 0;
+  double alpha_t = 0;
+  double alpha_p = 0;
+  double beta = 0;
+  double r_squared = 0;
+  std::string errors;
+  int lags = 0;
+  bool stale = false;  // an input has a newer version than the run used
+  std::optional<std::int64_t> revises_run_id;
+};
+
+// An input of a run with a newer version than the one the run used.
+struct NewerInput {
+  std::string series;
+  int version = 0;         // the version the run used
+  int latest_version = 0;  // the newest version there is
 };
 
 class Ledger {
  public:
-  // Opens the ledger (in the create and existing modes creating or upgrading it when needed);
-  // notices go to `notices`. A read_only open never writes: it refuses an older ledger.
-  static Ledger open(const std::filesystem::path& path, OpenMode mode, std::ostream& notices);
+  virtual ~Ledger() = default;
 
-  SQLite::Database& db() { return *db_; }
-  const std::filesystem::path& path() const { return path_; }
-  // Returns PRAGMA user_version, the number of migrations applied.
-  int schema_version();
+  // Where the ledger is, as the user would name it (a file path).
+  virtual const std::filesystem::path& path() const = 0;
+  // Returns the schema version of the ledger (the number of migrations applied).
+  virtual int schema_version() = 0;
 
-  // Runs work inside BEGIN IMMEDIATE ... COMMIT; any exception rolls everything back. Inside
+  // --- transactions
+  // Runs work inside one write transaction; any exception rolls everything back. Inside
   // another transaction it joins it (as a savepoint): a command that does several writing
   // steps wraps them in one outer write_transaction and commits once, all or nothing.
-  void write_transaction(const std::function<void()>& work);
+  virtual void write_transaction(const std::function<void()>& work) = 0;
+  // Runs work inside one read transaction: every read sees the same snapshot. Inside another
+  // transaction it runs in that one's snapshot.
+  virtual void read_transaction(const std::function<void()>& work) = 0;
+  // Returns true while a transaction is open.
+  virtual bool in_transaction() = 0;
 
-  // Runs work inside one read transaction: every statement sees the same snapshot, and SQLite
-  // takes its locks once instead of once per statement (thousands when loading many series).
-  // Inside another transaction it runs in that one's snapshot.
-  void read_transaction(const std::function<void()>& work);
+  // --- marks (table ledger_marks: one row per mark, never changed)
+  // Empties the ledger in place and recreates the schema, inside the caller's write
+  // transaction: the ledger stays the same ledger, so another process that has it open sees
+  // the new content. Used by `demo --replace` on its own ledgers.
+  virtual void erase_and_recreate() = 0;
+  virtual void add_mark(const std::string& mark, const std::string& detail,
+                        const std::string& marked_at) = 0;
+  // Returns true when the ledger carries the mark (false for ledgers older than the marks).
+  virtual bool has_mark(const std::string& mark) = 0;
 
-  // Returns true while a transaction is open on this connection.
-  bool in_transaction();
+  // --- series and versions
+  // Stores each version whose content differs from its series' latest version. Must run
+  // inside write_transaction. Throws Error(bad_input) when a name exists as another kind.
+  virtual std::vector<StoreOutcome> store_versions(std::vector<NewVersion> versions,
+                                                   const SourceInfo& source) = 0;
+  // Returns the names of every series of a kind, in name order.
+  virtual std::vector<std::string> series_names(core::SeriesKind kind) = 0;
+  // Returns the latest version of every series, set and curve, ordered by kind then name.
+  virtual std::vector<VersionInfo> list_latest_versions() = 0;
+  // Returns every version of a series, oldest first; throws Error(not_found) when unknown.
+  virtual std::vector<VersionInfo> version_history(const std::string& name) = 0;
+  // Returns one version row per request, without the observations; throws Error(not_found).
+  virtual std::vector<VersionInfo> find_versions(const std::vector<VersionRequest>& requests) = 0;
+  // Loads the observations of versions find_versions returned; throws Error(corruption) for
+  // a column that cannot be read back.
+  virtual std::vector<LoadedVersion> load_observations(std::vector<VersionInfo> versions) = 0;
+  // find_versions and load_observations in one, in request order.
+  std::vector<LoadedVersion> load_versions(const std::vector<VersionRequest>& requests);
+  // Loads a version (the latest when version is empty); throws Error(not_found) when absent.
+  LoadedVersion load_version(const std::string& name, std::optional<int> version = std::nullopt);
 
-  // Drops the cached statements (before the schema they were prepared against changes).
-  void forget_statements() { statements_.clear(); }
-
-  // Returns the statement for `sql`, prepared once per connection: statements run once per
-  // run or per series (thousands per command) spend more time being parsed than executed.
-  // Do not borrow the same statement twice at once.
-  CachedStatement statement(const std::string& sql);
-
- private:
-  Ledger(std::filesystem::path path, std::unique_ptr<SQLite::Database> db);
-  std::filesystem::path path_;
-  std::unique_ptr<SQLite::Database> db_;
-  // Declared after db_, so destroyed before the connection closes.
-  std::unordered_map<std::string, std::unique_ptr<SQLite::Statement>> statements_;
+  // --- runs
+  // Records runs in order, each chained to the one before, all with one time of recording;
+  // must run inside write_transaction. Drafts the rows on all cores, then appends them one
+  // by one, calling on_stored(number stored so far) after each. Returns their run ids.
+  virtual std::vector<std::int64_t> store_runs(
+      const std::vector<const record::NewRun*>& runs,
+      const std::function<void(std::size_t)>& on_stored = {}) = 0;
+  // Reads a run row with its inputs and coefficients; nullopt when absent.
+  virtual std::optional<record::RunRow> read_run_row(std::int64_t run_id) = 0;
+  // Returns the row of a run that must exist; throws Error(not_found) naming the run, the
+  // ledger and the command that lists the runs.
+  record::RunRow existing_run_row(std::int64_t run_id);
+  // Returns the inputs of a stored run with their versions' names, numbers and hashes.
+  virtual std::vector<record::RunInput> read_run_inputs(std::int64_t run_id) = 0;
+  // Returns the JSON run object of a run (the contract of `show --format json`); throws
+  // Error(not_found) when absent.
+  virtual nlohmann::ordered_json load_run(std::int64_t run_id) = 0;
+  // Returns how many runs a study has (0 for an empty study name).
+  virtual int count_study_runs(const std::string& study) = 0;
+  // Returns how many runs a strategy has.
+  virtual int count_strategy_runs(const std::string& strategy) = 0;
+  // Returns the runs matching the filter, oldest first.
+  virtual std::vector<RunSummary> list_runs(const RunFilter& filter) = 0;
+  // Returns the stale runs (an input has a newer version than the run used: the run_summary
+  // view's definition) that no later run revises yet, oldest first.
+  virtual std::vector<std::int64_t> unrevised_stale_runs() = 0;
+  // Returns the inputs of a run that have newer versions, in the run's input order.
+  virtual std::vector<NewerInput> newer_input_versions(std::int64_t run_id) = 0;
 };
-
-// Empties the ledger in place and applies every migration from zero, inside the caller's write
-// transaction: the file stays the same file, so another process that has it open sees the new
-// content instead of writing into a deleted file. Used by `demo --replace` on its own ledgers.
-void erase_and_recreate(Ledger& ledger);
-
-// Adds a mark to the ledger (table ledger_marks, one row per mark; a mark is never changed).
-void add_mark(Ledger& ledger, const std::string& mark, const std::string& detail,
-              const std::string& marked_at);
-
-// Returns true when the ledger carries the mark (false for ledgers older than the marks).
-bool has_mark(Ledger& ledger, const std::string& mark);
 
 // Returns the schema version this binary writes (the number of embedded migrations).
 int current_schema_version();
 
-// Applies the migrations after the database's user_version, each with its version bump in
-// one BEGIN IMMEDIATE transaction. Returns the number applied.
-int migrate(SQLite::Database& db);
+// Opens the ledger at `location` (in the create and existing modes creating or upgrading it
+// when needed; notices go to `notices`). A read_only open never writes.
+std::unique_ptr<Ledger> open_ledger(const std::filesystem::path& location, OpenMode mode,
+                                    std::ostream& notices);
 
-// Returns a normalised description of every table, column, index, view and trigger, for
-// comparing two schemas (comments and white space do not count).
-std::string schema_fingerprint(SQLite::Database& db);
+// Returns the current UTC time as ISO 8601 with milliseconds, e.g. 2026-12-02T01:02:03.004Z.
+std::string utc_now();
 
-// Returns the milliseconds a command waits for a busy ledger ($ALPHATRAIL_BUSY_TIMEOUT_MS,
-// default 10000).
-int busy_timeout_ms();
+// Returns the name of the user running the command ($USER, else the account), with bytes that
+// are not storable text (core/text.h) escaped as \xNN.
+std::string current_user();
 
 }  // namespace alphatrail::store

@@ -14,10 +14,10 @@
 #include "core/dates.h"
 #include "core/error.h"
 #include "record/content.h"
-#include "store/run_store.h"
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
 #include "record/stored_text.h"
+#include "store/sqlite_ledger.h"
 
 namespace alphatrail::store {
 
@@ -34,7 +34,8 @@ Word word_at(std::string_view bytes, std::size_t at) {
 
 // Shows a day read from a packed copy, which may lie outside the years a date can be written.
 std::string shown_day(core::Day day) {
-  if (day < record::kFirstStoredDay || day > record::kLastStoredDay) return fmt::format("day number {}", day);
+  if (day < record::kFirstStoredDay || day > record::kLastStoredDay)
+    return fmt::format("day number {}", day);
   return core::format_date(day);
 }
 
@@ -73,7 +74,7 @@ std::optional<std::string> packed_mismatch(const record::ColumnData& column, std
   return std::nullopt;  // not reached: equal sizes and equal words are equal bytes
 }
 
-void verify_versions(Ledger& ledger, VerifyReport& report) {
+void verify_versions(SqliteLedger& ledger, VerifyReport& report) {
   SQLite::Statement versions(ledger.db(),
                              "SELECT v.version_id, s.name, s.kind, v.version, v.unit, v.quote, "
                              "v.content_hash, coalesce(v.frequency, ''), v.first_date, "
@@ -88,7 +89,7 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
     const std::string object = fmt::format(
         "series {} version {}", versions.getColumn(1).getString(), versions.getColumn(3).getInt());
     record::ContentMeta meta{versions.getColumn(2).getString(), versions.getColumn(4).getString(),
-                     std::nullopt};
+                             std::nullopt};
     if (!versions.getColumn(5).isNull()) meta.quote = versions.getColumn(5).getString();
     std::vector<record::EncodedColumn> encoded;
     std::vector<core::Day> dates;
@@ -98,7 +99,8 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
     while (columns.executeStep()) {
       encoded.push_back({columns.getColumn(0).getString(), columns.getColumn(1).getString()});
       try {
-        const auto column = record::decode_values_json(encoded.back().name, encoded.back().values_json);
+        const auto column =
+            record::decode_values_json(encoded.back().name, encoded.back().values_json);
         dates.insert(dates.end(), column.dates.begin(), column.dates.end());
         missing += std::count_if(column.values.begin(), column.values.end(),
                                  [](double v) { return std::isnan(v); });
@@ -148,7 +150,7 @@ void verify_versions(Ledger& ledger, VerifyReport& report) {
   }
 }
 
-void verify_runs(Ledger& ledger, VerifyReport& report) {
+void verify_runs(SqliteLedger& ledger, VerifyReport& report) {
   SQLite::Statement ids(ledger.db(), "SELECT run_id FROM runs ORDER BY run_id");
   std::string previous = record::kGenesisHash;
   std::int64_t expected_id = 1;
@@ -161,9 +163,9 @@ void verify_runs(Ledger& ledger, VerifyReport& report) {
           {object,
            fmt::format("runs are not numbered without gaps: expected run {} here", expected_id)});
     expected_id = id + 1;
-    const auto row = read_run_row(ledger, id);
+    const auto row = ledger.read_run_row(id);
     const std::string inputs =
-        record::inputs_hash(row->engine_version, row->parameters_json, read_run_inputs(ledger, id));
+        record::inputs_hash(row->engine_version, row->parameters_json, ledger.read_run_inputs(id));
     if (inputs != row->inputs_hash)
       report.problems.push_back(
           {object, fmt::format("inputs hash {} does not match its inputs and parameters ({})",
@@ -173,7 +175,8 @@ void verify_runs(Ledger& ledger, VerifyReport& report) {
           {object,
            "the hash chain is broken before this run: a run was removed, reordered or "
            "edited"});
-    const std::string record = record::chain_hash(row->previous_record_hash, record::canonical_run_record(*row));
+    const std::string record =
+        record::chain_hash(row->previous_record_hash, record::canonical_run_record(*row));
     if (record != row->record_hash)
       report.problems.push_back(
           {object, "its record does not match its record hash: the run was edited"});
@@ -191,7 +194,7 @@ void verify_runs(Ledger& ledger, VerifyReport& report) {
 
 }  // namespace
 
-VerifyReport verify_ledger(Ledger& ledger) {
+VerifyReport verify_ledger(SqliteLedger& ledger) {
   VerifyReport report;
   report.chain_head = record::kGenesisHash;
   SQLite::Statement integrity(ledger.db(), "PRAGMA integrity_check");

@@ -8,7 +8,7 @@
 #include <string>
 #include <vector>
 
-#include "store/ledger.h"
+#include "store/sqlite_ledger.h"
 
 namespace alphatrail::store {
 
@@ -28,6 +28,6 @@ struct VerifyReport {
 // Checks everything the ledger can prove about itself.
 // Note: removing the newest runs leaves a shorter but consistent chain; compare chain_head
 // with a value kept outside the ledger to detect that.
-VerifyReport verify_ledger(Ledger& ledger);
+VerifyReport verify_ledger(SqliteLedger& ledger);
 
 }  // namespace alphatrail::store

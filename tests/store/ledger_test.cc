@@ -1,8 +1,6 @@
 // Tests of the ledger file: migrations from zero equal schema/ledger.sql, opening modes and
 // their refusals, transactions that are all or nothing, and the triggers that keep every
 // table append-only.
-#include "store/ledger.h"
-
 #include <SQLiteCpp/Database.h>
 #include <SQLiteCpp/Statement.h>
 #include <gtest/gtest.h>
@@ -19,6 +17,7 @@
 
 #include "core/error.h"
 #include "store/migrations.h"
+#include "store/sqlite_ledger.h"
 #include "support/test_support.h"
 
 namespace {
@@ -161,7 +160,7 @@ TEST(Migrations, UpgradedOldLedgerEqualsANewOne) {
   const fs::path path = dir / "v1.db";
   fs::copy_file(source_path("fixtures/ledgers/v1.db"), path);
   std::ostringstream notices;
-  auto upgraded = store::Ledger::open(path, store::OpenMode::existing, notices);
+  auto upgraded = store::SqliteLedger::open(path, store::OpenMode::existing, notices);
   auto fresh = memory_db();
   store::migrate(fresh);
   EXPECT_EQ(store::schema_fingerprint(upgraded.db()), store::schema_fingerprint(fresh));
@@ -196,7 +195,7 @@ TEST(LedgerOpen, CreateMakesACurrentWalLedgerAndSaysSo) {
   ScratchDir dir;
   const fs::path path = dir / "new.db";
   std::ostringstream notices;
-  auto l = store::Ledger::open(path, store::OpenMode::create, notices);
+  auto l = store::SqliteLedger::open(path, store::OpenMode::create, notices);
   EXPECT_EQ(notices.str(), "created ledger " + path.string() + " (schema version " +
                                std::to_string(store::current_schema_version()) + ")\n");
   EXPECT_EQ(l.schema_version(), store::current_schema_version());
@@ -207,7 +206,7 @@ TEST(LedgerOpen, CreateMakesACurrentWalLedgerAndSaysSo) {
   EXPECT_EQ(l.db().execAndGet("PRAGMA page_size").getInt(), store::kNewLedgerPageSize);
 
   std::ostringstream again;
-  auto reopened = store::Ledger::open(path, store::OpenMode::existing, again);
+  auto reopened = store::SqliteLedger::open(path, store::OpenMode::existing, again);
   EXPECT_EQ(again.str(), "");
 }
 
@@ -216,12 +215,12 @@ TEST(LedgerOpen, ExistingLedgerIsSwitchedToWal) {
   ScratchDir dir;
   const fs::path path = dir / "ledger.db";
   std::ostringstream notices;
-  { store::Ledger::open(path, store::OpenMode::create, notices); }
+  { store::SqliteLedger::open(path, store::OpenMode::create, notices); }
   {
     SQLite::Database db(path.string(), SQLite::OPEN_READWRITE);
     db.exec("PRAGMA journal_mode = DELETE");
   }
-  { store::Ledger::open(path, store::OpenMode::existing, notices); }
+  { store::SqliteLedger::open(path, store::OpenMode::existing, notices); }
   SQLite::Database db(path.string(), SQLite::OPEN_READONLY);
   EXPECT_EQ(db.execAndGet("PRAGMA journal_mode").getString(), "wal");
 }
@@ -233,7 +232,7 @@ TEST(LedgerOpen, OlderLedgerKeepsItsPageSize) {
   const fs::path path = dir / "ledger.db";
   fs::copy_file(source_path("fixtures/ledgers/v1.db"), path);
   std::ostringstream notices;
-  auto l = store::Ledger::open(path, store::OpenMode::existing, notices);
+  auto l = store::SqliteLedger::open(path, store::OpenMode::existing, notices);
   EXPECT_EQ(l.db().execAndGet("PRAGMA page_size").getInt(), 4096);
   EXPECT_EQ(l.db().execAndGet("PRAGMA integrity_check").getString(), "ok");
 }
@@ -244,7 +243,7 @@ TEST(LedgerOpen, ExistingAndReadOnlyNeedAFile) {
   for (auto mode : {store::OpenMode::existing, store::OpenMode::read_only}) {
     std::ostringstream notices;
     try {
-      store::Ledger::open(path, mode, notices);
+      store::SqliteLedger::open(path, mode, notices);
       ADD_FAILURE() << "opened a missing ledger";
     } catch (const Error& e) {
       EXPECT_EQ(e.kind(), Failure::unusable_ledger);
@@ -258,8 +257,8 @@ TEST(LedgerOpen, ReadOnlyRefusesWrites) {
   ScratchDir dir;
   const fs::path path = dir / "ro.db";
   std::ostringstream notices;
-  { store::Ledger::open(path, store::OpenMode::create, notices); }
-  auto l = store::Ledger::open(path, store::OpenMode::read_only, notices);
+  { store::SqliteLedger::open(path, store::OpenMode::create, notices); }
+  auto l = store::SqliteLedger::open(path, store::OpenMode::read_only, notices);
   EXPECT_NE(sql_error(l.db(),
                       "INSERT INTO series (name, kind, created_at) VALUES ('x', "
                       "'strategy', '2021-01-01T00:00:00.000Z')"),
@@ -292,7 +291,7 @@ TEST(LedgerOpen, ReadOnlyRefusesWhatItWouldHaveToChange) {
     const std::string before = read_file(c.path);
     std::ostringstream notices;
     try {
-      store::Ledger::open(c.path, store::OpenMode::read_only, notices);
+      store::SqliteLedger::open(c.path, store::OpenMode::read_only, notices);
       ADD_FAILURE() << "opened read-only";
     } catch (const Error& e) {
       EXPECT_EQ(e.kind(), Failure::unusable_ledger);
@@ -312,13 +311,13 @@ TEST(LedgerOpen, NewerLedgerIsRefused) {
   const fs::path path = dir / "future.db";
   std::ostringstream notices;
   {
-    auto l = store::Ledger::open(path, store::OpenMode::create, notices);
+    auto l = store::SqliteLedger::open(path, store::OpenMode::create, notices);
     l.db().exec("PRAGMA user_version = 999");
   }
   for (auto mode :
        {store::OpenMode::create, store::OpenMode::existing, store::OpenMode::read_only}) {
     try {
-      store::Ledger::open(path, mode, notices);
+      store::SqliteLedger::open(path, mode, notices);
       ADD_FAILURE() << "opened a ledger newer than the binary";
     } catch (const Error& e) {
       EXPECT_EQ(e.kind(), Failure::unusable_ledger);
@@ -334,7 +333,7 @@ TEST(LedgerOpen, OlderLedgerIsUpgradedAndSaysSo) {
   const fs::path path = dir / "v1.db";
   fs::copy_file(source_path("fixtures/ledgers/v1.db"), path);
   std::ostringstream notices;
-  auto l = store::Ledger::open(path, store::OpenMode::existing, notices);
+  auto l = store::SqliteLedger::open(path, store::OpenMode::existing, notices);
   EXPECT_EQ(l.schema_version(), store::current_schema_version());
   if (store::current_schema_version() > 1)
     EXPECT_TRUE(
@@ -389,7 +388,7 @@ class LedgerRows : public ::testing::Test {
   void SetUp() override {
     fs::copy_file(source_path("fixtures/ledgers/v1.db"), path_);
     std::ostringstream notices;
-    ledger_.emplace(store::Ledger::open(path_, store::OpenMode::existing, notices));
+    ledger_.emplace(store::SqliteLedger::open(path_, store::OpenMode::existing, notices));
   }
   SQLite::Database& db() { return ledger_->db(); }
 
@@ -408,7 +407,7 @@ class LedgerRows : public ::testing::Test {
 
   ScratchDir dir_;
   fs::path path_ = dir_ / "ledger.db";
-  std::optional<store::Ledger> ledger_;
+  std::optional<store::SqliteLedger> ledger_;
 };
 
 TEST_F(LedgerRows, UpdatesAndDeletesAbortWithTheTriggerMessage) {

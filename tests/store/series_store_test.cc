@@ -1,7 +1,5 @@
 // Tests of the series store: new series, unchanged content and next versions inside a write
 // transaction, all-or-nothing batches, bit-exact loading, version history and not-found errors.
-#include "store/series_store.h"
-
 #include <SQLiteCpp/Database.h>
 #include <fmt/format.h>
 #include <gtest/gtest.h>
@@ -17,6 +15,7 @@
 #include <vector>
 
 #include "core/error.h"
+#include "store/sqlite_ledger.h"
 #include "support/test_support.h"
 
 namespace {
@@ -52,7 +51,7 @@ std::uint64_t bits(double x) {
 }
 
 store::NewVersion returns(const std::string& name, std::vector<double> values,
-                           const std::string& kind = "strategy") {
+                          const std::string& kind = "strategy") {
   store::NewVersion v;
   v.name = name;
   v.meta = {kind, "decimal return", std::nullopt};
@@ -64,14 +63,13 @@ store::NewVersion returns(const std::string& name, std::vector<double> values,
 class SeriesStore : public ::testing::Test {
  protected:
   SeriesStore()
-      : ledger_(store::Ledger::open(dir_ / "ledger.db", store::OpenMode::create, notices_)) {}
+      : ledger_(store::SqliteLedger::open(dir_ / "ledger.db", store::OpenMode::create, notices_)) {}
 
   std::vector<store::StoreOutcome> store(std::vector<store::NewVersion> versions,
-                                          const std::string& note = "") {
+                                         const std::string& note = "") {
     std::vector<store::StoreOutcome> out;
     ledger_.write_transaction([&] {
-      out = store::store_versions(ledger_, std::move(versions),
-                                   {"input.csv", std::string(64, 'a'), note});
+      out = ledger_.store_versions(std::move(versions), {"input.csv", std::string(64, 'a'), note});
     });
     return out;
   }
@@ -82,7 +80,7 @@ class SeriesStore : public ::testing::Test {
 
   ScratchDir dir_;
   std::ostringstream notices_;
-  store::Ledger ledger_;
+  store::SqliteLedger ledger_;
 };
 
 TEST_F(SeriesStore, NewSeriesThenUnchangedThenNextVersion) {
@@ -158,7 +156,7 @@ TEST_F(SeriesStore, LoadVersionRoundTripsValuesBitForBit) {
   const std::vector<double> values{0.1,    1.0 / 3, kNaN,      -0.0,    5e-324,
                                    1e-300, -0.99,   0.1 + 0.2, 123.456, 110.0 / 100 - 1};
   store({returns("exact", values)}, "a note");
-  const auto loaded = store::load_version(ledger_, "exact");
+  const auto loaded = ledger_.load_version("exact");
   ASSERT_EQ(loaded.columns.size(), 1u);
   const auto& c = loaded.columns[0];
   EXPECT_EQ(c.name, "exact");
@@ -195,9 +193,9 @@ TEST_F(SeriesStore, LoadVersionRoundTripsValuesBitForBit) {
 TEST_F(SeriesStore, LoadVersionPicksTheAskedVersion) {
   store({returns("fund", {0.01, 0.02})});
   store({returns("fund", {0.01, 0.03})});
-  EXPECT_EQ(store::load_version(ledger_, "fund").info.version, 2);
-  EXPECT_EQ(store::load_version(ledger_, "fund").columns[0].values[1], 0.03);
-  const auto first = store::load_version(ledger_, "fund", 1);
+  EXPECT_EQ(ledger_.load_version("fund").info.version, 2);
+  EXPECT_EQ(ledger_.load_version("fund").columns[0].values[1], 0.03);
+  const auto first = ledger_.load_version("fund", 1);
   EXPECT_EQ(first.info.version, 1);
   EXPECT_EQ(first.columns[0].values[1], 0.02);
 }
@@ -212,7 +210,7 @@ TEST_F(SeriesStore, SetWithSeveralColumnsKeepsTheirOrderAndDateUnion) {
   set.columns.push_back({"mkt_rf", {d[0], d[1], d[2]}, {0.01, 0.02, 0.03}});
   const auto out = store({set});
   EXPECT_TRUE(out[0].new_series);
-  const auto loaded = store::load_version(ledger_, "ff");
+  const auto loaded = ledger_.load_version("ff");
   ASSERT_EQ(loaded.columns.size(), 2u);
   EXPECT_EQ(loaded.columns[0].name, "smb");
   EXPECT_EQ(loaded.columns[1].name, "mkt_rf");
@@ -233,7 +231,7 @@ TEST_F(SeriesStore, RateCurveKeepsItsQuote) {
   curve.input_unit = "percent";
   curve.columns.push_back({"3M", month_ends(2), {4.5, 4.25}});
   store({curve});
-  const auto loaded = store::load_version(ledger_, "ust");
+  const auto loaded = ledger_.load_version("ust");
   EXPECT_EQ(loaded.info.quote, std::optional<std::string>("discount"));
   EXPECT_EQ(loaded.info.unit, "percent yield");
   // The same numbers quoted as yields are other content.
@@ -246,7 +244,7 @@ TEST_F(SeriesStore, VersionHistoryIsOldestFirst) {
   store({returns("fund", {0.01, 0.02})}, "second");
   store({returns("other", {0.05})});
   store({returns("fund", {0.01, 0.02, 0.03})}, "third");
-  const auto history = store::version_history(ledger_, "fund");
+  const auto history = ledger_.version_history("fund");
   ASSERT_EQ(history.size(), 3u);
   for (int i = 0; i < 3; ++i) {
     EXPECT_EQ(history[i].name, "fund");
@@ -266,7 +264,7 @@ TEST_F(SeriesStore, ListHoldsTheLatestOfEachByKindThenName) {
   store({returns("beta", {0.03})});
   store::NewVersion factors = returns("aaa-factors", {0.01}, "factor");
   store({factors});
-  const auto list = store::list_latest_versions(ledger_);
+  const auto list = ledger_.list_latest_versions();
   ASSERT_EQ(list.size(), 4u);
   EXPECT_EQ(list[0].name, "alpha");
   EXPECT_EQ(list[1].name, "beta");
@@ -286,16 +284,14 @@ TEST_F(SeriesStore, UnknownNamesAndVersionsAreNotFound) {
       EXPECT_NE(std::string(e.what()).find(message), std::string::npos) << e.what();
     }
   };
-  expect_not_found([&] { store::version_history(ledger_, "nope"); }, "no series named 'nope'");
-  expect_not_found([&] { store::load_version(ledger_, "nope"); }, "no series named 'nope'");
-  expect_not_found([&] { store::load_version(ledger_, "nope", 1); }, "no series named 'nope'");
-  expect_not_found([&] { store::load_version(ledger_, "fund", 2); },
-                   "series 'fund' has no version 2");
-  expect_not_found([&] { store::load_version(ledger_, "fund", 0); },
-                   "series 'fund' has no version 0");
+  expect_not_found([&] { ledger_.version_history("nope"); }, "no series named 'nope'");
+  expect_not_found([&] { ledger_.load_version("nope"); }, "no series named 'nope'");
+  expect_not_found([&] { ledger_.load_version("nope", 1); }, "no series named 'nope'");
+  expect_not_found([&] { ledger_.load_version("fund", 2); }, "series 'fund' has no version 2");
+  expect_not_found([&] { ledger_.load_version("fund", 0); }, "series 'fund' has no version 0");
   // Names are exact: no case folding, no prefixes.
-  expect_not_found([&] { store::load_version(ledger_, "FUND"); }, "no series named 'FUND'");
-  expect_not_found([&] { store::load_version(ledger_, "fun"); }, "no series named 'fun'");
+  expect_not_found([&] { ledger_.load_version("FUND"); }, "no series named 'FUND'");
+  expect_not_found([&] { ledger_.load_version("fun"); }, "no series named 'fun'");
 }
 
 TEST_F(SeriesStore, ManySeriesInOneBatch) {
@@ -310,7 +306,7 @@ TEST_F(SeriesStore, ManySeriesInOneBatch) {
     EXPECT_TRUE(out[i].new_series);
   }
   EXPECT_EQ(rows("series"), 200);
-  EXPECT_EQ(store::load_version(ledger_, "s123").columns[0].values[0], 123 * 1e-4);
+  EXPECT_EQ(ledger_.load_version("s123").columns[0].values[0], 123 * 1e-4);
   EXPECT_EQ(
       ledger_.db().execAndGet("SELECT count(DISTINCT content_hash) FROM series_versions").getInt(),
       200);
@@ -338,10 +334,10 @@ TEST_F(SeriesStore, LoadsManyVersionsAsLoadVersionDoes) {
   std::vector<store::VersionRequest> wanted;
   for (int i = 119; i >= 0; --i) wanted.push_back({fmt::format("s{}", i), std::nullopt});
   wanted.push_back({"s7", 1});
-  const auto many = store::load_versions(ledger_, wanted);
+  const auto many = ledger_.load_versions(wanted);
   ASSERT_EQ(many.size(), wanted.size());
   for (std::size_t r = 0; r < wanted.size(); ++r) {
-    const auto one = store::load_version(ledger_, wanted[r].name, wanted[r].version);
+    const auto one = ledger_.load_version(wanted[r].name, wanted[r].version);
     EXPECT_EQ(many[r].info.name, wanted[r].name);
     EXPECT_EQ(many[r].info.version, one.info.version);
     ASSERT_EQ(many[r].columns.size(), 1u);
@@ -358,7 +354,7 @@ TEST_F(SeriesStore, LoadsManyVersionsAsLoadVersionDoes) {
 
   wanted.insert(wanted.begin() + 60, {"missing", std::nullopt});
   try {
-    store::load_versions(ledger_, wanted);
+    ledger_.load_versions(wanted);
     ADD_FAILURE() << "an unknown series was loaded";
   } catch (const Error& e) {
     EXPECT_EQ(e.kind(), Failure::not_found);
@@ -410,7 +406,7 @@ store::NewVersion awkward_set() {
 }
 
 // Runs SQL on the test's own connection with the guarding triggers of packed_columns dropped.
-void without_packed_triggers(store::Ledger& l, const std::string& sql) {
+void without_packed_triggers(store::SqliteLedger& l, const std::string& sql) {
   l.db().exec("DROP TRIGGER packed_columns_no_update");
   l.db().exec("DROP TRIGGER packed_columns_no_delete");
   ASSERT_GE(l.db().exec(sql), 1) << sql;
@@ -451,7 +447,7 @@ TEST_F(SeriesStore, LoadReadsThePackedCopyWhenThereIsOne) {
                           "7b14ae47e17a843f"
                           "7b14ae47e17a943f"
                           "0000000000000840'");  // 0.01, 0.02, 3
-  const auto loaded = store::load_version(ledger_, "fund");
+  const auto loaded = ledger_.load_version("fund");
   ASSERT_EQ(loaded.columns.size(), 1u);
   EXPECT_EQ(loaded.columns[0].values, (std::vector<double>{0.01, 0.02, 3.0}));
 }
@@ -463,7 +459,7 @@ TEST_F(SeriesStore, LoadsTheSameWithAndWithoutThePackedCopy) {
   store(batch);
   std::vector<store::VersionRequest> wanted{{"awkward", std::nullopt}};
   for (int i = 0; i < 40; ++i) wanted.push_back({fmt::format("s{}", i), std::nullopt});
-  const auto packed = store::load_versions(ledger_, wanted);
+  const auto packed = ledger_.load_versions(wanted);
 
   // The packed copies read back what was stored, bit for bit.
   ASSERT_EQ(packed[0].columns.size(), 2u);
@@ -477,11 +473,11 @@ TEST_F(SeriesStore, LoadsTheSameWithAndWithoutThePackedCopy) {
   // As a ledger from before schema version 5 has them: half of the columns without a packed
   // copy, then none. Loading falls back to the JSON and gives the same data.
   without_packed_triggers(ledger_, "DELETE FROM packed_columns WHERE column_id % 2 = 0");
-  const auto mixed = store::load_versions(ledger_, wanted);
+  const auto mixed = ledger_.load_versions(wanted);
   ASSERT_EQ(rows("packed_columns"), 21);
   ledger_.db().exec("DELETE FROM packed_columns");
   ASSERT_EQ(rows("packed_columns"), 0);
-  const auto from_json = store::load_versions(ledger_, wanted);
+  const auto from_json = ledger_.load_versions(wanted);
   ASSERT_EQ(mixed.size(), packed.size());
   ASSERT_EQ(from_json.size(), packed.size());
   for (std::size_t r = 0; r < packed.size(); ++r) {
@@ -496,7 +492,7 @@ TEST_F(SeriesStore, CorruptedPackedCopyIsALedgerErrorNamingTheColumn) {
   store({returns("fund", {0.01, 0.02, 0.03})});
   const auto expect_corrupted = [&](const std::string& problem) {
     try {
-      const auto loaded = store::load_version(ledger_, "fund");
+      const auto loaded = ledger_.load_version("fund");
       ADD_FAILURE() << "loaded a corrupted packed copy: " << loaded.columns[0].values.size()
                     << " values";
     } catch (const Error& e) {
@@ -550,21 +546,21 @@ TEST(PackedUpgrade, VersionOneLedgerLoadsItsColumnsFromTheirJson) {
   const auto path = dir / "v1.db";
   std::filesystem::copy_file(source_path("fixtures/ledgers/v1.db"), path);
   std::ostringstream notices;
-  auto l = store::Ledger::open(path, store::OpenMode::existing, notices);
+  auto l = store::SqliteLedger::open(path, store::OpenMode::existing, notices);
   ASSERT_EQ(l.schema_version(), store::current_schema_version());
   EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 0);
-  const auto old = store::load_version(l, "fund-one");
+  const auto old = l.load_version("fund-one");
   ASSERT_EQ(old.columns.size(), 1u);
   EXPECT_EQ(old.columns[0].dates,
             (std::vector<core::Day>{day(2021, 1, 31), day(2021, 2, 28), day(2021, 3, 31)}));
   EXPECT_EQ(old.columns[0].values, (std::vector<double>{0.01, -0.005, 0.012}));
 
   l.write_transaction([&] {
-    store::store_versions(l, {returns("fund-one", {0.01, -0.005, 0.012, 0.002})},
-                           {"more.csv", std::string(64, 'b'), ""});
+    l.store_versions({returns("fund-one", {0.01, -0.005, 0.012, 0.002})},
+                     {"more.csv", std::string(64, 'b'), ""});
   });
   EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 1);
-  const auto both = store::load_versions(l, {{"fund-one", 1}, {"fund-one", 2}});
+  const auto both = l.load_versions({{"fund-one", 1}, {"fund-one", 2}});
   EXPECT_EQ(both[0].columns[0].values, (std::vector<double>{0.01, -0.005, 0.012}));
   EXPECT_EQ(both[1].columns[0].values, (std::vector<double>{0.01, -0.005, 0.012, 0.002}));
 }
@@ -577,23 +573,23 @@ TEST(PackedUpgrade, VersionFourLedgerKeepsItsColumnsReadable) {
   std::ostringstream notices;
   store::LoadedVersion before;
   {
-    auto l = store::Ledger::open(path, store::OpenMode::create, notices);
+    auto l = store::SqliteLedger::open(path, store::OpenMode::create, notices);
     l.write_transaction([&] {
-      store::store_versions(l, {awkward_set()}, {"set.csv", std::string(64, 'c'), ""});
+      l.store_versions({awkward_set()}, {"set.csv", std::string(64, 'c'), ""});
     });
-    before = store::load_version(l, "awkward");
+    before = l.load_version("awkward");
     l.db().exec("DROP TABLE packed_columns");
     l.db().exec("DROP INDEX version_columns_in_order");
     l.db().exec("DROP TABLE ledger_marks");
     l.db().exec("PRAGMA user_version = 4");
   }
-  auto l = store::Ledger::open(path, store::OpenMode::existing, notices);
+  auto l = store::SqliteLedger::open(path, store::OpenMode::existing, notices);
   EXPECT_NE(notices.str().find(
                 fmt::format("from schema version 4 to {}", store::current_schema_version())),
             std::string::npos)
       << notices.str();
   EXPECT_EQ(l.db().execAndGet("SELECT count(*) FROM packed_columns").getInt(), 0);
-  const auto after = store::load_version(l, "awkward");
+  const auto after = l.load_version("awkward");
   expect_same_columns(before, after);
   EXPECT_EQ(bits(after.columns[1].values[1]), 0x8000000000000000u);
   EXPECT_TRUE(std::isnan(after.columns[0].values[5]));

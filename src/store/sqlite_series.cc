@@ -1,5 +1,3 @@
-#include "store/series_store.h"
-
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 #include <pwd.h>
@@ -21,6 +19,7 @@
 #include "core/error.h"
 #include "core/parallel.h"
 #include "core/text.h"
+#include "store/sqlite_ledger.h"
 
 namespace alphatrail::store {
 
@@ -185,8 +184,9 @@ std::string current_user() {
   return "unknown";
 }
 
-std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion> versions,
-                                         const SourceInfo& source) {
+std::vector<StoreOutcome> SqliteLedger::store_versions(std::vector<NewVersion> versions,
+                                                       const SourceInfo& source) {
+  SqliteLedger& ledger = *this;
   auto& db = ledger.db();
   PreparedPipeline prepared(versions);
   const std::string now = utc_now();
@@ -298,7 +298,8 @@ std::vector<StoreOutcome> store_versions(Ledger& ledger, std::vector<NewVersion>
   return outcomes;
 }
 
-std::vector<VersionInfo> list_latest_versions(Ledger& ledger) {
+std::vector<VersionInfo> SqliteLedger::list_latest_versions() {
+  SqliteLedger& ledger = *this;
   SQLite::Statement q(
       ledger.db(),
       fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = s.series_id "
@@ -311,7 +312,8 @@ std::vector<VersionInfo> list_latest_versions(Ledger& ledger) {
   return out;
 }
 
-std::vector<VersionInfo> version_history(Ledger& ledger, const std::string& name) {
+std::vector<VersionInfo> SqliteLedger::version_history(const std::string& name) {
+  SqliteLedger& ledger = *this;
   SQLite::Statement q(ledger.db(),
                       fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id "
                                   "= s.series_id WHERE s.name = ? ORDER BY v.version",
@@ -344,9 +346,9 @@ class PackedReader {
   // Returns the column stored as packed_columns row column_id; throws Error(ledger) when the
   // copy is corrupted or cannot be read.
   record::ColumnData read(const std::string& name, std::int64_t column_id, std::int64_t days_bytes,
-                  std::int64_t numbers_bytes) {
-    record::ColumnData column = record::packed_column_shape(name, static_cast<std::size_t>(days_bytes),
-                                            static_cast<std::size_t>(numbers_bytes));
+                          std::int64_t numbers_bytes) {
+    record::ColumnData column = record::packed_column_shape(
+        name, static_cast<std::size_t>(days_bytes), static_cast<std::size_t>(numbers_bytes));
     read_blob(days_, "days", column_id, column.dates.data(), days_bytes, name);
     read_blob(numbers_, "numbers", column_id, column.values.data(), numbers_bytes, name);
     record::finish_packed(column);
@@ -374,7 +376,7 @@ class PackedReader {
 };
 
 // Returns the version row a request names; throws Error(not_found) when there is none.
-VersionInfo find_version(Ledger& ledger, const VersionRequest& request) {
+VersionInfo find_version(SqliteLedger& ledger, const VersionRequest& request) {
   const auto& [name, version] = request;
   auto q = ledger.statement(
       fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = "
@@ -387,7 +389,7 @@ VersionInfo find_version(Ledger& ledger, const VersionRequest& request) {
     q->bind(3, *version);
   }
   if (!q->executeStep()) {
-    if (version) version_history(ledger, name);  // names an unknown series first
+    if (version) ledger.version_history(name);  // names an unknown series first
     throw Error(Failure::not_found,
                 version
                     ? fmt::format("series '{}' has no version {}; `alphatrail series {}` "
@@ -400,8 +402,8 @@ VersionInfo find_version(Ledger& ledger, const VersionRequest& request) {
 
 }  // namespace
 
-std::vector<VersionInfo> find_versions(Ledger& ledger,
-                                       const std::vector<VersionRequest>& requests) {
+std::vector<VersionInfo> SqliteLedger::find_versions(const std::vector<VersionRequest>& requests) {
+  SqliteLedger& ledger = *this;
   // Many latest versions come from one pass over the ledger's latest versions rather than one
   // query each; a pinned version, or a name that is not there, takes the query of its own.
   std::unordered_map<std::string, VersionInfo> latest;
@@ -425,12 +427,8 @@ std::vector<VersionInfo> find_versions(Ledger& ledger,
   return infos;
 }
 
-std::vector<LoadedVersion> load_versions(Ledger& ledger,
-                                         const std::vector<VersionRequest>& requests) {
-  return load_observations(ledger, find_versions(ledger, requests));
-}
-
-std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<VersionInfo> versions) {
+std::vector<LoadedVersion> SqliteLedger::load_observations(std::vector<VersionInfo> versions) {
+  SqliteLedger& ledger = *this;
   // Reading is SQLite's and serial. A column with a packed copy is unpacked by the reader as
   // it reads (a copy of the bytes, cheaper than handing them over); a column stored before
   // the packed copies existed is decoded from its JSON text by the other workers while the
@@ -516,11 +514,8 @@ std::vector<LoadedVersion> load_observations(Ledger& ledger, std::vector<Version
   return loaded;
 }
 
-LoadedVersion load_version(Ledger& ledger, const std::string& name, std::optional<int> version) {
-  return std::move(load_versions(ledger, {{name, version}}).front());
-}
-
-std::vector<std::string> series_names(Ledger& ledger, core::SeriesKind kind) {
+std::vector<std::string> SqliteLedger::series_names(core::SeriesKind kind) {
+  SqliteLedger& ledger = *this;
   SQLite::Statement q(ledger.db(), "SELECT name FROM series WHERE kind = ? ORDER BY name");
   q.bind(1, core::series_kind_name(kind));
   std::vector<std::string> names;

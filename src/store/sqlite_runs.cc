@@ -1,5 +1,3 @@
-#include "store/run_store.h"
-
 #include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 
@@ -17,7 +15,7 @@
 #include "core/timings.h"
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
-#include "store/series_store.h"
+#include "store/sqlite_ledger.h"
 #include "version.h"
 
 namespace alphatrail::store {
@@ -42,7 +40,7 @@ std::optional<std::string> column_text(const SQLite::Column& c) {
   return c.getString();
 }
 
-void insert_row(Ledger& ledger, const record::RunRow& row) {
+void insert_row(SqliteLedger& ledger, const record::RunRow& row) {
   auto insert = ledger.statement(
       "INSERT INTO runs (run_id, created_at, engine_version, strategy, benchmark, rate, factors, "
       "study, note, revises_run_id, parameters_json, inputs_hash, frequency, first_period, "
@@ -118,8 +116,10 @@ void insert_row(Ledger& ledger, const record::RunRow& row) {
 
 }  // namespace
 
-std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const record::NewRun*>& runs,
-                                     const std::function<void(std::size_t)>& on_stored) {
+std::vector<std::int64_t> SqliteLedger::store_runs(
+    const std::vector<const record::NewRun*>& runs,
+    const std::function<void(std::size_t)>& on_stored) {
+  SqliteLedger& ledger = *this;
   std::int64_t last_id = 0;
   std::string previous = record::kGenesisHash;
   {
@@ -197,7 +197,8 @@ std::vector<std::int64_t> store_runs(Ledger& ledger, const std::vector<const rec
   return ids;
 }
 
-std::optional<record::RunRow> read_run_row(Ledger& ledger, std::int64_t run_id) {
+std::optional<record::RunRow> SqliteLedger::read_run_row(std::int64_t run_id) {
+  SqliteLedger& ledger = *this;
   auto& db = ledger.db();
   SQLite::Statement q(
       db,
@@ -267,7 +268,8 @@ std::optional<record::RunRow> read_run_row(Ledger& ledger, std::int64_t run_id) 
   return r;
 }
 
-std::vector<record::RunInput> read_run_inputs(Ledger& ledger, std::int64_t run_id) {
+std::vector<record::RunInput> SqliteLedger::read_run_inputs(std::int64_t run_id) {
+  SqliteLedger& ledger = *this;
   SQLite::Statement q(ledger.db(),
                       "SELECT i.role, i.position, i.version_id, s.name, v.version, "
                       "v.content_hash, i.columns FROM run_inputs i JOIN series_versions v ON "
@@ -297,7 +299,8 @@ std::vector<record::RunInput> read_run_inputs(Ledger& ledger, std::int64_t run_i
   return inputs;
 }
 
-int count_study_runs(Ledger& ledger, const std::string& study) {
+int SqliteLedger::count_study_runs(const std::string& study) {
+  SqliteLedger& ledger = *this;
   if (study.empty()) return 0;
   auto q = ledger.statement("SELECT count(*) FROM runs WHERE study = ?");
   q->bind(1, study);
@@ -305,23 +308,17 @@ int count_study_runs(Ledger& ledger, const std::string& study) {
   return q->getColumn(0).getInt();
 }
 
-int count_strategy_runs(Ledger& ledger, const std::string& strategy) {
+int SqliteLedger::count_strategy_runs(const std::string& strategy) {
+  SqliteLedger& ledger = *this;
   auto q = ledger.statement("SELECT count(*) FROM runs WHERE strategy = ?");
   q->bind(1, strategy);
   q->executeStep();
   return q->getColumn(0).getInt();
 }
 
-record::RunRow existing_run_row(Ledger& ledger, std::int64_t run_id) {
-  auto row = read_run_row(ledger, run_id);
-  if (!row)
-    throw Error(Failure::not_found, fmt::format("no run {} in {}; `alphatrail runs` lists them",
-                                                run_id, ledger.path().string()));
-  return std::move(*row);
-}
-
-ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
-  const record::RunRow row = existing_run_row(ledger, run_id);
+ordered_json SqliteLedger::load_run(std::int64_t run_id) {
+  SqliteLedger& ledger = *this;
+  const record::RunRow row = ledger.existing_run_row(run_id);
   ordered_json inputs = ordered_json::array();
   SQLite::Statement q(ledger.db(),
                       "SELECT i.role, i.position, s.name, v.version, v.content_hash, i.columns, "
@@ -366,7 +363,8 @@ ordered_json load_run(Ledger& ledger, std::int64_t run_id) {
   return run;
 }
 
-std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter) {
+std::vector<RunSummary> SqliteLedger::list_runs(const RunFilter& filter) {
+  SqliteLedger& ledger = *this;
   SQLite::Statement q(
       ledger.db(),
       // run_summary holds the one definition of stale; CASE evaluates it only when asked.
@@ -407,7 +405,8 @@ std::vector<RunSummary> list_runs(Ledger& ledger, const RunFilter& filter) {
   return out;
 }
 
-std::vector<std::int64_t> unrevised_stale_runs(Ledger& ledger) {
+std::vector<std::int64_t> SqliteLedger::unrevised_stale_runs() {
+  SqliteLedger& ledger = *this;
   std::vector<std::int64_t> ids;
   SQLite::Statement q(ledger.db(),
                       "SELECT run_id FROM run_summary s WHERE stale AND NOT EXISTS (SELECT 1 "
@@ -416,7 +415,8 @@ std::vector<std::int64_t> unrevised_stale_runs(Ledger& ledger) {
   return ids;
 }
 
-std::vector<NewerInput> newer_input_versions(Ledger& ledger, std::int64_t run_id) {
+std::vector<NewerInput> SqliteLedger::newer_input_versions(std::int64_t run_id) {
+  SqliteLedger& ledger = *this;
   std::vector<NewerInput> out;
   SQLite::Statement q(ledger.db(),
                       "SELECT series, version, latest_version FROM run_input_versions WHERE "
