@@ -92,11 +92,6 @@ void check_stored_text(const IngestRequest& o) {
   }
 }
 
-std::string stored_unit(core::SeriesKind kind, core::ValueUnit unit) {
-  if (kind != core::SeriesKind::rate) return "decimal return";
-  return unit == core::ValueUnit::percent ? "percent yield" : "decimal yield";
-}
-
 }  // namespace
 
 CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
@@ -113,7 +108,8 @@ CheckedFile check_file(const IngestRequest& o, std::ostream& notes) {
   core::SeriesFile parsed = core::parse_series_file(o.file, bytes, parse);
   for (const auto& note : parsed.notes) notes << "alphatrail: note: " << note << '\n';
 
-  record::ContentMeta meta{core::series_kind_name(kind), stored_unit(kind, parse.unit),
+  record::ContentMeta meta{core::series_kind_name(kind),
+                           record::stored_unit_name(record::stored_unit_for(kind, parse.unit)),
                            std::nullopt};
   if (kind == core::SeriesKind::rate) meta.quote = core::rate_quote_name(parse.quote);
 

@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "core/dates.h"
+#include "core/rates.h"
 #include "core/series_file.h"
 
 namespace alphatrail::record {
@@ -27,6 +28,26 @@ struct ContentMeta {
   std::string unit;                  // decimal return | percent yield | decimal yield
   std::optional<std::string> quote;  // rates: yield | discount
 };
+
+// The unit of a version's stored values, as series_versions.unit spells it: returns are kept as
+// decimals, rate curves as the yields the file gave, in percent or decimal.
+enum class StoredUnit { decimal_return, percent_yield, decimal_yield };
+
+// Returns the stored spelling: "decimal return", "percent yield" or "decimal yield".
+const char* stored_unit_name(StoredUnit unit);
+
+// Returns the stored unit of values of a kind read in a unit (rates: percent or decimal).
+// Example: stored_unit_for(SeriesKind::rate, ValueUnit::percent) == StoredUnit::percent_yield
+StoredUnit stored_unit_for(core::SeriesKind kind, core::ValueUnit unit);
+
+// Returns the unit of a stored rate version's yields; throws Error(corruption) naming the
+// series when the stored text is not a yield unit (the ledger was edited).
+core::RateUnit stored_rate_unit(const std::string& series, std::string_view unit);
+
+// Returns how a stored rate version is quoted (no quote: yields); throws Error(corruption)
+// naming the series for any other text.
+core::RateQuote stored_rate_quote(const std::string& series,
+                                  const std::optional<std::string>& quote);
 
 // Encodes a column's observations as canonical JSON; throws alphatrail::Error(failure), an
 // internal error, for an infinite value, which JSON cannot hold (NaN is missing: null).

@@ -488,3 +488,45 @@ TEST(ContentHash, ChangesWithEveryPartOfTheContent) {
 }
 
 }  // namespace
+
+namespace {
+
+// The stored unit vocabulary: the text series_versions.unit holds (schema/ledger.sql) and
+// the rate unit and quote an evaluation reads back from it; edited text is corruption.
+TEST(StoredUnit, SpellingsAndTheRateUnitsTheyStandFor) {
+  using alphatrail::record::StoredUnit;
+  EXPECT_STREQ(record::stored_unit_name(StoredUnit::decimal_return), "decimal return");
+  EXPECT_STREQ(record::stored_unit_name(StoredUnit::percent_yield), "percent yield");
+  EXPECT_STREQ(record::stored_unit_name(StoredUnit::decimal_yield), "decimal yield");
+  EXPECT_EQ(record::stored_unit_for(core::SeriesKind::rate, core::ValueUnit::percent),
+            StoredUnit::percent_yield);
+  EXPECT_EQ(record::stored_unit_for(core::SeriesKind::rate, core::ValueUnit::decimal),
+            StoredUnit::decimal_yield);
+  EXPECT_EQ(record::stored_unit_for(core::SeriesKind::strategy, core::ValueUnit::percent),
+            StoredUnit::decimal_return);
+  EXPECT_EQ(record::stored_rate_unit("bills", "percent yield"), core::RateUnit::percent);
+  EXPECT_EQ(record::stored_rate_unit("bills", "decimal yield"), core::RateUnit::decimal);
+  EXPECT_EQ(record::stored_rate_quote("bills", std::nullopt), core::RateQuote::yield);
+  EXPECT_EQ(record::stored_rate_quote("bills", std::string("discount")), core::RateQuote::discount);
+}
+
+TEST(StoredUnit, EditedTextIsCorruptionNamingTheSeries) {
+  for (const char* unit : {"decimal return", "percent", "Percent yield", ""}) {
+    try {
+      record::stored_rate_unit("bills", unit);
+      ADD_FAILURE() << unit;
+    } catch (const Error& e) {
+      EXPECT_EQ(e.kind(), Failure::corruption);
+      EXPECT_NE(std::string(e.what()).find("rate curve bills"), std::string::npos) << e.what();
+    }
+  }
+  try {
+    record::stored_rate_quote("bills", std::string("bogus"));
+    ADD_FAILURE();
+  } catch (const Error& e) {
+    EXPECT_EQ(e.kind(), Failure::corruption);
+    EXPECT_NE(std::string(e.what()).find("\"bogus\""), std::string::npos) << e.what();
+  }
+}
+
+}  // namespace
