@@ -1,8 +1,6 @@
 #include "cli/app.h"
 
-#include <SQLiteCpp/Exception.h>
 #include <fmt/format.h>
-#include <sqlite3.h>
 
 #include <CLI/CLI.hpp>
 #include <iostream>
@@ -10,7 +8,6 @@
 #include "cli/commands.h"
 #include "cli/exit_codes.h"
 #include "core/error.h"
-#include "store/ledger.h"
 #include "version.h"
 
 namespace alphatrail::cli {
@@ -66,15 +63,6 @@ int run_app(int argc, char** argv) {
     return exit_code(Failure::invalid_argument);
   } catch (const Error& e) {
     return report(e.kind(), e.what());
-  } catch (const SQLite::Exception& e) {
-    if (e.getErrorCode() == SQLITE_BUSY)
-      return report(Failure::busy,
-                    fmt::format("the ledger stayed busy for {} ms (another command is writing); "
-                                "nothing was written; try again or raise "
-                                "ALPHATRAIL_BUSY_TIMEOUT_MS",
-                                store::busy_timeout_ms()));
-    return report(Failure::unusable_ledger,
-                  fmt::format("ledger error: {}; nothing was written", e.what()));
   } catch (const std::exception& e) {
     return report(Failure::internal, fmt::format("internal error: {}", e.what()));
   }

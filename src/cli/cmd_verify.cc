@@ -25,9 +25,9 @@ std::string printable(const std::string& text) {
 }
 
 void run_verify(const GlobalOptions& global) {
-  auto ledger = store::SqliteLedger::open(store::resolve_ledger_path(global.ledger),
-                                          store::OpenMode::read_only, std::cerr);
-  const auto report = store::verify_ledger(ledger);
+  const auto ledger = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                         store::OpenMode::read_only, std::cerr);
+  const auto report = store::verify_ledger(*ledger);
   for (const auto& p : report.problems)
     std::cout << fmt::format("MISMATCH {}: {}\n", printable(p.object), printable(p.problem));
   std::cout << fmt::format(
@@ -38,7 +38,7 @@ void run_verify(const GlobalOptions& global) {
                 fmt::format("{} mismatch{} found in {}: the ledger was altered outside "
                             "alphatrail or is damaged; restore it from a copy",
                             report.problems.size(), report.problems.size() == 1 ? "" : "es",
-                            ledger.path().string()));
+                            ledger->path().string()));
   std::cout << "everything checks out\n";
 }
 

@@ -19,7 +19,7 @@ std::filesystem::path resolve_ledger_path(const std::string& option_value) {
 std::unique_ptr<Ledger> open_ledger(const std::filesystem::path& location, OpenMode mode,
                                     std::ostream& notices) {
   // Every location is a SQLite file today; a second engine is chosen here by its location.
-  return std::make_unique<SqliteLedger>(SqliteLedger::open(location, mode, notices));
+  return open_guarded_sqlite_ledger(location, mode, notices);
 }
 
 std::vector<LoadedVersion> Ledger::load_versions(const std::vector<VersionRequest>& requests) {

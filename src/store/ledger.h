@@ -1,6 +1,7 @@
 // The ledger store: everything alphatrail keeps (series versions, runs, marks) behind one
 // abstract interface, so that commands and use cases never see the storage engine. Values go
-// in and come out typed (record/ and the types below); no SQL crosses this line.
+// in and come out typed (record/ and the types below); no SQL crosses this line but the text
+// of a user's own read-only query (read_only_query), which the engine vets.
 //
 // One implementation exists today, SQLite (store/sqlite_ledger.h), chosen by open_ledger from
 // the ledger's location. A second engine implements this class and is chosen there too.
@@ -140,6 +141,50 @@ struct NewerInput {
   int latest_version = 0;  // the newest version there is
 };
 
+// One cell of a query result, as the engine typed it.
+struct QueryValue {
+  enum class Type { null, integer, real, text, blob };
+  Type type = Type::null;
+  std::int64_t integer = 0;
+  double real = 0;
+  std::string bytes;  // text or blob, as stored
+};
+
+// Receives a read-only query's result as it comes: the column names once, then each row.
+// Both may throw (e.g. when the output cannot be written); the query stops there.
+class QueryRowSink {
+ public:
+  virtual ~QueryRowSink() = default;
+  // Called once, after the engine's first answer (or at once for a limit of 0), so a query
+  // that fails at once has given the sink nothing.
+  virtual void columns(const std::vector<std::string>& names) = 0;
+  virtual void row(const std::vector<QueryValue>& values) = 0;
+  // Called now and then while the engine works towards the next row (to flush output).
+  virtual void waiting() {}
+};
+
+// A version as stored, for verification: its description, hash and every column's stored
+// JSON with its packed copy.
+struct StoredColumn {
+  std::string name;
+  std::string values_json;
+  std::optional<std::string> packed_days;  // nullopt: no packed copy (before schema version 5)
+  std::string packed_numbers;
+};
+
+struct StoredVersion {
+  std::string name;
+  int version = 0;
+  record::ContentMeta meta;  // kind, unit, quote as stored
+  std::string content_hash;
+  std::string frequency;  // empty when none was stored
+  std::string first_date;
+  std::string last_date;
+  std::int64_t observations = 0;
+  std::int64_t missing = 0;
+  std::vector<StoredColumn> columns;  // in stored position order
+};
+
 class Ledger {
  public:
   virtual ~Ledger() = default;
@@ -219,6 +264,19 @@ class Ledger {
   virtual std::vector<std::int64_t> unrevised_stale_runs() = 0;
   // Returns the inputs of a run that have newer versions, in the run's input order.
   virtual std::vector<NewerInput> newer_input_versions(std::int64_t run_id) = 0;
+
+  // --- reading as stored (verify, query)
+  // Calls each with every version in the order stored, its columns as stored.
+  virtual void for_each_stored_version(const std::function<void(const StoredVersion&)>& each) = 0;
+  // Returns every run id, ascending.
+  virtual std::vector<std::int64_t> run_ids() = 0;
+  // Returns the findings of the engine's own integrity check, one per line (none: intact).
+  virtual std::vector<std::string> integrity_problems() = 0;
+  // Runs one SQL statement that only reads, giving its result to sink as it comes; at most
+  // `limit` rows (-1: all), the statement stopped there. Throws Error(invalid_argument) for a
+  // statement that would write, more than one statement, none, or one the engine rejects or
+  // fails (rows given so far stand).
+  virtual void read_only_query(const std::string& sql, std::int64_t limit, QueryRowSink& sink) = 0;
 };
 
 // Returns the schema version this binary writes (the number of embedded migrations).

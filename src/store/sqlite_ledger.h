@@ -4,7 +4,8 @@
 // A SqliteLedger owns one SQLite connection. Opening checks the file's application_id and refuses a
 // ledger newer than this binary. Opening to write upgrades an older ledger in one transaction
 // (saying so on the notice stream); opening read-only writes nothing and refuses an older
-// ledger instead. Failures throw alphatrail::Error with Failure::unusable_ledger.
+// ledger instead. Opening fails with alphatrail::Error (Failure::unusable_ledger or busy); the
+// methods may throw SQLite::Exception, which open_guarded_sqlite_ledger turns into Error.
 #pragma once
 
 #include <SQLiteCpp/Database.h>
@@ -88,6 +89,14 @@ class SqliteLedger final : public Ledger {
   std::vector<std::int64_t> unrevised_stale_runs() override;
   std::vector<NewerInput> newer_input_versions(std::int64_t run_id) override;
 
+  void for_each_stored_version(const std::function<void(const StoredVersion&)>& each) override;
+  std::vector<std::int64_t> run_ids() override;
+  // PRAGMA integrity_check, its rows split into lines.
+  std::vector<std::string> integrity_problems() override;
+  // Under an authorizer that allows reading only (sqlite_query.cc), on top of the read-only
+  // connection's PRAGMA query_only when opened read_only.
+  void read_only_query(const std::string& sql, std::int64_t limit, QueryRowSink& sink) override;
+
   // Drops the cached statements (before the schema they were prepared against changes).
   void forget_statements() { statements_.clear(); }
 
@@ -103,6 +112,12 @@ class SqliteLedger final : public Ledger {
   // Declared after db_, so destroyed before the connection closes.
   std::unordered_map<std::string, std::unique_ptr<SQLite::Statement>> statements_;
 };
+
+// Opens the ledger as SqliteLedger::open does, behind the Ledger interface with every
+// SQLite::Exception a call throws turned into alphatrail::Error (sqlite_guard.cc): busy into
+// Failure::busy, anything else into Failure::unusable_ledger. What open_ledger returns.
+std::unique_ptr<Ledger> open_guarded_sqlite_ledger(const std::filesystem::path& path, OpenMode mode,
+                                                   std::ostream& notices);
 
 // Applies the migrations after the database's user_version, each with its version bump in
 // one BEGIN IMMEDIATE transaction. Returns the number applied.

@@ -1,6 +1,5 @@
 #include "store/verify.h"
 
-#include <SQLiteCpp/Statement.h>
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -17,7 +16,7 @@
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
 #include "record/stored_text.h"
-#include "store/sqlite_ledger.h"
+#include "store/ledger.h"
 
 namespace alphatrail::store {
 
@@ -74,30 +73,15 @@ std::optional<std::string> packed_mismatch(const record::ColumnData& column, std
   return std::nullopt;  // not reached: equal sizes and equal words are equal bytes
 }
 
-void verify_versions(SqliteLedger& ledger, VerifyReport& report) {
-  SQLite::Statement versions(ledger.db(),
-                             "SELECT v.version_id, s.name, s.kind, v.version, v.unit, v.quote, "
-                             "v.content_hash, coalesce(v.frequency, ''), v.first_date, "
-                             "v.last_date, v.observations, v.missing FROM series_versions v JOIN "
-                             "series s ON s.series_id = v.series_id ORDER BY v.version_id");
-  SQLite::Statement columns(ledger.db(),
-                            "SELECT c.column_name, c.values_json, p.days, p.numbers FROM "
-                            "version_columns c LEFT JOIN packed_columns p ON p.column_id = "
-                            "c.column_id WHERE c.version_id = ? ORDER BY c.position");
-  while (versions.executeStep()) {
+void verify_versions(Ledger& ledger, VerifyReport& report) {
+  ledger.for_each_stored_version([&](const StoredVersion& version) {
     ++report.versions_checked;
-    const std::string object = fmt::format(
-        "series {} version {}", versions.getColumn(1).getString(), versions.getColumn(3).getInt());
-    record::ContentMeta meta{versions.getColumn(2).getString(), versions.getColumn(4).getString(),
-                             std::nullopt};
-    if (!versions.getColumn(5).isNull()) meta.quote = versions.getColumn(5).getString();
+    const std::string object = fmt::format("series {} version {}", version.name, version.version);
     std::vector<record::EncodedColumn> encoded;
     std::vector<core::Day> dates;
     std::int64_t missing = 0;
-    columns.reset();
-    columns.bind(1, versions.getColumn(0).getInt64());
-    while (columns.executeStep()) {
-      encoded.push_back({columns.getColumn(0).getString(), columns.getColumn(1).getString()});
+    for (const StoredColumn& stored : version.columns) {
+      encoded.push_back({stored.name, stored.values_json});
       try {
         const auto column =
             record::decode_values_json(encoded.back().name, encoded.back().values_json);
@@ -105,13 +89,9 @@ void verify_versions(SqliteLedger& ledger, VerifyReport& report) {
         missing += std::count_if(column.values.begin(), column.values.end(),
                                  [](double v) { return std::isnan(v); });
         // The packed copy is what loading reads: it must say exactly what the hashed JSON says.
-        if (const SQLite::Column days = columns.getColumn(2); !days.isNull()) {
-          const SQLite::Column numbers = columns.getColumn(3);
-          const auto bytes = [](const SQLite::Column& c) {
-            return std::string_view(static_cast<const char*>(c.getBlob()),
-                                    static_cast<std::size_t>(c.getBytes()));
-          };
-          if (const auto problem = packed_mismatch(column, bytes(days), bytes(numbers)))
+        if (stored.packed_days) {
+          if (const auto problem =
+                  packed_mismatch(column, *stored.packed_days, stored.packed_numbers))
             report.problems.push_back(
                 {object, fmt::format("the packed copy of column '{}' does not match its "
                                      "values_json: {}",
@@ -129,9 +109,8 @@ void verify_versions(SqliteLedger& ledger, VerifyReport& report) {
     if (!dates.empty()) {
       const auto frequency = core::detect_frequency(dates);
       const std::string described =
-          fmt::format("{} {} {} {} {}", versions.getColumn(7).getString(),
-                      versions.getColumn(8).getString(), versions.getColumn(9).getString(),
-                      versions.getColumn(10).getInt64(), versions.getColumn(11).getInt64());
+          fmt::format("{} {} {} {} {}", version.frequency, version.first_date, version.last_date,
+                      version.observations, version.missing);
       const std::string observed = fmt::format(
           "{} {} {} {} {}", frequency ? core::frequency_name(*frequency) : "",
           core::format_date(dates.front()), core::format_date(dates.back()), dates.size(), missing);
@@ -141,21 +120,19 @@ void verify_versions(SqliteLedger& ledger, VerifyReport& report) {
                                  "missing: {}) does not match its observations ({})",
                                  described, observed)});
     }
-    const std::string stored = versions.getColumn(6).getString();
-    const std::string computed = record::content_hash(meta, encoded);
+    const std::string& stored = version.content_hash;
+    const std::string computed = record::content_hash(version.meta, encoded);
     if (stored != computed)
       report.problems.push_back(
           {object, fmt::format("content hash {} does not match its observations ({})",
                                stored.substr(0, 12), computed.substr(0, 12))});
-  }
+  });
 }
 
-void verify_runs(SqliteLedger& ledger, VerifyReport& report) {
-  SQLite::Statement ids(ledger.db(), "SELECT run_id FROM runs ORDER BY run_id");
+void verify_runs(Ledger& ledger, VerifyReport& report) {
   std::string previous = record::kGenesisHash;
   std::int64_t expected_id = 1;
-  while (ids.executeStep()) {
-    const std::int64_t id = ids.getColumn(0).getInt64();
+  for (const std::int64_t id : ledger.run_ids()) {
     ++report.runs_checked;
     const std::string object = fmt::format("run {}", id);
     if (id != expected_id)
@@ -194,22 +171,11 @@ void verify_runs(SqliteLedger& ledger, VerifyReport& report) {
 
 }  // namespace
 
-VerifyReport verify_ledger(SqliteLedger& ledger) {
+VerifyReport verify_ledger(Ledger& ledger) {
   VerifyReport report;
   report.chain_head = record::kGenesisHash;
-  SQLite::Statement integrity(ledger.db(), "PRAGMA integrity_check");
-  while (integrity.executeStep()) {
-    const std::string text = integrity.getColumn(0).getString();
-    if (text == "ok") continue;
-    std::size_t start = 0;  // one finding per line: SQLite puts several in one row
-    while (start < text.size()) {
-      const auto end = text.find('\n', start);
-      const std::string line = text.substr(start, end == std::string::npos ? end : end - start);
-      if (!line.empty()) report.problems.push_back({"ledger file", "integrity check: " + line});
-      if (end == std::string::npos) break;
-      start = end + 1;
-    }
-  }
+  for (const std::string& line : ledger.integrity_problems())
+    report.problems.push_back({"ledger file", "integrity check: " + line});
   verify_versions(ledger, report);
   verify_runs(ledger, report);
   return report;

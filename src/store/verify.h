@@ -1,14 +1,15 @@
 // Verification of a ledger: every version's content hash recomputed from its stored
 // observations, every packed copy of a column compared with the column's JSON, every run's
-// inputs hash and record hash, the hash chain over all runs, and SQLite's own integrity
-// check. Read-only.
+// inputs hash and record hash, the hash chain over all runs, and the engine's own integrity
+// check (SQLite's). Read-only; written against store::Ledger, so no SQL here: the store hands
+// over what it stored (for_each_stored_version) and this recomputes it with record/.
 #pragma once
 
 #include <cstdint>
 #include <string>
 #include <vector>
 
-#include "store/sqlite_ledger.h"
+#include "store/ledger.h"
 
 namespace alphatrail::store {
 
@@ -28,6 +29,6 @@ struct VerifyReport {
 // Checks everything the ledger can prove about itself.
 // Note: removing the newest runs leaves a shorter but consistent chain; compare chain_head
 // with a value kept outside the ledger to detect that.
-VerifyReport verify_ledger(SqliteLedger& ledger);
+VerifyReport verify_ledger(Ledger& ledger);
 
 }  // namespace alphatrail::store
