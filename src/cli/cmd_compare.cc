@@ -4,8 +4,8 @@
 #include <algorithm>
 #include <iostream>
 
+#include "app/evaluate.h"
 #include "cli/commands.h"
-#include "cli/evaluate.h"
 #include "cli/json_diff.h"
 #include "cli/output.h"
 #include "core/series_diff.h"
@@ -53,9 +53,9 @@ std::string revision_summary(store::Ledger& ledger, const std::string& series, i
 }
 
 std::vector<std::int64_t> sample_keys(store::Ledger& ledger, std::int64_t run_id) {
-  auto request = request_from_run(ledger, run_id, true);
+  auto request = app::request_from_run(ledger, run_id, true);
   request.keep_series = true;
-  auto pending = evaluate_request(ledger, request);
+  auto pending = app::evaluate_request(ledger, request);
   return pending.front().result.keys;
 }
 

@@ -6,8 +6,8 @@
 
 #include "cli/commands.h"
 #include "cli/demo_scenario.h"
-#include "cli/evaluate.h"
 #include "cli/ingest.h"
+#include "cli/print_runs.h"
 #include "cli/report.h"
 #include "core/error.h"
 #include "store/ledger.h"
@@ -122,7 +122,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
     }
 
     // The main job: every strategy against the index, bills and style factors.
-    EvaluateRequest request;
+    app::EvaluateRequest request;
     request.benchmark = kDemoBenchmark;
     request.rate = kDemoRate;
     request.factors = {{kDemoFactors, {}}};  // every column of the set
@@ -130,12 +130,12 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
     request.study = kDemoStudy;
     request.note = "demo: trend look-back variants";
     // Three-year rolling alpha and beta, kept for the later commands.
-    request.rolling = {RollingChoice::Mode::automatic, 0};
+    request.rolling = {app::RollingChoice::Mode::automatic, 0};
     std::cout << fmt::format(
         "\n$ alphatrail evaluate 'trend-*' --benchmark {} --rate {} --factor {} "
         "--study {} --rolling auto\n",
         kDemoBenchmark, kDemoRate, kDemoFactors, kDemoStudy);
-    auto runs = evaluate_and_record(ledger, request, false);
+    auto runs = app::evaluate_and_record(ledger, request);
     request.strategies = {"carry-g10", "defensive-tilt", "crash-hedge"};
     request.study.clear();
     request.note = "demo: other books";
@@ -143,7 +143,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
         "$ alphatrail evaluate carry-g10 defensive-tilt crash-hedge "
         "--benchmark {} --rate {} --factor {} --rolling auto\n\n",
         kDemoBenchmark, kDemoRate, kDemoFactors);
-    const auto more = evaluate_and_record(ledger, request, false);
+    const auto more = app::evaluate_and_record(ledger, request);
     runs.insert(runs.end(), more.begin(), more.end());
     print_runs(std::cout, ledger, runs, Format::table);
 
@@ -154,7 +154,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
                              revision.file, revision.name, revision.note);
     store_file(ledger, check_file(revision, std::cerr), std::cout);
     std::cout << fmt::format("\n$ alphatrail rerun --all-stale\n\n");
-    print_reruns(std::cout, rerun_runs(ledger, runs, false), Format::table);
+    print_reruns(std::cout, app::rerun_runs(ledger, runs), Format::table);
   });
 
   // The page a colleague would open: the latest run of the first strategy (a revision).

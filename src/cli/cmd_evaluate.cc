@@ -10,9 +10,9 @@
 
 #include "cli/choices.h"
 #include "cli/commands.h"
-#include "cli/evaluate.h"
 #include "cli/option_text.h"
 #include "cli/output.h"
+#include "cli/print_runs.h"
 #include "core/error.h"
 #include "core/timings.h"
 
@@ -68,19 +68,19 @@ std::optional<int> parse_lags(const std::string& text) {
 
 // Parses --rolling: off, auto (three years at the evaluation frequency) or the window in
 // periods (checked against the model once the frequency is known).
-RollingChoice parse_rolling(const std::string& text) {
+app::RollingChoice parse_rolling(const std::string& text) {
   if (text == "off") return {};
-  if (text == "auto") return {RollingChoice::Mode::automatic, 0};
+  if (text == "auto") return {app::RollingChoice::Mode::automatic, 0};
   const auto n = whole_number(text);
   if (!n || *n <= 0)
     throw usage(fmt::format(
         "--rolling {}: write a whole number of periods per window, auto (three years of "
         "periods) or off",
         text));
-  return {RollingChoice::Mode::periods, *n};
+  return {app::RollingChoice::Mode::periods, *n};
 }
 
-void run_evaluate_command(const EvaluateRequest& request, Format format,
+void run_evaluate_command(const app::EvaluateRequest& request, Format format,
                           const GlobalOptions& global) {
   // Text the runs store, checked before the ledger is opened; an empty study is none.
   if (!request.study.empty()) require_storable_name("--study", request.study);
@@ -88,7 +88,7 @@ void run_evaluate_command(const EvaluateRequest& request, Format format,
   auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
                                           store::OpenMode::existing, std::cerr);
   store::Ledger& ledger = *ledger_opened;
-  const auto runs = evaluate_and_record(ledger, request, isatty(2) != 0);
+  const auto runs = app::evaluate_and_record(ledger, request, progress_bar(isatty(2) != 0));
   print_runs(std::cout, ledger, runs, format);
   core::mark_phase("evaluate: printed");
 }
@@ -96,7 +96,7 @@ void run_evaluate_command(const EvaluateRequest& request, Format format,
 }  // namespace
 
 void setup_evaluate(CLI::App& app, const GlobalOptions& global) {
-  auto r = std::make_shared<EvaluateRequest>();
+  auto r = std::make_shared<app::EvaluateRequest>();
   auto format = std::make_shared<Format>(Format::table);
   auto* cmd = app.add_subcommand(
       "evaluate",

@@ -7,8 +7,8 @@
 #include <fstream>
 #include <iostream>
 
+#include "app/evaluate.h"
 #include "cli/commands.h"
-#include "cli/evaluate.h"
 #include "cli/report.h"
 #include "core/error.h"
 #include "report/html.h"
@@ -117,10 +117,10 @@ void write_run_report(store::Ledger& ledger, std::int64_t run_id,
   in.run = ledger.load_run(run_id);
 
   // The charts need the sample period by period: recompute it from the run's own versions.
-  EvaluateRequest request = request_from_run(ledger, run_id, true);
+  app::EvaluateRequest request = app::request_from_run(ledger, run_id, true);
   request.keep_series = true;
-  auto pending = evaluate_request(ledger, request);
-  const PendingRun& p = pending.front();
+  auto pending = app::evaluate_request(ledger, request);
+  const app::PendingRun& p = pending.front();
   const std::string recomputed =
       record::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
   in.reproduction =
@@ -144,10 +144,10 @@ void write_run_report(store::Ledger& ledger, std::int64_t run_id,
   in.rolling_from_run = in.rolling.is_object();
   if (!in.rolling_from_run) {
     // Recorded without --rolling: compute the default window for the page (and say so).
-    request.rolling = {RollingChoice::Mode::automatic, 0};
+    request.rolling = {app::RollingChoice::Mode::automatic, 0};
     try {
       in.rolling =
-          record::result_json(evaluate_request(ledger, request).front().result, {})["rolling"];
+          record::result_json(app::evaluate_request(ledger, request).front().result, {})["rolling"];
     } catch (const Error&) {  // the sample is shorter than the window: the page says so
     }
   }

@@ -3,8 +3,8 @@
 #include <CLI/CLI.hpp>
 #include <iostream>
 
+#include "app/evaluate.h"
 #include "cli/commands.h"
-#include "cli/evaluate.h"
 #include "cli/json_diff.h"
 #include "core/error.h"
 #include "record/stored_result.h"
@@ -19,7 +19,7 @@ void run_reproduce(std::int64_t run_id, const GlobalOptions& global) {
                                           store::OpenMode::read_only, std::cerr);
   store::Ledger& ledger = *ledger_opened;
   const record::RunRow row = ledger.existing_run_row(run_id);
-  auto pending = evaluate_request(ledger, request_from_run(ledger, run_id, true));
+  auto pending = app::evaluate_request(ledger, app::request_from_run(ledger, run_id, true));
   const auto& p = pending.front();
   const std::string recomputed_hash =
       record::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);

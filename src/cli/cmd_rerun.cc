@@ -5,9 +5,10 @@
 #include <cmath>
 #include <iostream>
 
+#include "app/rerun.h"
 #include "cli/commands.h"
-#include "cli/evaluate.h"
 #include "cli/output.h"
+#include "cli/print_runs.h"
 #include "core/error.h"
 #include "core/number_text.h"
 
@@ -29,11 +30,12 @@ std::string revisions_of(store::Ledger& ledger, std::int64_t run_id) {
   return parts.empty() ? "no newer input versions" : fmt::format("{}", fmt::join(parts, ", "));
 }
 
-std::string verdict(double p_old, double p_new, double a_old, double a_new, double level) {
+// The verdict as rerun words it, in every format.
+std::string conclusion_text(const app::Verdict& v) {
   std::vector<std::string> flips;
-  if (p_old < level && !(p_new < level)) flips.push_back("significance lost");
-  if (!(p_old < level) && p_new < level) flips.push_back("became significant");
-  if ((a_old > 0) != (a_new > 0)) flips.push_back("alpha changed sign");
+  if (v.significance_lost) flips.push_back("significance lost");
+  if (v.became_significant) flips.push_back("became significant");
+  if (v.sign_changed) flips.push_back("alpha changed sign");
   return flips.empty() ? "conclusion unchanged"
                        : fmt::format("FLIPPED: {}", fmt::join(flips, ", "));
 }
@@ -42,33 +44,16 @@ using core::fixed;
 
 }  // namespace
 
-std::vector<RerunOutcome> rerun_runs(store::Ledger& ledger, const std::vector<std::int64_t>& ids,
-                                     bool progress) {
-  std::vector<RerunOutcome> outcomes;
-  ledger.write_transaction([&] {
-    std::vector<PendingRun> pending;
-    for (auto id : ids) {
-      auto rq = request_from_run(ledger, id, false);
-      rq.revises_run_id = id;
-      auto one = evaluate_request(ledger, rq);
-      for (auto& p : one) pending.push_back(std::move(p));
-    }
-    const auto new_ids = record_runs(ledger, pending, progress);
-    for (std::size_t i = 0; i < ids.size(); ++i)
-      outcomes.push_back({*ledger.read_run_row(ids[i]), *ledger.read_run_row(new_ids[i]),
-                          1.0 - pending[i].settings.confidence});
-  });
-  return outcomes;
-}
-
-void print_reruns(std::ostream& out, const std::vector<RerunOutcome>& outcomes, Format format) {
+void print_reruns(std::ostream& out, const std::vector<app::RerunOutcome>& outcomes,
+                  Format format) {
   Table table;
   table.header = {"run",     "new run", "strategy", "alpha a year", "alpha t",
                   "alpha p", "beta",    "R2",       "conclusion"};
   auto array = nlohmann::ordered_json::array();
-  for (const auto& [before, after, level] : outcomes) {
-    const std::string conclusion =
-        verdict(before.alpha_p, after.alpha_p, before.alpha, after.alpha, level);
+  for (const auto& outcome : outcomes) {
+    const record::RunRow& before = outcome.before;
+    const record::RunRow& after = outcome.after;
+    const std::string conclusion = conclusion_text(app::verdict(outcome));
     const auto pair = [](const std::string& a, const std::string& b) {
       return fmt::format("{} -> {}", a, b);
     };
@@ -114,9 +99,7 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
     throw Error(Failure::invalid_argument, "name the runs to re-run, or pass --all-stale");
   const auto path = store::resolve_ledger_path(global.ledger);
   const auto runs_to_redo = [&](store::Ledger& ledger) {
-    if (o.all_stale) return ledger.unrevised_stale_runs();
-    for (auto id : o.runs) ledger.existing_run_row(id);  // each must exist
-    return o.runs;
+    return app::runs_to_rerun(ledger, o.runs, o.all_stale);
   };
   const auto none_stale = [] {
     std::cout << "no stale runs: every run used the latest versions of its inputs\n";
@@ -138,10 +121,10 @@ void run_rerun(const RerunOptions& o, const GlobalOptions& global) {
   // the versions of one snapshot, and a second rerun waits and then finds these runs revised.
   auto ledger_opened = store::open_ledger(path, store::OpenMode::existing, std::cerr);
   store::Ledger& ledger = *ledger_opened;
-  std::vector<RerunOutcome> outcomes;
+  std::vector<app::RerunOutcome> outcomes;
   ledger.write_transaction([&] {
     const auto ids = runs_to_redo(ledger);
-    if (!ids.empty()) outcomes = rerun_runs(ledger, ids, isatty(2) != 0);
+    if (!ids.empty()) outcomes = app::rerun_runs(ledger, ids, progress_bar(isatty(2) != 0));
   });
   if (outcomes.empty()) return none_stale();
   print_reruns(std::cout, outcomes, o.format);

@@ -5,8 +5,8 @@
 #include <iostream>
 
 #include "cli/commands.h"
-#include "cli/evaluate.h"
 #include "cli/output.h"
+#include "cli/print_runs.h"
 #include "core/evaluation.h"
 #include "core/number_text.h"
 #include "store/ledger.h"

@@ -1,20 +1,27 @@
-// Evaluating strategies from the ledger and recording the runs: the work behind
-// `alphatrail evaluate`, shared with the demo and with re-runs.
+// Evaluating strategies from the ledger and recording the runs: the use case behind
+// `alphatrail evaluate`, shared with the demo, re-runs, reproductions, comparisons and reports.
+// Nothing here prints: failures are thrown as alphatrail::Error, progress is reported to a
+// callback, and the cli layer words and draws both.
 #pragma once
 
+#include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <map>
 #include <optional>
-#include <ostream>
 #include <string>
 #include <vector>
 
-#include "cli/output.h"
 #include "core/evaluation.h"
 #include "record/run_parameters.h"
+#include "record/run_record.h"
 #include "store/ledger.h"
 
-namespace alphatrail::cli {
+namespace alphatrail::app {
+
+// Called after each run is stored with the runs stored so far and the runs to store in all;
+// empty: nobody is watching. It runs on the thread that owns the ledger's connection.
+using Progress = std::function<void(std::size_t done, std::size_t total)>;
 
 // The rolling estimates asked for: none, three years of periods, or N periods per window.
 struct RollingChoice {
@@ -26,7 +33,7 @@ struct RollingChoice {
 };
 
 // What to evaluate and how, every setting typed: the command line parses into it
-// (cmd_evaluate.cc) and request_from_run rebuilds it from a run's stored parameters.
+// (cli/cmd_evaluate.cc) and request_from_run rebuilds it from a run's stored parameters.
 struct EvaluateRequest {
   std::vector<std::string> strategies;  // names or glob patterns
   std::string benchmark;
@@ -59,46 +66,24 @@ struct PendingRun {
   core::EvaluationSettings settings;
 };
 
-// Evaluates every strategy the request names without recording anything. Throws
-// alphatrail::Error when any strategy cannot be evaluated.
+// Evaluates every strategy the request names without recording anything, all inputs from one
+// read snapshot. Throws alphatrail::Error when any strategy cannot be evaluated.
 std::vector<PendingRun> evaluate_request(store::Ledger& ledger, const EvaluateRequest& request);
 
-// Records evaluated runs in one transaction (the reading counts the runs already recorded).
+// Records evaluated runs in one transaction (the caller's, when one is open; the reading counts
+// the runs already recorded), reporting each stored run to `progress`. Returns the new run ids.
 std::vector<std::int64_t> record_runs(store::Ledger& ledger, std::vector<PendingRun>& pending,
-                                      bool progress);
+                                      const Progress& progress = {});
 
 // Rebuilds the request that produced a run: same parameters, and with pin_versions the
-// exact input versions it used (otherwise the latest).
+// exact input versions it used (otherwise the latest). Throws alphatrail::Error when the run
+// is missing or its stored parameters or result cannot be read.
 EvaluateRequest request_from_run(store::Ledger& ledger, std::int64_t run_id, bool pin_versions);
 
 // Evaluates every strategy the request names and records each as a run, all in one
-// transaction. Shows a progress bar on stderr when `progress` and many strategies.
+// transaction, reporting each stored run to `progress` (total: the strategies in all).
 // Returns the new run ids. Throws alphatrail::Error; on failure nothing is recorded.
 std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger, const EvaluateRequest& request,
-                                              bool progress);
+                                              const Progress& progress = {});
 
-// A re-run: the run revised, the run that revises it, and the significance level of both.
-struct RerunOutcome {
-  record::RunRow before;
-  record::RunRow after;
-  double level = 0.05;
-};
-
-// Re-evaluates runs against the latest versions of their inputs with the same parameters and
-// records each as a run that revises the old one, in one write transaction (the caller's, when
-// one is open): every re-run uses the versions of one snapshot.
-std::vector<RerunOutcome> rerun_runs(store::Ledger& ledger, const std::vector<std::int64_t>& ids,
-                                     bool progress);
-
-// Prints old and new figures of each re-run, with a plain verdict when a conclusion flipped.
-void print_reruns(std::ostream& out, const std::vector<RerunOutcome>& outcomes, Format format);
-
-// Prints runs in the chosen format: a block per run (a table for many), a JSON array of run
-// objects, or CSV with one row per run.
-void print_runs(std::ostream& out, store::Ledger& ledger, const std::vector<std::int64_t>& runs,
-                Format format);
-
-// Prints one run in full as text.
-void print_run_text(std::ostream& out, const nlohmann::ordered_json& run);
-
-}  // namespace alphatrail::cli
+}  // namespace alphatrail::app

@@ -1,32 +1,25 @@
-#include "cli/evaluate.h"
+#include "app/evaluate.h"
 
 #include <fmt/format.h>
 #include <fnmatch.h>
 
 #include <algorithm>
-#include <chrono>
-#include <cmath>
-#include <cstdio>
-#include <iostream>
+#include <functional>
 #include <map>
 #include <set>
 
 #include "core/error.h"
 #include "core/evaluation.h"
-#include "core/number_text.h"
 #include "core/parallel.h"
 #include "core/reading.h"
 #include "core/timings.h"
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
-#include "report/reports.h"
 #include "store/ledger.h"
 
-namespace alphatrail::cli {
+namespace alphatrail::app {
 
 namespace {
-
-using nlohmann::ordered_json;
 
 Error usage(const std::string& message) {
   return Error(Failure::invalid_argument, message);
@@ -110,14 +103,6 @@ struct Plan {
   std::vector<std::size_t> members;  // indices into the strategy list
   int rolling_window = 0;            // N periods; 0: none
 };
-
-void draw_progress(std::size_t done, std::size_t total) {
-  constexpr int kWidth = 30;
-  const int filled = static_cast<int>(kWidth * done / std::max<std::size_t>(total, 1));
-  std::cerr << fmt::format("\r[{}{}] {}/{} runs recorded", std::string(filled, '#'),
-                           std::string(kWidth - filled, ' '), done, total)
-            << (done == total ? "\n" : "") << std::flush;
-}
 
 }  // namespace
 
@@ -438,17 +423,16 @@ std::vector<std::int64_t> record_in_transaction(store::Ledger& ledger,
 }  // namespace
 
 std::vector<std::int64_t> record_runs(store::Ledger& ledger, std::vector<PendingRun>& pending,
-                                      bool progress) {
+                                      const Progress& progress) {
   std::vector<std::int64_t> run_ids;
   std::function<void(std::size_t)> on_stored;
-  if (progress && pending.size() > 1)
-    on_stored = [&](std::size_t done) { draw_progress(done, pending.size()); };
+  if (progress) on_stored = [&](std::size_t done) { progress(done, pending.size()); };
   ledger.write_transaction([&] { run_ids = record_in_transaction(ledger, pending, on_stored); });
   return run_ids;
 }
 
 std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger, const EvaluateRequest& rq,
-                                              bool progress) {
+                                              const Progress& progress) {
   // One write transaction: the inputs come from one snapshot, each chunk of runs is written
   // while the next is evaluated, and a failure anywhere records nothing.
   std::vector<std::int64_t> run_ids;
@@ -456,8 +440,7 @@ std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger, const Evalu
     evaluate_in_snapshot(ledger, rq, [&](std::vector<PendingRun>& chunk, std::size_t total) {
       const std::size_t before = run_ids.size();
       std::function<void(std::size_t)> on_stored;
-      if (progress && total > 1)
-        on_stored = [&](std::size_t done) { draw_progress(before + done, total); };
+      if (progress) on_stored = [&](std::size_t done) { progress(before + done, total); };
       const auto ids = record_in_transaction(ledger, chunk, on_stored);
       run_ids.insert(run_ids.end(), ids.begin(), ids.end());
     });
@@ -465,211 +448,6 @@ std::vector<std::int64_t> evaluate_and_record(store::Ledger& ledger, const Evalu
   core::mark_phase("evaluate: recorded");
   return run_ids;
 }
-
-namespace {
-
-double num(const ordered_json& j) {
-  return j.is_number() ? j.get<double>() : NAN;
-}
-
-std::string fixed(const ordered_json& j, int digits) {
-  return core::fixed(num(j), digits);
-}
-
-std::string pct(const ordered_json& j, int digits = 2) {
-  return core::signed_percent(num(j), digits);
-}
-
-std::string p_text(const ordered_json& j) {
-  return core::p_value_text(num(j));
-}
-
-const char* per(const std::string& frequency) {
-  if (frequency == "daily") return "per day";
-  if (frequency == "weekly") return "per week";
-  if (frequency == "quarterly") return "per quarter";
-  return "per month";
-}
-
-// Prints the short rolling section of a run: how many windows, over which ends, and the range
-// of alpha a year and beta; the windows themselves are one `show --format csv` away.
-void print_rolling_text(std::ostream& out, const ordered_json& run) {
-  const auto& rolling = run["rolling"];
-  const std::string frequency = run["sample"]["frequency"];
-  const auto window = rolling["window"].get<int>();
-  const auto& windows = rolling["windows"];
-  const std::string noun = std::string(per(frequency)).substr(4);  // "per month" -> "month"
-  if (windows.empty()) {
-    out << fmt::format(
-        "  rolling estimates      none: the sample is shorter than the window of {} {}s\n\n",
-        window, noun);
-    return;
-  }
-  double alpha_low = NAN, alpha_high = NAN, beta_low = NAN, beta_high = NAN;
-  int missing = 0;
-  for (const auto& w : windows) {
-    const double a = num(w["alpha_annualized"]);
-    const double b = num(w["beta"]);
-    if (std::isnan(a) || std::isnan(b)) {
-      ++missing;
-      continue;
-    }
-    alpha_low = std::isnan(alpha_low) ? a : std::min(alpha_low, a);
-    alpha_high = std::isnan(alpha_high) ? a : std::max(alpha_high, a);
-    beta_low = std::isnan(beta_low) ? b : std::min(beta_low, b);
-    beta_high = std::isnan(beta_high) ? b : std::max(beta_high, b);
-  }
-  const std::string errors = rolling["errors"];
-  const int lags = windows.front()["lags"].get<int>();
-  out << fmt::format("  rolling estimates      {} windows of {} {}s, ending {} to {}\n",
-                     windows.size(), window, noun, windows.front()["end"].get<std::string>(),
-                     windows.back()["end"].get<std::string>());
-  out << fmt::format("                         {} errors{}\n", errors,
-                     errors != "newey-west" ? ""
-                     : rolling["lag_rule"] == "auto"
-                         ? fmt::format(", {} lags in each window "
-                                       "(the automatic rule for {})",
-                                       lags, window)
-                         : fmt::format(", {} lags in each window", lags));
-  if (missing < static_cast<int>(windows.size()))
-    out << fmt::format(
-        "                         alpha {} to {} a year ({}), beta {:.2f} to {:.2f}{}\n",
-        pct(alpha_low), pct(alpha_high), rolling["annualize"].get<std::string>(), beta_low,
-        beta_high, missing > 0 ? fmt::format("; {} windows without figures", missing) : "");
-  else
-    out << "                         no window could be estimated (see the warnings)\n";
-  out << fmt::format(
-      "                         one row per window: `alphatrail show {} --format csv`\n\n",
-      run["run_id"].get<std::int64_t>());
-}
-
-}  // namespace
-
-void print_run_text(std::ostream& out, const ordered_json& run) {
-  const auto& sample = run["sample"];
-  const auto& stats = run["statistics"];
-  const std::string frequency = sample["frequency"];
-  const std::string unit = per(frequency);
-  const auto& params = run["parameters"];
-  out << fmt::format("Run {}: {} against {}\n", run["run_id"].get<std::int64_t>(),
-                     run["strategy"].get<std::string>(), run["benchmark"].get<std::string>());
-  out << fmt::format("  recorded {} (UTC), engine {}, inputs hash {}\n",
-                     run["created_at"].get<std::string>(), run["engine_version"].get<std::string>(),
-                     run["inputs_hash"].get<std::string>());
-  if (run["study"].is_string()) out << fmt::format("  study {}\n", run["study"].get<std::string>());
-  if (run["revises_run_id"].is_number())
-    out << fmt::format("  revises run {}\n", run["revises_run_id"].get<std::int64_t>());
-  out << fmt::format("  risk-free {}, {} basis, yield known at the period's {}\n",
-                     run["rate"].get<std::string>(), params["rate_basis"].get<std::string>(),
-                     params["rate_timing"].get<std::string>());
-  if (run["factors"].is_string())
-    out << fmt::format("  factors {}\n", run["factors"].get<std::string>());
-  out << fmt::format("  sample {} to {}: {} {} periods ({} dropped)\n",
-                     sample["first"].get<std::string>(), sample["last"].get<std::string>(),
-                     sample["observations"].get<int>(), frequency, sample["dropped"].get<int>());
-  out << fmt::format(
-      "  standard errors {}; {:g}% intervals, Student t with {} degrees of freedom\n\n",
-      report::describe_errors(stats), 100 * stats["confidence"].get<double>(),
-      stats["degrees_of_freedom"].get<int>());
-
-  Table table;
-  table.header = {"term", "estimate", "std error", "t", "p", "interval low", "interval high"};
-  table.right_aligned = {false, true, true, true, true, true, true};
-  for (const auto& c : run["coefficients"])
-    table.rows.push_back({c["term"].get<std::string>(), fixed(c["estimate"], 6),
-                          fixed(c["std_error"], 6), fixed(c["t_stat"], 2), p_text(c["p_value"]),
-                          fixed(c["ci_low"], 6), fixed(c["ci_high"], 6)});
-  std::ostringstream t;
-  print_table(t, table);
-  std::istringstream lines(t.str());
-  for (std::string line; std::getline(lines, line);) out << "  " << line << '\n';
-  out << fmt::format("  (alpha is a decimal return {}; slopes are unitless)\n\n", unit);
-
-  out << fmt::format("  alpha annualized       {} a year ({})\n", pct(stats["alpha_annualized"]),
-                     params["annualize"].get<std::string>());
-  out << fmt::format("  R-squared              {} (adjusted {}); residual sd {} {}\n",
-                     fixed(stats["r_squared"], 3), fixed(stats["adj_r_squared"], 3),
-                     fixed(stats["residual_std"], 5), unit);
-  out << fmt::format("  F statistic            {} (p {}), classic\n", fixed(stats["f_stat"], 2),
-                     p_text(stats["f_p_value"]));
-  out << fmt::format("  Sharpe ratio           strategy {}, benchmark {} (annualized)\n",
-                     fixed(stats["sharpe_strategy"], 2), fixed(stats["sharpe_benchmark"], 2));
-  out << fmt::format("  appraisal ratio        {} (alpha / residual sd, annualized)\n",
-                     fixed(stats["appraisal_ratio"], 2));
-  out << fmt::format("  Treynor ratio          {} a year (mean excess return / beta)\n",
-                     pct(stats["treynor_ratio"]));
-  out << fmt::format("  tracking error         {:.2f}% a year; information ratio {} (annualized)\n",
-                     100 * num(stats["tracking_error"]), fixed(stats["information_ratio"], 2));
-  out << fmt::format("  mean excess return     strategy {}, benchmark {} {}\n",
-                     pct(stats["mean_excess_strategy"], 3), pct(stats["mean_excess_benchmark"], 3),
-                     unit);
-  out << fmt::format(
-      "  correlation            {}; up-market beta {} ({} periods), down-market beta {} ({} "
-      "periods)\n\n",
-      fixed(stats["correlation"], 3), fixed(stats["up_market_beta"], 2),
-      stats["up_periods"].get<int>(), fixed(stats["down_market_beta"], 2),
-      stats["down_periods"].get<int>());
-  if (run.contains("rolling") && run["rolling"].is_object()) print_rolling_text(out, run);
-  for (const auto& w : run["warnings"]) out << "  warning: " << w.get<std::string>() << '\n';
-  if (!run["warnings"].empty()) out << '\n';
-  out << "  Reading\n";
-  for (const auto& sentence : run["reading"]) out << "  - " << sentence.get<std::string>() << '\n';
-  out << '\n';
-}
-
-void print_runs(std::ostream& out, store::Ledger& ledger, const std::vector<std::int64_t>& runs,
-                Format format) {
-  if (format == Format::json) {
-    ordered_json array = ordered_json::array();
-    for (auto id : runs) array.push_back(ledger.load_run(id));
-    print_json(out, array);
-    return;
-  }
-  if (format == Format::table && runs.size() <= 3) {
-    for (auto id : runs) print_run_text(out, ledger.load_run(id));
-    return;
-  }
-  // Many runs: one line each, read in one query (runs of one command have consecutive ids).
-  Table table;
-  table.header = {"run",  "strategy", "periods", "alpha (per period)", "alpha a year", "t", "p",
-                  "beta", "R2",       "errors"};
-  table.right_aligned = {true, false, true, true, true, true, true, true, true, false};
-  store::RunFilter filter;
-  filter.staleness = false;  // runs just recorded are not stale, and the table has no column for it
-  if (!runs.empty()) {
-    filter.first_run = *std::min_element(runs.begin(), runs.end());
-    filter.last_run = *std::max_element(runs.begin(), runs.end());
-  }
-  const std::set<std::int64_t> wanted(runs.begin(), runs.end());
-  const auto number = [](double v, int digits) {
-    return std::isnan(v) ? std::string("n/a") : fmt::format("{:.{}f}", v, digits);
-  };
-  const auto summaries = runs.empty() ? std::vector<store::RunSummary>{} : ledger.list_runs(filter);
-  for (const auto& r : summaries) {
-    if (wanted.count(r.run_id) == 0) continue;
-    table.rows.push_back(
-        {std::to_string(r.run_id), r.strategy, std::to_string(r.observations), number(r.alpha, 6),
-         std::isnan(r.alpha_annualized) ? "n/a" : fmt::format("{:+.2f}%", 100 * r.alpha_annualized),
-         number(r.alpha_t, 2),
-         std::isnan(r.alpha_p) ? "n/a"
-         : r.alpha_p < 0.0001  ? "<0.0001"
-                               : fmt::format("{:.4f}", r.alpha_p),
-         number(r.beta, 3), number(r.r_squared, 3),
-         r.errors + (r.errors == "newey-west" ? fmt::format(" ({} lags)", r.lags) : "")});
-  }
-  if (format == Format::csv) {
-    print_csv(out, table);
-    return;
-  }
-  print_table(out, table);
-  out << fmt::format("\n{} runs recorded; `alphatrail show RUN` prints one in full.\n",
-                     runs.size());
-  for (const auto& c : core::standard_cautions()) out << c << '\n';
-}
-
-}  // namespace alphatrail::cli
-
-namespace alphatrail::cli {
 
 std::string RollingChoice::text() const {
   switch (mode) {
@@ -711,4 +489,4 @@ EvaluateRequest request_from_run(store::Ledger& ledger, std::int64_t run_id, boo
   return rq;
 }
 
-}  // namespace alphatrail::cli
+}  // namespace alphatrail::app
