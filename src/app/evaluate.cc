@@ -13,6 +13,7 @@
 #include "core/parallel.h"
 #include "core/reading.h"
 #include "core/timings.h"
+#include "record/content.h"
 #include "record/run_parameters.h"
 #include "record/stored_result.h"
 #include "store/ledger.h"
@@ -292,11 +293,8 @@ void evaluate_in_snapshot(store::Ledger& ledger, const EvaluateRequest& rq, cons
     shared.rate.name = rate.info.name;
     shared.rate.tenor = plan.tenor;
     shared.rate.yields = {std::move(tenor_column.dates), std::move(tenor_column.values)};
-    shared.rate.unit =
-        rate.info.unit == "percent yield" ? core::RateUnit::percent : core::RateUnit::decimal;
-    shared.rate.quote = rate.info.quote == std::optional<std::string>("discount")
-                            ? core::RateQuote::discount
-                            : core::RateQuote::yield;
+    shared.rate.unit = record::stored_rate_unit(rate.info.name, rate.info.unit);
+    shared.rate.quote = record::stored_rate_quote(rate.info.name, rate.info.quote);
     for (const auto& fc : factors)
       for (const auto& col : fc.columns) {
         const auto it =
