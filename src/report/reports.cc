@@ -5,10 +5,10 @@
 #include <algorithm>
 #include <cmath>
 
-#include "core/reading.h"
 #include "core/annualize.h"
 #include "core/evaluation.h"
 #include "core/number_text.h"
+#include "core/reading.h"
 #include "report/charts.h"
 #include "report/html.h"
 

@@ -4,7 +4,6 @@
 //
 // All data are built in the test (no files): monthly month-end dates, benchmark returns and
 // percent yields that change every month, strategies built from them.
-#include "core/reading.h"
 #include "core/evaluation.h"
 
 #include <gtest/gtest.h>
@@ -16,6 +15,7 @@
 #include <vector>
 
 #include "core/error.h"
+#include "core/reading.h"
 #include "support/test_support.h"
 
 namespace alphatrail::core {
