@@ -5,16 +5,41 @@
 #pragma once
 
 #include <CLI/CLI.hpp>
+#include <cstddef>
 #include <functional>
 #include <string>
 #include <utility>
 #include <vector>
+
+#include "core/vocabulary.h"
 
 namespace alphatrail::cli {
 
 // The names of an option in the order --help lists them, each with its value.
 template <typename T>
 using Choices = std::vector<std::pair<std::string, T>>;
+
+// Returns the choices of a vocabulary: its names with their values, in table order.
+// Example: choices_of(core::kRateTimings) == Choices<RateTiming>{{"start", ...}, {"end", ...}}.
+template <typename Row, std::size_t N>
+Choices<typename core::Vocabulary<Row, N>::Value> choices_of(
+    const core::Vocabulary<Row, N>& vocabulary) {
+  Choices<typename core::Vocabulary<Row, N>::Value> choices;
+  for (const Row& row : vocabulary.rows()) choices.emplace_back(row.name, row.value);
+  return choices;
+}
+
+// Returns the names of a vocabulary as a sentence lists them, for an option's description.
+// Example: listed_names(core::kRateBases) == "compound, simple or act360".
+template <typename Row, std::size_t N>
+std::string listed_names(const core::Vocabulary<Row, N>& vocabulary) {
+  std::string text;
+  for (std::size_t i = 0; i < N; ++i) {
+    if (i > 0) text += i + 1 == N ? " or " : ", ";
+    text += vocabulary.rows()[i].name;
+  }
+  return text;
+}
 
 // Adds an option taking one of `choices`; `set` receives the value of the name given.
 // `shown_default` is the name --help shows as the default ("" for none); with ignore_case

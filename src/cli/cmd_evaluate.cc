@@ -119,23 +119,13 @@ void setup_evaluate(CLI::App& app, const GlobalOptions& global) {
       },
       "Factor set, SET or SET:col,col (repeatable); without it: single-index model");
   add_choice_option<core::Frequency>(
-      *cmd, "--frequency",
-      {{"daily", core::Frequency::daily},
-       {"weekly", core::Frequency::weekly},
-       {"monthly", core::Frequency::monthly},
-       {"quarterly", core::Frequency::quarterly}},
+      *cmd, "--frequency", choices_of(core::kFrequencies),
       [r](const core::Frequency& f) { r->frequency = f; },
-      "daily, weekly, monthly or quarterly (default: the lowest among the inputs)");
+      listed_names(core::kFrequencies) + " (default: the lowest among the inputs)");
   cmd->add_option("--from", r->from, "First period, YYYY-MM-DD or YYYY-MM");
   cmd->add_option("--to", r->to, "Last period, YYYY-MM-DD or YYYY-MM");
-  add_choice_option<core::ErrorKind>(*cmd, "--errors", r->errors,
-                                     {{"classic", core::ErrorKind::classic},
-                                      {"hc0", core::ErrorKind::hc0},
-                                      {"hc1", core::ErrorKind::hc1},
-                                      {"hc2", core::ErrorKind::hc2},
-                                      {"hc3", core::ErrorKind::hc3},
-                                      {"newey-west", core::ErrorKind::newey_west}},
-                                     "classic, hc0, hc1, hc2, hc3 or newey-west");
+  add_choice_option<core::ErrorKind>(*cmd, "--errors", r->errors, choices_of(core::kErrorKinds),
+                                     listed_names(core::kErrorKinds));
   cmd->add_option_function<std::string>(
          "--lags", [r](const std::string& text) { r->lags = parse_lags(text); },
          "Newey-West lags: N or auto (floor(4 (T/100)^(2/9)))")
@@ -146,18 +136,13 @@ void setup_evaluate(CLI::App& app, const GlobalOptions& global) {
       ->check(CLI::Range(0.5, 0.9999))
       ->default_str("0.95");
   add_choice_option<core::RateBasis>(*cmd, "--rate-basis", r->rate_basis,
-                                     {{"compound", core::RateBasis::compound},
-                                      {"simple", core::RateBasis::simple},
-                                      {"act360", core::RateBasis::act360}},
-                                     "compound, simple or act360");
+                                     choices_of(core::kRateBases), listed_names(core::kRateBases));
   add_choice_option<core::RateTiming>(
-      *cmd, "--rate-timing", r->rate_timing,
-      {{"start", core::RateTiming::start}, {"end", core::RateTiming::end}},
+      *cmd, "--rate-timing", r->rate_timing, choices_of(core::kRateTimings),
       "start (the yield known at the period's start) or end (look-ahead)");
-  add_choice_option<core::Annualize>(
-      *cmd, "--annualize", r->annualize,
-      {{"compound", core::Annualize::compound}, {"arithmetic", core::Annualize::arithmetic}},
-      "compound ((1+a)^P - 1) or arithmetic (a P)");
+  add_choice_option<core::Annualize>(*cmd, "--annualize", r->annualize,
+                                     choices_of(core::kAnnualizations),
+                                     "compound ((1+a)^P - 1) or arithmetic (a P)");
   cmd->add_option_function<std::string>(
          "--rolling", [r](const std::string& text) { r->rolling = parse_rolling(text); },
          "Rolling alpha and beta over windows of N periods: N, auto (three years: 36 "

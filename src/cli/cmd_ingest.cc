@@ -5,6 +5,7 @@
 #include <iostream>
 #include <sstream>
 
+#include "cli/choices.h"
 #include "cli/commands.h"
 #include "cli/ingest.h"
 #include "cli/option_text.h"
@@ -53,18 +54,19 @@ core::SeriesFileOptions parse_options(const IngestRequest& o, core::SeriesKind k
   if (o.percent && o.levels)
     throw Error(Failure::invalid_argument,
                 "--percent and --levels exclude each other: levels have no unit");
-  if (!is_rate && o.quote != "yield")
+  parse.quote = *core::parse_rate_quote(o.quote);
+  if (!is_rate && parse.quote != core::RateQuote::yield)
     throw Error(Failure::invalid_argument, "--quote applies to rate files only");
   if (is_rate && o.allow_large_returns)
     throw Error(Failure::invalid_argument,
                 "--allow-large-returns is for returns; rate files hold yields, checked against "
                 "their plausible range");
   parse.allow_large_returns = o.allow_large_returns;
-  parse.unit = is_rate     ? (o.decimal ? core::ValueUnit::decimal : core::ValueUnit::percent)
-               : o.levels  ? core::ValueUnit::levels
+  // The flags were checked against the kind above: each names a unit the kind can be read in.
+  parse.unit = o.levels    ? core::ValueUnit::levels
                : o.percent ? core::ValueUnit::percent
-                           : core::ValueUnit::decimal;
-  parse.quote = *core::parse_rate_quote(o.quote);
+               : o.decimal ? core::ValueUnit::decimal
+                           : core::default_unit(kind);
   if (is_rate) {
     parse.rename = o.tenor;
   } else if (kind == core::SeriesKind::strategy || kind == core::SeriesKind::benchmark) {
@@ -165,9 +167,9 @@ void setup_ingest(CLI::App& app, const GlobalOptions& global) {
       "ingest",
       "Add series from a CSV file: each strategy or benchmark column becomes a series; a factor "
       "file is one factor set, a rate file one rate curve. New content gets a new version.");
-  cmd->add_option("kind", o->kind, "strategy, benchmark, rate or factor")
+  cmd->add_option("kind", o->kind, listed_names(core::kSeriesKinds))
       ->required()
-      ->check(CLI::IsMember({"strategy", "benchmark", "rate", "factor"}));
+      ->check(CLI::IsMember(core::kSeriesKinds.names()));
   cmd->add_option("file", o->file, "CSV file (RFC 4180, header row, ISO 8601 dates)")->required();
   cmd->add_option("--name", o->name,
                   "Name of a single-column strategy or benchmark, or of the factor set or rate "
@@ -182,7 +184,7 @@ void setup_ingest(CLI::App& app, const GlobalOptions& global) {
                 "Accept returns above +1,000% in one period (refused by default as most likely "
                 "a wrong value or unit)");
   cmd->add_option("--quote", o->quote, "Rate quote: yield (default) or discount (bank discount)")
-      ->check(CLI::IsMember({"yield", "discount"}));
+      ->check(CLI::IsMember(core::kRateQuotes.names()));
   cmd->add_option("--note", o->note, "Note stored with the new versions");
   cmd->callback([o, &global] {
     ingest_file(store::resolve_ledger_path(global.ledger), *o, std::cout, std::cerr);

@@ -12,7 +12,7 @@
 namespace alphatrail::cli {
 
 struct IngestRequest {
-  std::string kind;  // strategy | benchmark | rate | factor
+  std::string kind;  // a name in core::kSeriesKinds: strategy | benchmark | rate | factor
   std::string file;
   std::string name;   // single-column strategy/benchmark rename, or the set/curve name
   std::string tenor;  // single-column rate file
@@ -22,7 +22,7 @@ struct IngestRequest {
   bool levels = false;
   bool decimal = false;
   bool allow_large_returns = false;  // accept a return above +1,000% in one period
-  std::string quote = "yield";
+  std::string quote = "yield";       // a name in core::kRateQuotes
   std::string note;
 };
 

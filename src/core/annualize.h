@@ -5,14 +5,26 @@
 #include <optional>
 #include <string_view>
 
+#include "core/vocabulary.h"
+
 namespace alphatrail::core {
 
 enum class Annualize { compound, arithmetic };  // (1 + a)^P - 1 | a * P
 
+// The names used in options and run records.
+inline constexpr auto kAnnualizations = vocabulary<Word<Annualize>>({
+    {Annualize::compound, "compound"},
+    {Annualize::arithmetic, "arithmetic"},
+});
+
 // Returns "compound" or "arithmetic".
-const char* annualize_name(Annualize a);
+inline const char* annualize_name(Annualize a) {
+  return kAnnualizations.name(a);
+}
 // Parses "compound" or "arithmetic"; nullopt when unknown.
-std::optional<Annualize> parse_annualize(std::string_view name);
+inline std::optional<Annualize> parse_annualize(std::string_view name) {
+  return kAnnualizations.parse(name);
+}
 
 // Returns a per-period return annualized by the convention. Both rules increase with the
 // return (compound above -100% a period), so interval bounds annualize the same way.

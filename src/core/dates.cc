@@ -84,58 +84,6 @@ std::string format_date(Day day) {
   return fmt::format("{:04}-{:02}-{:02}", c.year, c.month, c.day);
 }
 
-const char* frequency_name(Frequency f) {
-  switch (f) {
-    case Frequency::daily: return "daily";
-    case Frequency::weekly: return "weekly";
-    case Frequency::monthly: return "monthly";
-    case Frequency::quarterly: return "quarterly";
-  }
-  return "unknown";
-}
-
-bool is_finer(Frequency a, Frequency b) {
-  // The one order of the frequencies, finest first.
-  const auto fineness = [](Frequency f) {
-    switch (f) {
-      case Frequency::daily: return 0;
-      case Frequency::weekly: return 1;
-      case Frequency::monthly: return 2;
-      case Frequency::quarterly: return 3;
-    }
-    return 0;
-  };
-  return fineness(a) < fineness(b);
-}
-
-const char* period_noun(Frequency f) {
-  switch (f) {
-    case Frequency::daily: return "day";
-    case Frequency::weekly: return "week";
-    case Frequency::monthly: return "month";
-    case Frequency::quarterly: return "quarter";
-  }
-  return "period";
-}
-
-std::optional<Frequency> parse_frequency(std::string_view name) {
-  if (name == "daily") return Frequency::daily;
-  if (name == "weekly") return Frequency::weekly;
-  if (name == "monthly") return Frequency::monthly;
-  if (name == "quarterly") return Frequency::quarterly;
-  return std::nullopt;
-}
-
-int periods_per_year(Frequency f) {
-  switch (f) {
-    case Frequency::daily: return 252;
-    case Frequency::weekly: return 52;
-    case Frequency::monthly: return 12;
-    case Frequency::quarterly: return 4;
-  }
-  return 12;
-}
-
 std::int64_t period_key(Frequency f, Day day) {
   switch (f) {
     case Frequency::daily: return day;

@@ -1,11 +1,14 @@
-// Calendar dates as day numbers, ISO 8601 parsing and formatting, and period keys used to put
-// series on one frequency. Pure computation: no I/O.
+// Calendar dates as day numbers, ISO 8601 parsing and formatting, the frequencies (one table of
+// their names, nouns and periods a year) and period keys used to put series on one frequency. Pure
+// computation: no I/O.
 #pragma once
 
 #include <cstdint>
 #include <optional>
 #include <string>
 #include <string_view>
+
+#include "core/vocabulary.h"
 
 namespace alphatrail::core {
 
@@ -19,6 +22,22 @@ struct CivilDate {
 };
 
 enum class Frequency { daily, weekly, monthly, quarterly };
+
+// What a frequency is called and how long its period is.
+struct FrequencyWord {
+  Frequency value;
+  const char* name;      // in options, output and the ledger: "monthly"
+  const char* noun;      // one period, as in "% per month": "month"
+  int periods_per_year;  // the conventional count (common practice); more is finer
+};
+
+// The frequencies from finest to coarsest.
+inline constexpr auto kFrequencies = vocabulary<FrequencyWord>({
+    {Frequency::daily, "daily", "day", 252},
+    {Frequency::weekly, "weekly", "week", 52},
+    {Frequency::monthly, "monthly", "month", 12},
+    {Frequency::quarterly, "quarterly", "quarter", 4},
+});
 
 // Returns the day number of a civil date (no validation).
 Day to_day(const CivilDate& date);
@@ -45,16 +64,27 @@ ParsedDate parse_date(std::string_view text);
 std::string format_date(Day day);
 
 // Returns the name used in options and output: "daily", "weekly", ...
-const char* frequency_name(Frequency f);
+inline const char* frequency_name(Frequency f) {
+  return kFrequencies.name(f);
+}
 // Parses a frequency name; nullopt when unknown.
-std::optional<Frequency> parse_frequency(std::string_view name);
-// Returns true when frequency a is finer than b (daily < weekly < monthly < quarterly).
+inline std::optional<Frequency> parse_frequency(std::string_view name) {
+  return kFrequencies.parse(name);
+}
+// Returns true when frequency a is finer than b (daily < weekly < monthly < quarterly): it has
+// more periods in a year.
 // Example: is_finer(Frequency::daily, Frequency::monthly) == true.
-bool is_finer(Frequency a, Frequency b);
+inline bool is_finer(Frequency a, Frequency b) {
+  return kFrequencies.row(a).periods_per_year > kFrequencies.row(b).periods_per_year;
+}
 // Returns the noun of one period: "day", "week", "month", "quarter" (as in "% per month").
-const char* period_noun(Frequency f);
+inline const char* period_noun(Frequency f) {
+  return kFrequencies.row(f).noun;
+}
 // Returns the conventional number of periods per year: 252, 52, 12, 4 (common practice).
-int periods_per_year(Frequency f);
+inline int periods_per_year(Frequency f) {
+  return kFrequencies.row(f).periods_per_year;
+}
 
 // Returns the key of the period containing a day: the day itself (daily), the Monday-based
 // week, the month (year*12 + month-1) or the quarter (year*4 + quarter-1).

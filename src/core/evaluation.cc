@@ -130,10 +130,9 @@ PairStatistics pair_statistics(const std::vector<double>& s, const std::vector<d
 
 std::string describe_rate(const RateInput& rate, const EvaluationSettings& s, Frequency f) {
   const int P = periods_per_year(f);
-  std::string text =
-      fmt::format("rate '{}' tenor {}: annualized {} {}", rate.name, rate.tenor,
-                  rate.unit == RateUnit::percent ? "percent" : "decimal",
-                  rate.quote == RateQuote::discount ? "bank-discount quotes" : "yields");
+  std::string text = fmt::format(
+      "rate '{}' tenor {}: annualized {} {}", rate.name, rate.tenor, kRateUnits.name(rate.unit),
+      rate.quote == RateQuote::discount ? "bank-discount quotes" : "yields");
   if (rate.unit == RateUnit::percent) text += ", divided by 100";
   if (rate.quote == RateQuote::discount)
     text += s.rate_basis == RateBasis::act360

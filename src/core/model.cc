@@ -8,15 +8,6 @@
 
 namespace alphatrail::core {
 
-const char* role_name(TermRole role) {
-  switch (role) {
-    case TermRole::intercept: return "intercept";
-    case TermRole::market: return "market";
-    case TermRole::factor: return "factor";
-  }
-  return "unknown";
-}
-
 bool is_factor_loading(const ModelTerm& term) {
   return term.role == TermRole::factor;
 }

@@ -21,6 +21,7 @@
 
 #include "core/align.h"
 #include "core/regression.h"
+#include "core/vocabulary.h"
 
 namespace alphatrail::core {
 
@@ -29,15 +30,25 @@ namespace alphatrail::core {
 // Extension point: a new kind of term (e.g. a market-timing term `timing`, the squared market
 // excess return of Treynor & Mazuy 1966, named "gamma") is added here, and then every `switch`
 // on TermRole stops compiling without a case for it (-Wswitch; the switches have no default on
-// purpose): role_name, term_name, design_matrix (its column: (r_m - r_f)^2, computed as
+// purpose): term_name, design_matrix (its column: (r_m - r_f)^2, computed as
 // x * x from the same x as the market column), and in reading.cc whether the sentence "explained
 // by the market and the factors" counts it. A builder (e.g. ModelSpec::with_timing) appends the
-// term; is_factor_loading stays false for it, so the reading does not list it as a loading.
+// term; is_factor_loading stays false for it, so the reading does not list it as a loading. Its
+// name for messages is a row in kTermRoles (no switch: VocabularyTest lists the roles).
 // Runs without the new term keep their bits: the existing specs and columns do not change.
 enum class TermRole { intercept, market, factor };
 
-// Returns the role's name for messages: "intercept", "market", "factor".
-const char* role_name(TermRole role);
+// The roles' names for messages.
+inline constexpr auto kTermRoles = vocabulary<Word<TermRole>>({
+    {TermRole::intercept, "intercept"},
+    {TermRole::market, "market"},
+    {TermRole::factor, "factor"},
+});
+
+// Returns the role's name: "intercept", "market", "factor".
+inline const char* role_name(TermRole role) {
+  return kTermRoles.name(role);
+}
 
 struct ModelTerm {
   TermRole role = TermRole::factor;

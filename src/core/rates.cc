@@ -43,42 +43,6 @@ int act360_days(Frequency f, std::int64_t key, const std::int64_t* previous) {
 
 }  // namespace
 
-const char* rate_basis_name(RateBasis b) {
-  switch (b) {
-    case RateBasis::compound: return "compound";
-    case RateBasis::simple: return "simple";
-    case RateBasis::act360: return "act360";
-  }
-  return "unknown";
-}
-
-const char* rate_timing_name(RateTiming t) {
-  return t == RateTiming::start ? "start" : "end";
-}
-
-const char* rate_unit_name(RateUnit u) {
-  return u == RateUnit::percent ? "percent" : "decimal";
-}
-
-std::optional<RateBasis> parse_rate_basis(std::string_view name) {
-  if (name == "compound") return RateBasis::compound;
-  if (name == "simple") return RateBasis::simple;
-  if (name == "act360") return RateBasis::act360;
-  return std::nullopt;
-}
-
-std::optional<RateTiming> parse_rate_timing(std::string_view name) {
-  if (name == "start") return RateTiming::start;
-  if (name == "end") return RateTiming::end;
-  return std::nullopt;
-}
-
-std::optional<RateUnit> parse_rate_unit(std::string_view name) {
-  if (name == "percent") return RateUnit::percent;
-  if (name == "decimal") return RateUnit::decimal;
-  return std::nullopt;
-}
-
 Tenor parse_tenor(std::string_view text) {
   const auto malformed = [&] {
     bad_input(

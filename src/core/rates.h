@@ -37,6 +37,7 @@
 #include "core/dates.h"
 #include "core/resample.h"
 #include "core/series_file.h"
+#include "core/vocabulary.h"
 
 namespace alphatrail::core {
 
@@ -45,21 +46,32 @@ enum class RateTiming {
   start,
   end
 };  // yield known at the period's start | at its end (look-ahead)
-// RateQuote (yield | bank discount) and its name helpers come from core/series_file.h.
+// RateQuote (yield | bank discount) and its vocabulary come from core/series_file.h.
 enum class RateUnit { percent, decimal };
 
-// Returns the name used in options and run records: "compound", "simple", "act360".
-const char* rate_basis_name(RateBasis b);
+// The names used in options and run records.
+inline constexpr auto kRateBases = vocabulary<Word<RateBasis>>({
+    {RateBasis::compound, "compound"},
+    {RateBasis::simple, "simple"},
+    {RateBasis::act360, "act360"},
+});
+inline constexpr auto kRateTimings = vocabulary<Word<RateTiming>>({
+    {RateTiming::start, "start"},
+    {RateTiming::end, "end"},
+});
+inline constexpr auto kRateUnits = vocabulary<Word<RateUnit>>({
+    {RateUnit::percent, "percent"},
+    {RateUnit::decimal, "decimal"},
+});
+
+// Returns the name of a basis: "compound", "simple", "act360".
+inline const char* rate_basis_name(RateBasis b) {
+  return kRateBases.name(b);
+}
 // Returns "start" or "end".
-const char* rate_timing_name(RateTiming t);
-// Returns "percent" or "decimal".
-const char* rate_unit_name(RateUnit u);
-// Parses a basis name; nullopt when unknown. Example: parse_rate_basis("act360").
-std::optional<RateBasis> parse_rate_basis(std::string_view name);
-// Parses "start" or "end"; nullopt when unknown.
-std::optional<RateTiming> parse_rate_timing(std::string_view name);
-// Parses "percent" or "decimal"; nullopt when unknown.
-std::optional<RateUnit> parse_rate_unit(std::string_view name);
+inline const char* rate_timing_name(RateTiming t) {
+  return kRateTimings.name(t);
+}
 
 struct Tenor {
   std::string label;       // as given, upper-cased: "13W"

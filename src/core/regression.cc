@@ -491,26 +491,6 @@ void check_confidence(double confidence) {
 
 }  // namespace
 
-const char* error_kind_name(ErrorKind kind) {
-  switch (kind) {
-    case ErrorKind::classic: return "classic";
-    case ErrorKind::hc0: return "hc0";
-    case ErrorKind::hc1: return "hc1";
-    case ErrorKind::hc2: return "hc2";
-    case ErrorKind::hc3: return "hc3";
-    case ErrorKind::newey_west: return "newey-west";
-  }
-  return "unknown";
-}
-
-std::optional<ErrorKind> parse_error_kind(std::string_view name) {
-  for (ErrorKind kind : {ErrorKind::classic, ErrorKind::hc0, ErrorKind::hc1, ErrorKind::hc2,
-                         ErrorKind::hc3, ErrorKind::newey_west}) {
-    if (name == error_kind_name(kind)) return kind;
-  }
-  return std::nullopt;
-}
-
 int auto_newey_west_lags(int T) {
   if (T <= 0) return 0;
   return static_cast<int>(std::floor(4.0 * std::pow(T / 100.0, 2.0 / 9.0)));

@@ -24,6 +24,8 @@
 #include <string_view>
 #include <vector>
 
+#include "core/vocabulary.h"
+
 namespace alphatrail::core {
 
 // How the coefficient covariance is estimated.
@@ -33,11 +35,20 @@ namespace alphatrail::core {
 //   newey_west  Newey & West (1987), Bartlett weights 1 - l/(L+1), optionally times T/(T-k)
 enum class ErrorKind { classic, hc0, hc1, hc2, hc3, newey_west };
 
-// Returns the name used in options, output and the ledger: "classic", "hc0" .. "hc3",
-// "newey-west".
-const char* error_kind_name(ErrorKind kind);
-// Parses an error kind name (as error_kind_name writes it); nullopt when unknown.
-std::optional<ErrorKind> parse_error_kind(std::string_view name);
+// The names used in options, output and the ledger.
+inline constexpr auto kErrorKinds = vocabulary<Word<ErrorKind>>({
+    {ErrorKind::classic, "classic"},
+    {ErrorKind::hc0, "hc0"},
+    {ErrorKind::hc1, "hc1"},
+    {ErrorKind::hc2, "hc2"},
+    {ErrorKind::hc3, "hc3"},
+    {ErrorKind::newey_west, "newey-west"},
+});
+
+// Returns the name of an error kind: "classic", "hc0" .. "hc3", "newey-west".
+inline const char* error_kind_name(ErrorKind kind) {
+  return kErrorKinds.name(kind);
+}
 
 struct CovarianceOptions {
   ErrorKind kind = ErrorKind::newey_west;

@@ -21,54 +21,6 @@
 
 namespace alphatrail::core {
 
-const char* series_kind_name(SeriesKind kind) {
-  switch (kind) {
-    case SeriesKind::strategy: return "strategy";
-    case SeriesKind::benchmark: return "benchmark";
-    case SeriesKind::rate: return "rate";
-    case SeriesKind::factor: return "factor";
-  }
-  return "unknown";
-}
-
-std::optional<SeriesKind> parse_series_kind(std::string_view name) {
-  if (name == "strategy") return SeriesKind::strategy;
-  if (name == "benchmark") return SeriesKind::benchmark;
-  if (name == "rate") return SeriesKind::rate;
-  if (name == "factor") return SeriesKind::factor;
-  return std::nullopt;
-}
-
-const char* value_unit_name(ValueUnit unit) {
-  switch (unit) {
-    case ValueUnit::decimal: return "decimal";
-    case ValueUnit::percent: return "percent";
-    case ValueUnit::levels: return "levels";
-  }
-  return "unknown";
-}
-
-std::optional<ValueUnit> parse_value_unit(std::string_view name) {
-  if (name == "decimal") return ValueUnit::decimal;
-  if (name == "percent") return ValueUnit::percent;
-  if (name == "levels") return ValueUnit::levels;
-  return std::nullopt;
-}
-
-const char* rate_quote_name(RateQuote quote) {
-  switch (quote) {
-    case RateQuote::yield: return "yield";
-    case RateQuote::discount: return "discount";
-  }
-  return "unknown";
-}
-
-std::optional<RateQuote> parse_rate_quote(std::string_view name) {
-  if (name == "yield") return RateQuote::yield;
-  if (name == "discount") return RateQuote::discount;
-  return std::nullopt;
-}
-
 ValueUnit default_unit(SeriesKind kind) {
   return kind == SeriesKind::rate ? ValueUnit::percent : ValueUnit::decimal;
 }
@@ -376,7 +328,7 @@ double convert(const Layout& layout, double v, std::string_view text, long line,
       throw InputError(
           layout.file, line, column,
           fmt::format("rate {} is outside the plausible range {} to {} ({})", trim(text),
-                      layout.rate_low, layout.rate_high, percent ? "percent" : "decimal"),
+                      layout.rate_low, layout.rate_high, value_unit_name(layout.unit)),
           percent ? "check the value; if the file states decimals (0.05 for 5%), pass --decimal"
                   : "check the value; if the file states percent (5 for 5%), leave out --decimal");
     }

@@ -25,6 +25,7 @@
 #include <vector>
 
 #include "core/dates.h"
+#include "core/vocabulary.h"
 
 namespace alphatrail::core {
 
@@ -34,26 +35,50 @@ enum class ValueUnit { decimal, percent, levels };
 // How a rate file quotes its yields (rates only).
 enum class RateQuote { yield, discount };
 
-// Returns the name used in options and the ledger: "strategy", "benchmark", "rate", "factor".
+// The names used in options and the ledger, in the order `ingest --help` lists them.
+inline constexpr auto kSeriesKinds = vocabulary<Word<SeriesKind>>({
+    {SeriesKind::strategy, "strategy"},
+    {SeriesKind::benchmark, "benchmark"},
+    {SeriesKind::rate, "rate"},
+    {SeriesKind::factor, "factor"},
+});
+inline constexpr auto kValueUnits = vocabulary<Word<ValueUnit>>({
+    {ValueUnit::decimal, "decimal"},
+    {ValueUnit::percent, "percent"},
+    {ValueUnit::levels, "levels"},
+});
+inline constexpr auto kRateQuotes = vocabulary<Word<RateQuote>>({
+    {RateQuote::yield, "yield"},
+    {RateQuote::discount, "discount"},
+});
+
+// Returns "strategy", "benchmark", "rate" or "factor".
 // Example: series_kind_name(SeriesKind::rate) == std::string("rate")
-const char* series_kind_name(SeriesKind kind);
+inline const char* series_kind_name(SeriesKind kind) {
+  return kSeriesKinds.name(kind);
+}
 // Parses a series kind name; nullopt when unknown.
 // Example: parse_series_kind("factor") == SeriesKind::factor
-std::optional<SeriesKind> parse_series_kind(std::string_view name);
+inline std::optional<SeriesKind> parse_series_kind(std::string_view name) {
+  return kSeriesKinds.parse(name);
+}
 
 // Returns "decimal", "percent" or "levels".
 // Example: value_unit_name(ValueUnit::levels) == std::string("levels")
-const char* value_unit_name(ValueUnit unit);
-// Parses a unit name; nullopt when unknown.
-// Example: parse_value_unit("percent") == ValueUnit::percent
-std::optional<ValueUnit> parse_value_unit(std::string_view name);
+inline const char* value_unit_name(ValueUnit unit) {
+  return kValueUnits.name(unit);
+}
 
 // Returns "yield" or "discount".
 // Example: rate_quote_name(RateQuote::discount) == std::string("discount")
-const char* rate_quote_name(RateQuote quote);
+inline const char* rate_quote_name(RateQuote quote) {
+  return kRateQuotes.name(quote);
+}
 // Parses a rate quote name; nullopt when unknown.
 // Example: parse_rate_quote("yield") == RateQuote::yield
-std::optional<RateQuote> parse_rate_quote(std::string_view name);
+inline std::optional<RateQuote> parse_rate_quote(std::string_view name) {
+  return kRateQuotes.parse(name);
+}
 
 // Returns the unit a kind is read in unless the user says otherwise: percent for rates,
 // decimal for the others.
@@ -72,7 +97,7 @@ struct SeriesFileOptions {
   SeriesKind kind = SeriesKind::strategy;
   std::string date_column;              // empty: the first column
   std::vector<std::string> columns;     // empty: every other column; the result keeps file order
-  ValueUnit unit = ValueUnit::decimal;  // rates: percent or decimal only (see default_unit)
+  ValueUnit unit = ValueUnit::decimal;  // rates: percent or decimal only
   RateQuote quote = RateQuote::yield;   // rates only; metadata, values are not converted
   // New name of the single series column (error when there are several); a storable name as
   // core/text.h defines it, used as it is.

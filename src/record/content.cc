@@ -251,23 +251,15 @@ std::string content_hash(const ContentMeta& meta, const std::vector<EncodedColum
   return h.hex();
 }
 
-const char* stored_unit_name(StoredUnit unit) {
-  switch (unit) {
-    case StoredUnit::decimal_return: return "decimal return";
-    case StoredUnit::percent_yield: return "percent yield";
-    case StoredUnit::decimal_yield: return "decimal yield";
-  }
-  return "unknown";
-}
-
 StoredUnit stored_unit_for(core::SeriesKind kind, core::ValueUnit unit) {
   if (kind != core::SeriesKind::rate) return StoredUnit::decimal_return;
   return unit == core::ValueUnit::percent ? StoredUnit::percent_yield : StoredUnit::decimal_yield;
 }
 
 core::RateUnit stored_rate_unit(const std::string& series, std::string_view unit) {
-  if (unit == stored_unit_name(StoredUnit::percent_yield)) return core::RateUnit::percent;
-  if (unit == stored_unit_name(StoredUnit::decimal_yield)) return core::RateUnit::decimal;
+  const auto stored = kStoredUnits.parse(unit);
+  if (stored == StoredUnit::percent_yield) return core::RateUnit::percent;
+  if (stored == StoredUnit::decimal_yield) return core::RateUnit::decimal;
   throw Error(Failure::corruption,
               fmt::format("rate curve {} is stored with unit \"{}\", which is not a yield unit; "
                           "the ledger was edited outside alphatrail (`alphatrail verify` checks "
@@ -278,7 +270,7 @@ core::RateUnit stored_rate_unit(const std::string& series, std::string_view unit
 core::RateQuote stored_rate_quote(const std::string& series,
                                   const std::optional<std::string>& quote) {
   if (!quote) return core::RateQuote::yield;
-  if (const auto q = core::parse_rate_quote(*quote)) return *q;
+  if (const auto q = core::kRateQuotes.parse(*quote)) return *q;
   throw Error(Failure::corruption,
               fmt::format("rate curve {} is stored with quote \"{}\", which is neither yield "
                           "nor discount; the ledger was edited outside alphatrail (`alphatrail "

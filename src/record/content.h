@@ -16,6 +16,7 @@
 #include "core/dates.h"
 #include "core/rates.h"
 #include "core/series_file.h"
+#include "core/vocabulary.h"
 
 namespace alphatrail::record {
 
@@ -33,8 +34,17 @@ struct ContentMeta {
 // decimals, rate curves as the yields the file gave, in percent or decimal.
 enum class StoredUnit { decimal_return, percent_yield, decimal_yield };
 
+// The stored spellings.
+inline constexpr auto kStoredUnits = core::vocabulary<core::Word<StoredUnit>>({
+    {StoredUnit::decimal_return, "decimal return"},
+    {StoredUnit::percent_yield, "percent yield"},
+    {StoredUnit::decimal_yield, "decimal yield"},
+});
+
 // Returns the stored spelling: "decimal return", "percent yield" or "decimal yield".
-const char* stored_unit_name(StoredUnit unit);
+inline const char* stored_unit_name(StoredUnit unit) {
+  return kStoredUnits.name(unit);
+}
 
 // Returns the stored unit of values of a kind read in a unit (rates: percent or decimal).
 // Example: stored_unit_for(SeriesKind::rate, ValueUnit::percent) == StoredUnit::percent_yield

@@ -23,31 +23,11 @@ constexpr const char* kReturns = "simple returns, compounded within a period";
 constexpr const char* kSingleIndex = "single-index";
 constexpr const char* kMultiFactor = "multi-factor";
 
-template <typename E, std::size_t N>
-std::vector<std::string> names_of(const E (&values)[N], const char* (*name)(E)) {
-  std::vector<std::string> out;
-  for (E v : values) out.push_back(name(v));
-  return out;
-}
-
-constexpr core::Frequency kFrequencies[] = {core::Frequency::daily, core::Frequency::weekly,
-                                            core::Frequency::monthly, core::Frequency::quarterly};
-constexpr FrequencyRule kFrequencyRules[] = {FrequencyRule::lowest_among_inputs,
-                                             FrequencyRule::given};
-constexpr core::ErrorKind kErrorKinds[] = {core::ErrorKind::classic, core::ErrorKind::hc0,
-                                           core::ErrorKind::hc1,     core::ErrorKind::hc2,
-                                           core::ErrorKind::hc3,     core::ErrorKind::newey_west};
-constexpr core::RateBasis kRateBases[] = {core::RateBasis::compound, core::RateBasis::simple,
-                                          core::RateBasis::act360};
-constexpr core::RateTiming kRateTimings[] = {core::RateTiming::start, core::RateTiming::end};
-constexpr TenorRule kTenorRules[] = {TenorRule::given, TenorRule::closest_to_period_length};
-constexpr core::Annualize kAnnualizes[] = {core::Annualize::compound, core::Annualize::arithmetic};
-
-// Reads a field that holds one of the names of an enum.
-template <typename E, std::size_t N>
-E read_enum(const StoredJson& s, const nlohmann::ordered_json& root, const char* key,
-            const E (&values)[N], const char* (*name)(E)) {
-  return values[s.one_of(s.member(root, "", key), key, names_of(values, name))];
+// Reads a field that holds one of the names of a vocabulary.
+template <typename Row, std::size_t N>
+auto read_enum(const StoredJson& s, const nlohmann::ordered_json& root, const char* key,
+               const core::Vocabulary<Row, N>& vocabulary) {
+  return vocabulary.rows()[s.one_of(s.member(root, "", key), key, vocabulary.names())].value;
 }
 
 // Reads a date field: null or "YYYY-MM-DD".
@@ -72,14 +52,6 @@ bool before_rolling(std::string_view engine_version) {
 }
 
 }  // namespace
-
-const char* frequency_rule_name(FrequencyRule r) {
-  return r == FrequencyRule::given ? "given" : "lowest among the inputs";
-}
-
-const char* tenor_rule_name(TenorRule r) {
-  return r == TenorRule::given ? "given" : "closest to the period length";
-}
 
 std::string parameters_text(const RunParameters& p) {
   nlohmann::json factors = nlohmann::json::array();
@@ -127,14 +99,14 @@ RunParameters read_parameters(std::int64_t run_id, std::string_view engine_versi
   const bool multi_factor =
       s.one_of(s.member(root, "", "model"), "model", {kSingleIndex, kMultiFactor}) == 1;
 
-  p.frequency = read_enum(s, root, "frequency", kFrequencies, core::frequency_name);
-  p.frequency_rule = read_enum(s, root, "frequency_rule", kFrequencyRules, frequency_rule_name);
+  p.frequency = read_enum(s, root, "frequency", core::kFrequencies);
+  p.frequency_rule = read_enum(s, root, "frequency_rule", kFrequencyRules);
   p.from = read_date(s, root, "from");
   p.to = read_date(s, root, "to");
   if (p.from && p.to && *p.to < *p.from)
     s.fail("to", fmt::format("holds \"{}\", before from (\"{}\")", core::format_date(*p.to),
                              core::format_date(*p.from)));
-  p.errors = read_enum(s, root, "errors", kErrorKinds, core::error_kind_name);
+  p.errors = read_enum(s, root, "errors", core::kErrorKinds);
   const auto& lags = s.member(root, "", "lags");
   if (lags.is_string())
     s.one_of(lags, "lags", {"auto"});
@@ -156,12 +128,12 @@ RunParameters read_parameters(std::int64_t run_id, std::string_view engine_versi
   if (!(p.confidence > 0 && p.confidence < 1))
     s.fail("confidence",
            fmt::format("holds {}, out of range (between 0 and 1)", root["confidence"].dump()));
-  p.rate_basis = read_enum(s, root, "rate_basis", kRateBases, core::rate_basis_name);
-  p.rate_timing = read_enum(s, root, "rate_timing", kRateTimings, core::rate_timing_name);
+  p.rate_basis = read_enum(s, root, "rate_basis", core::kRateBases);
+  p.rate_timing = read_enum(s, root, "rate_timing", core::kRateTimings);
   p.rate_tenor = s.text(s.member(root, "", "rate_tenor"), "rate_tenor");
   if (p.rate_tenor.empty()) s.fail("rate_tenor", "holds \"\", not a tenor");
-  p.tenor_rule = read_enum(s, root, "tenor_rule", kTenorRules, tenor_rule_name);
-  p.annualize = read_enum(s, root, "annualize", kAnnualizes, core::annualize_name);
+  p.tenor_rule = read_enum(s, root, "tenor_rule", kTenorRules);
+  p.annualize = read_enum(s, root, "annualize", core::kAnnualizations);
 
   const auto& factors = s.array(s.member(root, "", "factors"), "factors");
   for (std::size_t i = 0; i < factors.size(); ++i) {

@@ -20,6 +20,7 @@
 #include "core/dates.h"
 #include "core/rates.h"
 #include "core/regression.h"
+#include "core/vocabulary.h"
 
 namespace alphatrail::record {
 
@@ -27,6 +28,17 @@ namespace alphatrail::record {
 enum class FrequencyRule { lowest_among_inputs, given };
 // How the rate tenor was decided.
 enum class TenorRule { closest_to_period_length, given };
+
+// The wire names, as the command line and the stored text spell them, in the order a stored
+// text's error message lists them.
+inline constexpr auto kFrequencyRules = core::vocabulary<core::Word<FrequencyRule>>({
+    {FrequencyRule::lowest_among_inputs, "lowest among the inputs"},
+    {FrequencyRule::given, "given"},
+});
+inline constexpr auto kTenorRules = core::vocabulary<core::Word<TenorRule>>({
+    {TenorRule::given, "given"},
+    {TenorRule::closest_to_period_length, "closest to the period length"},
+});
 
 // One factor set of a run and the columns used from it (never empty: all when none was named).
 struct FactorSet {
@@ -68,8 +80,12 @@ std::string parameters_text(const RunParameters& p);
 RunParameters read_parameters(std::int64_t run_id, std::string_view engine_version,
                               std::string_view text, nlohmann::ordered_json* document = nullptr);
 
-// The wire names, as the command line and the stored text spell them.
-const char* frequency_rule_name(FrequencyRule r);
-const char* tenor_rule_name(TenorRule r);
+// Returns the wire name of a rule.
+inline const char* frequency_rule_name(FrequencyRule r) {
+  return kFrequencyRules.name(r);
+}
+inline const char* tenor_rule_name(TenorRule r) {
+  return kTenorRules.name(r);
+}
 
 }  // namespace alphatrail::record

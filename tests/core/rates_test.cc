@@ -216,11 +216,11 @@ TEST(Rates, RejectsYieldsThatLookLikeTheWrongUnit) {
 
 TEST(Rates, NamesAndParsesConventions) {
   EXPECT_STREQ(rate_basis_name(RateBasis::act360), "act360");
-  EXPECT_EQ(parse_rate_basis("compound"), RateBasis::compound);
-  EXPECT_EQ(parse_rate_timing("end"), RateTiming::end);
+  EXPECT_EQ(kRateBases.parse("compound"), RateBasis::compound);
+  EXPECT_EQ(kRateTimings.parse("end"), RateTiming::end);
   EXPECT_EQ(parse_rate_quote("discount"), RateQuote::discount);
-  EXPECT_EQ(parse_rate_unit("decimal"), RateUnit::decimal);
-  EXPECT_FALSE(parse_rate_basis("360"));
+  EXPECT_EQ(kRateUnits.parse("decimal"), RateUnit::decimal);
+  EXPECT_FALSE(kRateBases.parse("360"));
   EXPECT_EQ(default_max_age_days(Frequency::monthly), 62);
 }
 

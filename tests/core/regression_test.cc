@@ -433,10 +433,10 @@ TEST(Regression, IntervalsUseStudentT) {
 TEST(Regression, NamesErrorKinds) {
   for (ErrorKind kind : {ErrorKind::classic, ErrorKind::hc0, ErrorKind::hc1, ErrorKind::hc2,
                          ErrorKind::hc3, ErrorKind::newey_west}) {
-    EXPECT_EQ(parse_error_kind(error_kind_name(kind)), kind);
+    EXPECT_EQ(kErrorKinds.parse(error_kind_name(kind)), kind);
   }
   EXPECT_STREQ(error_kind_name(ErrorKind::newey_west), "newey-west");
-  EXPECT_FALSE(parse_error_kind("hac").has_value());
+  EXPECT_FALSE(kErrorKinds.parse("hac").has_value());
 }
 
 }  // namespace

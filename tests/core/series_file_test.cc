@@ -80,7 +80,7 @@ TEST(SeriesFileNames, RoundTrip) {
        {SeriesKind::strategy, SeriesKind::benchmark, SeriesKind::rate, SeriesKind::factor})
     EXPECT_EQ(parse_series_kind(series_kind_name(kind)), kind);
   for (auto unit : {ValueUnit::decimal, ValueUnit::percent, ValueUnit::levels})
-    EXPECT_EQ(parse_value_unit(value_unit_name(unit)), unit);
+    EXPECT_EQ(kValueUnits.parse(value_unit_name(unit)), unit);
   for (auto quote : {RateQuote::yield, RateQuote::discount})
     EXPECT_EQ(parse_rate_quote(rate_quote_name(quote)), quote);
   EXPECT_EQ(parse_series_kind("index"), std::nullopt);
