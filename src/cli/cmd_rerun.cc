@@ -9,6 +9,7 @@
 #include "cli/commands.h"
 #include "cli/output.h"
 #include "cli/print_runs.h"
+#include "cli/render.h"
 #include "core/error.h"
 #include "core/number_text.h"
 
@@ -46,10 +47,11 @@ using core::fixed;
 
 void print_reruns(std::ostream& out, const std::vector<app::RerunOutcome>& outcomes,
                   Format format) {
-  Table table;
+  View view;
+  Table& table = view.table;
   table.header = {"run",     "new run", "strategy", "alpha a year", "alpha t",
                   "alpha p", "beta",    "R2",       "conclusion"};
-  auto array = nlohmann::ordered_json::array();
+  view.json = nlohmann::ordered_json::array();
   for (const auto& outcome : outcomes) {
     const record::RunRow& before = outcome.before;
     const record::RunRow& after = outcome.after;
@@ -65,31 +67,27 @@ void print_reruns(std::ostream& out, const std::vector<app::RerunOutcome>& outco
                           pair(fixed(before.alpha_p, 4), fixed(after.alpha_p, 4)),
                           pair(fixed(before.beta, 3), fixed(after.beta, 3)),
                           pair(fixed(before.r_squared, 3), fixed(after.r_squared, 3)), conclusion});
-    array.push_back({{"run_id", before.run_id},
-                     {"new_run_id", after.run_id},
-                     {"strategy", after.strategy},
-                     {"before",
-                      {{"alpha_annualized", json_number(before.alpha_annualized)},
-                       {"alpha_t", json_number(before.alpha_t)},
-                       {"alpha_p", json_number(before.alpha_p)},
-                       {"beta", json_number(before.beta)},
-                       {"r_squared", json_number(before.r_squared)}}},
-                     {"after",
-                      {{"alpha_annualized", json_number(after.alpha_annualized)},
-                       {"alpha_t", json_number(after.alpha_t)},
-                       {"alpha_p", json_number(after.alpha_p)},
-                       {"beta", json_number(after.beta)},
-                       {"r_squared", json_number(after.r_squared)}}},
-                     {"conclusion", conclusion}});
+    view.json.push_back({{"run_id", before.run_id},
+                         {"new_run_id", after.run_id},
+                         {"strategy", after.strategy},
+                         {"before",
+                          {{"alpha_annualized", json_number(before.alpha_annualized)},
+                           {"alpha_t", json_number(before.alpha_t)},
+                           {"alpha_p", json_number(before.alpha_p)},
+                           {"beta", json_number(before.beta)},
+                           {"r_squared", json_number(before.r_squared)}}},
+                         {"after",
+                          {{"alpha_annualized", json_number(after.alpha_annualized)},
+                           {"alpha_t", json_number(after.alpha_t)},
+                           {"alpha_p", json_number(after.alpha_p)},
+                           {"beta", json_number(after.beta)},
+                           {"r_squared", json_number(after.r_squared)}}},
+                         {"conclusion", conclusion}});
   }
-  switch (format) {
-    case Format::json: print_json(out, array); break;
-    case Format::csv: print_csv(out, table); break;
-    case Format::table:
-      print_table(out, table);
-      out << "\nalpha a year as each run annualizes it; significance at each run's own "
-             "confidence level.\n";
-  }
+  view.footnote =
+      "alpha a year as each run annualizes it; significance at each run's own confidence "
+      "level.\n";
+  render(out, view, format);
 }
 
 namespace {

@@ -7,6 +7,7 @@
 #include "cli/commands.h"
 #include "cli/output.h"
 #include "cli/print_runs.h"
+#include "cli/render.h"
 #include "core/evaluation.h"
 #include "core/number_text.h"
 #include "store/ledger.h"
@@ -23,38 +24,32 @@ struct RunsOptions {
 
 using core::fixed;
 
-void run_runs(const RunsOptions& o, const GlobalOptions& global) {
-  auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
-                                          store::OpenMode::read_only, std::cerr);
-  store::Ledger& ledger = *ledger_opened;
-  const auto runs = ledger.list_runs({o.strategy, o.study});
-  if (o.format == Format::json) {
-    auto array = nlohmann::ordered_json::array();
-    for (const auto& r : runs)
-      array.push_back(
-          {{"run_id", r.run_id},
-           {"created_at", r.created_at},
-           {"strategy", r.strategy},
-           {"benchmark", r.benchmark},
-           {"study", r.study.empty() ? nlohmann::ordered_json() : nlohmann::ordered_json(r.study)},
-           {"inputs_hash", r.inputs_hash},
-           {"frequency", r.frequency},
-           {"observations", r.observations},
-           {"alpha", json_number(r.alpha)},
-           {"alpha_annualized", json_number(r.alpha_annualized)},
-           {"alpha_t", json_number(r.alpha_t)},
-           {"alpha_p", json_number(r.alpha_p)},
-           {"beta", json_number(r.beta)},
-           {"r_squared", json_number(r.r_squared)},
-           {"errors", r.errors},
-           {"lags", r.lags},
-           {"stale", r.stale},
-           {"revises_run_id", r.revises_run_id ? nlohmann::ordered_json(*r.revises_run_id)
-                                               : nlohmann::ordered_json()}});
-    print_json(std::cout, array);
-    return;
-  }
-  Table table;
+// The runs listing in every format; CSV keeps each inputs hash in full, the table its start.
+View runs_view(const std::vector<store::RunSummary>& runs, bool full_hashes) {
+  View view;
+  view.json = nlohmann::ordered_json::array();
+  for (const auto& r : runs)
+    view.json.push_back(
+        {{"run_id", r.run_id},
+         {"created_at", r.created_at},
+         {"strategy", r.strategy},
+         {"benchmark", r.benchmark},
+         {"study", r.study.empty() ? nlohmann::ordered_json() : nlohmann::ordered_json(r.study)},
+         {"inputs_hash", r.inputs_hash},
+         {"frequency", r.frequency},
+         {"observations", r.observations},
+         {"alpha", json_number(r.alpha)},
+         {"alpha_annualized", json_number(r.alpha_annualized)},
+         {"alpha_t", json_number(r.alpha_t)},
+         {"alpha_p", json_number(r.alpha_p)},
+         {"beta", json_number(r.beta)},
+         {"r_squared", json_number(r.r_squared)},
+         {"errors", r.errors},
+         {"lags", r.lags},
+         {"stale", r.stale},
+         {"revises_run_id", r.revises_run_id ? nlohmann::ordered_json(*r.revises_run_id)
+                                             : nlohmann::ordered_json()}});
+  Table& table = view.table;
   table.header = {"run",          "recorded (UTC)", "strategy",   "study", "periods",
                   "alpha a year", "alpha t",        "p",          "beta",  "R2",
                   "errors",       "stale",          "inputs hash"};
@@ -67,19 +62,19 @@ void run_runs(const RunsOptions& o, const GlobalOptions& global) {
          std::isnan(r.alpha_annualized) ? "n/a" : fmt::format("{:+.2f}%", 100 * r.alpha_annualized),
          fixed(r.alpha_t, 2), fixed(r.alpha_p, 4), fixed(r.beta, 3), fixed(r.r_squared, 3),
          r.errors == "newey-west" ? fmt::format("newey-west ({})", r.lags) : r.errors,
-         r.stale ? "stale" : "",
-         o.format == Format::csv ? r.inputs_hash : r.inputs_hash.substr(0, 12)});
-  if (o.format == Format::csv) {
-    print_csv(std::cout, table);
-    return;
-  }
-  if (runs.empty()) {
-    std::cout << "no runs yet; record some with `alphatrail evaluate`\n";
-    return;
-  }
-  print_table(std::cout, table);
-  std::cout << "\nalpha a year: annualized as each run's parameters say; stale: an input has a "
-               "newer version than the run used.\n";
+         r.stale ? "stale" : "", full_hashes ? r.inputs_hash : r.inputs_hash.substr(0, 12)});
+  view.when_empty = "no runs yet; record some with `alphatrail evaluate`\n";
+  view.footnote =
+      "alpha a year: annualized as each run's parameters say; stale: an input has a newer "
+      "version than the run used.\n";
+  return view;
+}
+
+void run_runs(const RunsOptions& o, const GlobalOptions& global) {
+  auto ledger = store::open_ledger(store::resolve_ledger_path(global.ledger),
+                                   store::OpenMode::read_only, std::cerr);
+  const auto runs = ledger->list_runs({o.strategy, o.study});
+  render(std::cout, runs_view(runs, o.format == Format::csv), o.format);
 }
 
 }  // namespace

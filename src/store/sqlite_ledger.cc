@@ -299,11 +299,10 @@ void SqliteLedger::read_transaction(const std::function<void()>& work) {
 }
 
 void SqliteLedger::erase_and_recreate() {
-  SqliteLedger& ledger = *this;
-  if (!ledger.in_transaction())
+  if (!in_transaction())
     throw std::logic_error("erase_and_recreate must run inside a write transaction");
-  SQLite::Database& db = ledger.db();
-  ledger.forget_statements();  // they refer to the tables about to go
+  SQLite::Database& db = *db_;
+  forget_statements();  // they refer to the tables about to go
   // Triggers go with their tables, indexes too; dropping the tables newest first keeps every
   // foreign key pointing at a table that still exists, and DROP TABLE fires no trigger.
   std::vector<std::pair<std::string, std::string>> objects;
@@ -323,9 +322,7 @@ void SqliteLedger::erase_and_recreate() {
 
 void SqliteLedger::add_mark(const std::string& mark, const std::string& detail,
                             const std::string& marked_at) {
-  SqliteLedger& ledger = *this;
-  SQLite::Statement q(ledger.db(),
-                      "INSERT INTO ledger_marks (mark, detail, marked_at) VALUES (?, ?, ?)");
+  SQLite::Statement q(*db_, "INSERT INTO ledger_marks (mark, detail, marked_at) VALUES (?, ?, ?)");
   q.bind(1, mark);
   q.bind(2, detail);
   q.bind(3, marked_at);
@@ -333,8 +330,7 @@ void SqliteLedger::add_mark(const std::string& mark, const std::string& detail,
 }
 
 bool SqliteLedger::has_mark(const std::string& mark) {
-  SqliteLedger& ledger = *this;
-  SQLite::Database& db = ledger.db();
+  SQLite::Database& db = *db_;
   if (!db.tableExists("ledger_marks")) return false;  // older than schema version 7
   SQLite::Statement q(db, "SELECT 1 FROM ledger_marks WHERE mark = ?");
   q.bind(1, mark);

@@ -119,12 +119,10 @@ void insert_row(SqliteLedger& ledger, const record::RunRow& row) {
 std::vector<std::int64_t> SqliteLedger::store_runs(
     const std::vector<const record::NewRun*>& runs,
     const std::function<void(std::size_t)>& on_stored) {
-  SqliteLedger& ledger = *this;
   std::int64_t last_id = 0;
   std::string previous = record::kGenesisHash;
   {
-    auto head =
-        ledger.statement("SELECT run_id, record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
+    auto head = statement("SELECT run_id, record_hash FROM runs ORDER BY run_id DESC LIMIT 1");
     if (head->executeStep()) {
       last_id = head->getColumn(0).getInt64();
       previous = head->getColumn(1).getString();
@@ -180,7 +178,7 @@ std::vector<std::int64_t> SqliteLedger::store_runs(
       Draft& d = drafts[i];
       d.row.previous_record_hash = previous;
       d.row.record_hash = record::chain_hash(previous, d.before + previous + d.after);
-      insert_row(ledger, d.row);
+      insert_row(*this, d.row);
       previous = d.row.record_hash;
       ids.push_back(d.row.run_id);
       if (on_stored) on_stored(ids.size());
@@ -198,8 +196,7 @@ std::vector<std::int64_t> SqliteLedger::store_runs(
 }
 
 std::optional<record::RunRow> SqliteLedger::read_run_row(std::int64_t run_id) {
-  SqliteLedger& ledger = *this;
-  auto& db = ledger.db();
+  SQLite::Database& db = *db_;
   SQLite::Statement q(
       db,
       "SELECT run_id, created_at, engine_version, strategy, benchmark, rate, factors, study, "
@@ -269,8 +266,7 @@ std::optional<record::RunRow> SqliteLedger::read_run_row(std::int64_t run_id) {
 }
 
 std::vector<record::RunInput> SqliteLedger::read_run_inputs(std::int64_t run_id) {
-  SqliteLedger& ledger = *this;
-  SQLite::Statement q(ledger.db(),
+  SQLite::Statement q(*db_,
                       "SELECT i.role, i.position, i.version_id, s.name, v.version, "
                       "v.content_hash, i.columns FROM run_inputs i JOIN series_versions v ON "
                       "v.version_id = i.version_id JOIN series s ON s.series_id = v.series_id "
@@ -300,27 +296,24 @@ std::vector<record::RunInput> SqliteLedger::read_run_inputs(std::int64_t run_id)
 }
 
 int SqliteLedger::count_study_runs(const std::string& study) {
-  SqliteLedger& ledger = *this;
   if (study.empty()) return 0;
-  auto q = ledger.statement("SELECT count(*) FROM runs WHERE study = ?");
+  auto q = statement("SELECT count(*) FROM runs WHERE study = ?");
   q->bind(1, study);
   q->executeStep();
   return q->getColumn(0).getInt();
 }
 
 int SqliteLedger::count_strategy_runs(const std::string& strategy) {
-  SqliteLedger& ledger = *this;
-  auto q = ledger.statement("SELECT count(*) FROM runs WHERE strategy = ?");
+  auto q = statement("SELECT count(*) FROM runs WHERE strategy = ?");
   q->bind(1, strategy);
   q->executeStep();
   return q->getColumn(0).getInt();
 }
 
 ordered_json SqliteLedger::load_run(std::int64_t run_id) {
-  SqliteLedger& ledger = *this;
-  const record::RunRow row = ledger.existing_run_row(run_id);
+  const record::RunRow row = existing_run_row(run_id);
   ordered_json inputs = ordered_json::array();
-  SQLite::Statement q(ledger.db(),
+  SQLite::Statement q(*db_,
                       "SELECT i.role, i.position, s.name, v.version, v.content_hash, i.columns, "
                       "v.source_file, coalesce(v.note, ''), (SELECT max(version) FROM "
                       "series_versions w WHERE w.series_id = v.series_id) FROM run_inputs i "
@@ -364,9 +357,8 @@ ordered_json SqliteLedger::load_run(std::int64_t run_id) {
 }
 
 std::vector<RunSummary> SqliteLedger::list_runs(const RunFilter& filter) {
-  SqliteLedger& ledger = *this;
   SQLite::Statement q(
-      ledger.db(),
+      *db_,
       // run_summary holds the one definition of stale; CASE evaluates it only when asked.
       "SELECT s.run_id, s.created_at, s.strategy, s.benchmark, coalesce(s.study, ''), "
       "s.inputs_hash, s.frequency, s.observations, s.alpha, s.alpha_annualized, s.alpha_t, "
@@ -406,9 +398,8 @@ std::vector<RunSummary> SqliteLedger::list_runs(const RunFilter& filter) {
 }
 
 std::vector<std::int64_t> SqliteLedger::unrevised_stale_runs() {
-  SqliteLedger& ledger = *this;
   std::vector<std::int64_t> ids;
-  SQLite::Statement q(ledger.db(),
+  SQLite::Statement q(*db_,
                       "SELECT run_id FROM run_summary s WHERE stale AND NOT EXISTS (SELECT 1 "
                       "FROM runs r WHERE r.revises_run_id = s.run_id) ORDER BY run_id");
   while (q.executeStep()) ids.push_back(q.getColumn(0).getInt64());
@@ -416,9 +407,8 @@ std::vector<std::int64_t> SqliteLedger::unrevised_stale_runs() {
 }
 
 std::vector<NewerInput> SqliteLedger::newer_input_versions(std::int64_t run_id) {
-  SqliteLedger& ledger = *this;
   std::vector<NewerInput> out;
-  SQLite::Statement q(ledger.db(),
+  SQLite::Statement q(*db_,
                       "SELECT series, version, latest_version FROM run_input_versions WHERE "
                       "run_id = ? AND latest_version > version");
   q.bind(1, run_id);

@@ -186,8 +186,7 @@ std::string current_user() {
 
 std::vector<StoreOutcome> SqliteLedger::store_versions(std::vector<NewVersion> versions,
                                                        const SourceInfo& source) {
-  SqliteLedger& ledger = *this;
-  auto& db = ledger.db();
+  SQLite::Database& db = *db_;
   PreparedPipeline prepared(versions);
   const std::string now = utc_now();
   const std::string user = current_user();
@@ -299,9 +298,8 @@ std::vector<StoreOutcome> SqliteLedger::store_versions(std::vector<NewVersion> v
 }
 
 std::vector<VersionInfo> SqliteLedger::list_latest_versions() {
-  SqliteLedger& ledger = *this;
   SQLite::Statement q(
-      ledger.db(),
+      *db_,
       fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = s.series_id "
                   "WHERE v.version = (SELECT max(version) FROM series_versions w WHERE "
                   "w.series_id = s.series_id) ORDER BY CASE s.kind WHEN 'strategy' THEN 1 WHEN "
@@ -313,8 +311,7 @@ std::vector<VersionInfo> SqliteLedger::list_latest_versions() {
 }
 
 std::vector<VersionInfo> SqliteLedger::version_history(const std::string& name) {
-  SqliteLedger& ledger = *this;
-  SQLite::Statement q(ledger.db(),
+  SQLite::Statement q(*db_,
                       fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id "
                                   "= s.series_id WHERE s.name = ? ORDER BY v.version",
                                   kVersionColumns));
@@ -324,7 +321,7 @@ std::vector<VersionInfo> SqliteLedger::version_history(const std::string& name) 
   if (out.empty())
     throw Error(Failure::not_found,
                 fmt::format("no series named '{}' in {}; `alphatrail series` lists them", name,
-                            ledger.path().string()));
+                            path().string()));
   return out;
 }
 
@@ -403,12 +400,11 @@ VersionInfo find_version(SqliteLedger& ledger, const VersionRequest& request) {
 }  // namespace
 
 std::vector<VersionInfo> SqliteLedger::find_versions(const std::vector<VersionRequest>& requests) {
-  SqliteLedger& ledger = *this;
   // Many latest versions come from one pass over the ledger's latest versions rather than one
   // query each; a pinned version, or a name that is not there, takes the query of its own.
   std::unordered_map<std::string, VersionInfo> latest;
   if (requests.size() >= 16) {
-    auto q = ledger.statement(
+    auto q = statement(
         fmt::format("SELECT {} FROM series s JOIN series_versions v ON v.series_id = s.series_id "
                     "WHERE v.version = (SELECT max(w.version) FROM series_versions w WHERE "
                     "w.series_id = s.series_id)",
@@ -422,13 +418,12 @@ std::vector<VersionInfo> SqliteLedger::find_versions(const std::vector<VersionRe
   infos.reserve(requests.size());
   for (const auto& request : requests) {
     const auto it = request.version ? latest.end() : latest.find(request.name);
-    infos.push_back(it != latest.end() ? it->second : find_version(ledger, request));
+    infos.push_back(it != latest.end() ? it->second : find_version(*this, request));
   }
   return infos;
 }
 
 std::vector<LoadedVersion> SqliteLedger::load_observations(std::vector<VersionInfo> versions) {
-  SqliteLedger& ledger = *this;
   // Reading is SQLite's and serial. A column with a packed copy is unpacked by the reader as
   // it reads (a copy of the bytes, cheaper than handing them over); a column stored before
   // the packed copies existed is decoded from its JSON text by the other workers while the
@@ -466,14 +461,14 @@ std::vector<LoadedVersion> SqliteLedger::load_observations(std::vector<VersionIn
     }
     arrived.notify_all();
   };
-  PackedReader packed(ledger.db());
+  PackedReader packed(*db_);
   const auto read_all = [&] {
     for (std::size_t r = 0; r < versions.size(); ++r) {
       loaded[r].info = std::move(versions[r]);
       // The columns come from an index that holds their names (migration 0006); the row itself,
       // with its JSON, is only read when there is no packed copy. The packed blobs' lengths
       // come from their record header, their bytes from `packed`.
-      auto cols = ledger.statement(
+      auto cols = statement(
           "SELECT c.column_name, p.column_id, length(p.days), length(p.numbers), CASE WHEN "
           "p.column_id IS NULL THEN c.values_json END FROM version_columns c INDEXED BY "
           "version_columns_in_order LEFT JOIN packed_columns p ON p.column_id = c.column_id "
@@ -515,8 +510,7 @@ std::vector<LoadedVersion> SqliteLedger::load_observations(std::vector<VersionIn
 }
 
 std::vector<std::string> SqliteLedger::series_names(core::SeriesKind kind) {
-  SqliteLedger& ledger = *this;
-  SQLite::Statement q(ledger.db(), "SELECT name FROM series WHERE kind = ? ORDER BY name");
+  SQLite::Statement q(*db_, "SELECT name FROM series WHERE kind = ? ORDER BY name");
   q.bind(1, core::series_kind_name(kind));
   std::vector<std::string> names;
   while (q.executeStep()) names.push_back(q.getColumn(0).getString());

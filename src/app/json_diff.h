@@ -1,11 +1,12 @@
-// Lists the differences between two JSON values as paths, for reproduce and compare.
+// The differences between two JSON values, leaf by leaf, named by path: what reproduce and
+// compare report. Pure; allocates only its result.
 #pragma once
 
 #include <nlohmann/json.hpp>
 #include <string>
 #include <vector>
 
-namespace alphatrail::cli {
+namespace alphatrail::app {
 
 struct JsonDifference {
   std::string path;  // e.g. "statistics.r_squared", "coefficients[0].std_error"
@@ -18,4 +19,4 @@ std::vector<JsonDifference> json_differences(const nlohmann::ordered_json& a,
                                              const nlohmann::ordered_json& b,
                                              const std::string& path = "");
 
-}  // namespace alphatrail::cli
+}  // namespace alphatrail::app

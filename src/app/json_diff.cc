@@ -1,8 +1,8 @@
-#include "cli/json_diff.h"
+#include "app/json_diff.h"
 
 #include <fmt/format.h>
 
-namespace alphatrail::cli {
+namespace alphatrail::app {
 
 std::vector<JsonDifference> json_differences(const nlohmann::ordered_json& a,
                                              const nlohmann::ordered_json& b,
@@ -34,4 +34,4 @@ std::vector<JsonDifference> json_differences(const nlohmann::ordered_json& a,
   return out;
 }
 
-}  // namespace alphatrail::cli
+}  // namespace alphatrail::app
