@@ -148,7 +148,7 @@ void run_demo(const DemoOptions& options, const GlobalOptions& global) {
     print_runs(std::cout, ledger, runs, Format::table);
 
     std::cout << fmt::format("\n$ alphatrail show {}\n\n", runs.front());
-    print_run_text(std::cout, ledger.load_run(runs.front()));
+    print_run_text(std::cout, ledger.load_run_record(runs.front()));
     // The vendor restates a month of the index: re-run what it touched and show what changed.
     std::cout << fmt::format("$ alphatrail ingest benchmark {} --name {} --levels --note \"{}\"\n",
                              revision.file, revision.name, revision.note);

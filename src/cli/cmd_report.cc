@@ -11,6 +11,7 @@
 #include "cli/commands.h"
 #include "cli/report.h"
 #include "core/error.h"
+#include "record/stored_result.h"
 #include "report/html.h"
 #include "report/reports.h"
 #include "store/ledger.h"
@@ -19,8 +20,6 @@
 namespace alphatrail::cli {
 
 namespace {
-
-using nlohmann::ordered_json;
 
 // Where a page goes: the ledger it must never overwrite, and whether --force was given.
 struct PageTarget {
@@ -102,10 +101,10 @@ void write_page(const std::filesystem::path& output, const std::string& html,
   }
 }
 
-std::vector<ordered_json> load_runs(store::Ledger& ledger, const store::RunFilter& filter) {
-  std::vector<ordered_json> runs;
+std::vector<record::ShownRun> load_runs(store::Ledger& ledger, const store::RunFilter& filter) {
+  std::vector<record::ShownRun> runs;
   for (const auto& summary : ledger.list_runs(filter))
-    runs.push_back(ledger.load_run(summary.run_id));
+    runs.push_back(ledger.load_run_record(summary.run_id));
   return runs;
 }
 
@@ -114,7 +113,7 @@ std::vector<ordered_json> load_runs(store::Ledger& ledger, const store::RunFilte
 void write_run_report(store::Ledger& ledger, std::int64_t run_id,
                       const std::filesystem::path& output, bool force) {
   report::RunReportInput in;
-  in.run = ledger.load_run(run_id);
+  in.run = ledger.load_run_record(run_id);
 
   // The charts need the sample period by period: recompute it from the run's own versions.
   app::EvaluateRequest request = app::request_from_run(ledger, run_id, true);
@@ -124,14 +123,13 @@ void write_run_report(store::Ledger& ledger, std::int64_t run_id,
   const std::string recomputed =
       record::inputs_hash(kEngineVersion, p.run.parameters_json, p.run.inputs);
   in.reproduction =
-      recomputed == in.run["inputs_hash"].get<std::string>()
+      recomputed == in.run.row.inputs_hash
           ? "recomputed from the run's own input versions and parameters; inputs hash identical"
           : fmt::format(
                 "recomputed from the run's own input versions by engine {} (the run was "
                 "recorded by {}): inputs hash {} differs, so the charts may differ "
                 "slightly from the recorded figures",
-                kEngineVersion, in.run["engine_version"].get<std::string>(),
-                recomputed.substr(0, 12));
+                kEngineVersion, in.run.row.engine_version, recomputed.substr(0, 12));
   const auto& r = p.result;
   for (const auto key : r.keys)
     in.data.periods.push_back(core::period_label(r.sample.frequency, key));
@@ -140,19 +138,18 @@ void write_run_report(store::Ledger& ledger, std::int64_t run_id,
   in.data.risk_free = r.risk_free;
   in.data.residuals.assign(r.fit.residuals.begin(), r.fit.residuals.end());
 
-  in.rolling = in.run.contains("rolling") ? in.run["rolling"] : ordered_json();
-  in.rolling_from_run = in.rolling.is_object();
+  in.rolling = in.run.result.rolling;
+  in.rolling_from_run = in.rolling.has_value();
   if (!in.rolling_from_run) {
     // Recorded without --rolling: compute the default window for the page (and say so).
     request.rolling = {app::RollingChoice::Mode::automatic, 0};
     try {
       in.rolling =
-          record::result_json(app::evaluate_request(ledger, request).front().result, {})["rolling"];
+          record::run_result(app::evaluate_request(ledger, request).front().result, {}).rolling;
     } catch (const Error&) {  // the sample is shorter than the window: the page says so
     }
   }
-  if (in.run["revises_run_id"].is_number())
-    in.revised = ledger.load_run(in.run["revises_run_id"].get<std::int64_t>());
+  if (in.run.row.revises_run_id) in.revised = ledger.load_run_record(*in.run.row.revises_run_id);
   in.made_by = made_by(ledger);
   write_page(output, report::run_report(in), {ledger.path(), force});
 }

@@ -10,6 +10,7 @@
 #include "cli/render.h"
 #include "core/evaluation.h"
 #include "core/number_text.h"
+#include "core/rolling.h"
 #include "store/ledger.h"
 
 namespace alphatrail::cli {
@@ -95,31 +96,35 @@ struct ShowOptions {
   Format format = Format::table;
 };
 
+// The text of a figure in CSV: shortest round trip, empty for one that could not be computed.
+std::string csv_figure(double v) {
+  return std::isnan(v) ? "" : fmt::format("{}", v);
+}
+
 // Prints one CSV row per rolling window end, with the columns of the run_windows view.
-void print_windows_csv(std::ostream& out, const nlohmann::ordered_json& run) {
-  static const std::vector<std::string> kFigures{"alpha",
-                                                 "alpha_std_error",
-                                                 "alpha_ci_low",
-                                                 "alpha_ci_high",
-                                                 "alpha_annualized",
-                                                 "alpha_annualized_ci_low",
-                                                 "alpha_annualized_ci_high",
-                                                 "beta",
-                                                 "beta_std_error",
-                                                 "beta_ci_low",
-                                                 "beta_ci_high"};
+void print_windows_csv(std::ostream& out, const record::ShownRun& run,
+                       const record::StoredRolling& rolling) {
   Table table;
   table.header = {"run_id", "window_end", "window_first", "observations", "lags"};
-  table.header.insert(table.header.end(), kFigures.begin(), kFigures.end());
-  const std::string run_id = std::to_string(run["run_id"].get<std::int64_t>());
-  for (const auto& w : run["rolling"]["windows"]) {
-    std::vector<std::string> row{run_id, w["end"].get<std::string>(), w["first"].get<std::string>(),
-                                 std::to_string(w["observations"].get<int>()),
-                                 std::to_string(w["lags"].get<int>())};
-    for (const auto& key : kFigures)
-      row.push_back(w[key].is_number() ? fmt::format("{}", w[key].get<double>()) : "");
+  for (const auto& figure : core::kWindowFigures) table.header.emplace_back(figure.name);
+  const std::string run_id = std::to_string(run.row.run_id);
+  for (const auto& w : rolling.windows) {
+    std::vector<std::string> row{run_id, w.end, w.first, std::to_string(w.observations),
+                                 std::to_string(w.lags)};
+    for (const auto& figure : core::kWindowFigures) row.push_back(csv_figure(w.*figure.member));
     table.rows.push_back(std::move(row));
   }
+  print_csv(out, table);
+}
+
+// Prints one CSV row per coefficient.
+void print_coefficients_csv(std::ostream& out, const record::ShownRun& run) {
+  Table table;
+  table.header = {"term", "estimate", "std_error", "t_stat", "p_value", "ci_low", "ci_high"};
+  for (const auto& c : run.result.coefficients)
+    table.rows.push_back({c.term, csv_figure(c.estimate), csv_figure(c.std_error),
+                          csv_figure(c.t_stat), csv_figure(c.p_value), csv_figure(c.ci_low),
+                          csv_figure(c.ci_high)});
   print_csv(out, table);
 }
 
@@ -127,26 +132,18 @@ void run_show(const ShowOptions& o, const GlobalOptions& global) {
   auto ledger_opened = store::open_ledger(store::resolve_ledger_path(global.ledger),
                                           store::OpenMode::read_only, std::cerr);
   store::Ledger& ledger = *ledger_opened;
-  const auto run = ledger.load_run(o.run_id);
+  // JSON shows the stored texts' keys as stored; the other formats read the typed run.
   switch (o.format) {
-    case Format::json: print_json(std::cout, run); break;
+    case Format::json: print_json(std::cout, ledger.load_run(o.run_id)); break;
     case Format::csv: {
-      if (run["rolling"].is_object()) {
-        print_windows_csv(std::cout, run);
-        break;
-      }
-      Table table;
-      table.header = {"term", "estimate", "std_error", "t_stat", "p_value", "ci_low", "ci_high"};
-      for (const auto& c : run["coefficients"]) {
-        std::vector<std::string> row{c["term"].get<std::string>()};
-        for (const char* key : {"estimate", "std_error", "t_stat", "p_value", "ci_low", "ci_high"})
-          row.push_back(c[key].is_number() ? fmt::format("{}", c[key].get<double>()) : "");
-        table.rows.push_back(row);
-      }
-      print_csv(std::cout, table);
+      const auto run = ledger.load_run_record(o.run_id);
+      if (run.result.rolling)
+        print_windows_csv(std::cout, run, *run.result.rolling);
+      else
+        print_coefficients_csv(std::cout, run);
       break;
     }
-    case Format::table: print_run_text(std::cout, run); break;
+    case Format::table: print_run_text(std::cout, ledger.load_run_record(o.run_id)); break;
   }
 }
 

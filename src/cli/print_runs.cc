@@ -10,13 +10,14 @@
 
 #include "core/evaluation.h"
 #include "core/number_text.h"
+#include "core/rates.h"
 #include "core/reading.h"
 #include "report/reports.h"
 #include "store/ledger.h"
 
 namespace alphatrail::cli {
 
-using nlohmann::ordered_json;
+using nlohmann::ordered_json;  // the run objects of `--format json`, keys as stored
 
 namespace {
 
@@ -41,37 +42,19 @@ app::Progress progress_bar(bool show) {
 
 namespace {
 
-double num(const ordered_json& j) {
-  return j.is_number() ? j.get<double>() : NAN;
-}
+using core::fixed;
 
-std::string fixed(const ordered_json& j, int digits) {
-  return core::fixed(num(j), digits);
-}
-
-std::string pct(const ordered_json& j, int digits = 2) {
-  return core::signed_percent(num(j), digits);
-}
-
-std::string p_text(const ordered_json& j) {
-  return core::p_value_text(num(j));
-}
-
-const char* per(const std::string& frequency) {
-  if (frequency == "daily") return "per day";
-  if (frequency == "weekly") return "per week";
-  if (frequency == "quarterly") return "per quarter";
-  return "per month";
+std::string pct(double v, int digits = 2) {
+  return core::signed_percent(v, digits);
 }
 
 // Prints the short rolling section of a run: how many windows, over which ends, and the range
 // of alpha a year and beta; the windows themselves are one `show --format csv` away.
-void print_rolling_text(std::ostream& out, const ordered_json& run) {
-  const auto& rolling = run["rolling"];
-  const std::string frequency = run["sample"]["frequency"];
-  const auto window = rolling["window"].get<int>();
-  const auto& windows = rolling["windows"];
-  const std::string noun = std::string(per(frequency)).substr(4);  // "per month" -> "month"
+void print_rolling_text(std::ostream& out, const record::ShownRun& run,
+                        const record::StoredRolling& rolling) {
+  const auto window = rolling.window;
+  const auto& windows = rolling.windows;
+  const std::string noun = core::period_noun(run.result.sample.frequency);
   if (windows.empty()) {
     out << fmt::format(
         "  rolling estimates      none: the sample is shorter than the window of {} {}s\n\n",
@@ -81,8 +64,8 @@ void print_rolling_text(std::ostream& out, const ordered_json& run) {
   double alpha_low = NAN, alpha_high = NAN, beta_low = NAN, beta_high = NAN;
   int missing = 0;
   for (const auto& w : windows) {
-    const double a = num(w["alpha_annualized"]);
-    const double b = num(w["beta"]);
+    const double a = w.alpha_annualized;
+    const double b = w.beta;
     if (std::isnan(a) || std::isnan(b)) {
       ++missing;
       continue;
@@ -92,101 +75,90 @@ void print_rolling_text(std::ostream& out, const ordered_json& run) {
     beta_low = std::isnan(beta_low) ? b : std::min(beta_low, b);
     beta_high = std::isnan(beta_high) ? b : std::max(beta_high, b);
   }
-  const std::string errors = rolling["errors"];
-  const int lags = windows.front()["lags"].get<int>();
+  const int lags = windows.front().lags;
   out << fmt::format("  rolling estimates      {} windows of {} {}s, ending {} to {}\n",
-                     windows.size(), window, noun, windows.front()["end"].get<std::string>(),
-                     windows.back()["end"].get<std::string>());
-  out << fmt::format("                         {} errors{}\n", errors,
-                     errors != "newey-west" ? ""
-                     : rolling["lag_rule"] == "auto"
-                         ? fmt::format(", {} lags in each window "
-                                       "(the automatic rule for {})",
-                                       lags, window)
-                         : fmt::format(", {} lags in each window", lags));
+                     windows.size(), window, noun, windows.front().end, windows.back().end);
+  out << fmt::format("                         {} errors{}\n",
+                     core::error_kind_name(rolling.errors),
+                     rolling.errors != core::ErrorKind::newey_west ? ""
+                     : rolling.auto_lags ? fmt::format(", {} lags in each window "
+                                                       "(the automatic rule for {})",
+                                                       lags, window)
+                                         : fmt::format(", {} lags in each window", lags));
   if (missing < static_cast<int>(windows.size()))
     out << fmt::format(
         "                         alpha {} to {} a year ({}), beta {:.2f} to {:.2f}{}\n",
-        pct(alpha_low), pct(alpha_high), rolling["annualize"].get<std::string>(), beta_low,
+        pct(alpha_low), pct(alpha_high), core::annualize_name(rolling.annualize), beta_low,
         beta_high, missing > 0 ? fmt::format("; {} windows without figures", missing) : "");
   else
     out << "                         no window could be estimated (see the warnings)\n";
   out << fmt::format(
       "                         one row per window: `alphatrail show {} --format csv`\n\n",
-      run["run_id"].get<std::int64_t>());
+      run.row.run_id);
 }
 
 }  // namespace
 
-void print_run_text(std::ostream& out, const ordered_json& run) {
-  const auto& sample = run["sample"];
-  const auto& stats = run["statistics"];
-  const std::string frequency = sample["frequency"];
-  const std::string unit = per(frequency);
-  const auto& params = run["parameters"];
-  out << fmt::format("Run {}: {} against {}\n", run["run_id"].get<std::int64_t>(),
-                     run["strategy"].get<std::string>(), run["benchmark"].get<std::string>());
-  out << fmt::format("  recorded {} (UTC), engine {}, inputs hash {}\n",
-                     run["created_at"].get<std::string>(), run["engine_version"].get<std::string>(),
-                     run["inputs_hash"].get<std::string>());
-  if (run["study"].is_string()) out << fmt::format("  study {}\n", run["study"].get<std::string>());
-  if (run["revises_run_id"].is_number())
-    out << fmt::format("  revises run {}\n", run["revises_run_id"].get<std::int64_t>());
-  out << fmt::format("  risk-free {}, {} basis, yield known at the period's {}\n",
-                     run["rate"].get<std::string>(), params["rate_basis"].get<std::string>(),
-                     params["rate_timing"].get<std::string>());
-  if (run["factors"].is_string())
-    out << fmt::format("  factors {}\n", run["factors"].get<std::string>());
-  out << fmt::format("  sample {} to {}: {} {} periods ({} dropped)\n",
-                     sample["first"].get<std::string>(), sample["last"].get<std::string>(),
-                     sample["observations"].get<int>(), frequency, sample["dropped"].get<int>());
+void print_run_text(std::ostream& out, const record::ShownRun& run) {
+  const auto& row = run.row;
+  const auto& sample = run.result.sample;
+  const auto& stats = run.result.statistics;
+  const auto& params = run.parameters;
+  const std::string unit = fmt::format("per {}", core::period_noun(sample.frequency));
+  out << fmt::format("Run {}: {} against {}\n", row.run_id, row.strategy, row.benchmark);
+  out << fmt::format("  recorded {} (UTC), engine {}, inputs hash {}\n", row.created_at,
+                     row.engine_version, row.inputs_hash);
+  if (row.study) out << fmt::format("  study {}\n", *row.study);
+  if (row.revises_run_id) out << fmt::format("  revises run {}\n", *row.revises_run_id);
+  out << fmt::format("  risk-free {}, {} basis, yield known at the period's {}\n", row.rate,
+                     core::rate_basis_name(params.rate_basis),
+                     core::rate_timing_name(params.rate_timing));
+  if (row.factors) out << fmt::format("  factors {}\n", *row.factors);
+  out << fmt::format("  sample {} to {}: {} {} periods ({} dropped)\n", sample.first, sample.last,
+                     sample.observations, core::frequency_name(sample.frequency), sample.dropped);
   out << fmt::format(
       "  standard errors {}; {:g}% intervals, Student t with {} degrees of freedom\n\n",
-      report::describe_errors(stats), 100 * stats["confidence"].get<double>(),
-      stats["degrees_of_freedom"].get<int>());
+      report::describe_errors(stats), 100 * stats.confidence, stats.degrees_of_freedom);
 
   Table table;
   table.header = {"term", "estimate", "std error", "t", "p", "interval low", "interval high"};
   table.right_aligned = {false, true, true, true, true, true, true};
-  for (const auto& c : run["coefficients"])
-    table.rows.push_back({c["term"].get<std::string>(), fixed(c["estimate"], 6),
-                          fixed(c["std_error"], 6), fixed(c["t_stat"], 2), p_text(c["p_value"]),
-                          fixed(c["ci_low"], 6), fixed(c["ci_high"], 6)});
+  for (const auto& c : run.result.coefficients)
+    table.rows.push_back({c.term, fixed(c.estimate, 6), fixed(c.std_error, 6), fixed(c.t_stat, 2),
+                          core::p_value_text(c.p_value), fixed(c.ci_low, 6), fixed(c.ci_high, 6)});
   std::ostringstream t;
   print_table(t, table);
   std::istringstream lines(t.str());
   for (std::string line; std::getline(lines, line);) out << "  " << line << '\n';
   out << fmt::format("  (alpha is a decimal return {}; slopes are unitless)\n\n", unit);
 
-  out << fmt::format("  alpha annualized       {} a year ({})\n", pct(stats["alpha_annualized"]),
-                     params["annualize"].get<std::string>());
+  out << fmt::format("  alpha annualized       {} a year ({})\n", pct(stats.alpha_annualized),
+                     core::annualize_name(params.annualize));
   out << fmt::format("  R-squared              {} (adjusted {}); residual sd {} {}\n",
-                     fixed(stats["r_squared"], 3), fixed(stats["adj_r_squared"], 3),
-                     fixed(stats["residual_std"], 5), unit);
-  out << fmt::format("  F statistic            {} (p {}), classic\n", fixed(stats["f_stat"], 2),
-                     p_text(stats["f_p_value"]));
+                     fixed(stats.r_squared, 3), fixed(stats.adj_r_squared, 3),
+                     fixed(stats.residual_std, 5), unit);
+  out << fmt::format("  F statistic            {} (p {}), classic\n", fixed(stats.f_stat, 2),
+                     core::p_value_text(stats.f_p_value));
   out << fmt::format("  Sharpe ratio           strategy {}, benchmark {} (annualized)\n",
-                     fixed(stats["sharpe_strategy"], 2), fixed(stats["sharpe_benchmark"], 2));
+                     fixed(stats.sharpe_strategy, 2), fixed(stats.sharpe_benchmark, 2));
   out << fmt::format("  appraisal ratio        {} (alpha / residual sd, annualized)\n",
-                     fixed(stats["appraisal_ratio"], 2));
+                     fixed(stats.appraisal_ratio, 2));
   out << fmt::format("  Treynor ratio          {} a year (mean excess return / beta)\n",
-                     pct(stats["treynor_ratio"]));
+                     pct(stats.treynor_ratio));
   out << fmt::format("  tracking error         {:.2f}% a year; information ratio {} (annualized)\n",
-                     100 * num(stats["tracking_error"]), fixed(stats["information_ratio"], 2));
+                     100 * stats.tracking_error, fixed(stats.information_ratio, 2));
   out << fmt::format("  mean excess return     strategy {}, benchmark {} {}\n",
-                     pct(stats["mean_excess_strategy"], 3), pct(stats["mean_excess_benchmark"], 3),
-                     unit);
+                     pct(stats.mean_excess_strategy, 3), pct(stats.mean_excess_benchmark, 3), unit);
   out << fmt::format(
       "  correlation            {}; up-market beta {} ({} periods), down-market beta {} ({} "
       "periods)\n\n",
-      fixed(stats["correlation"], 3), fixed(stats["up_market_beta"], 2),
-      stats["up_periods"].get<int>(), fixed(stats["down_market_beta"], 2),
-      stats["down_periods"].get<int>());
-  if (run.contains("rolling") && run["rolling"].is_object()) print_rolling_text(out, run);
-  for (const auto& w : run["warnings"]) out << "  warning: " << w.get<std::string>() << '\n';
-  if (!run["warnings"].empty()) out << '\n';
+      fixed(stats.correlation, 3), fixed(stats.up_market_beta, 2), stats.up_periods,
+      fixed(stats.down_market_beta, 2), stats.down_periods);
+  if (run.result.rolling) print_rolling_text(out, run, *run.result.rolling);
+  for (const auto& w : run.result.warnings) out << "  warning: " << w << '\n';
+  if (!run.result.warnings.empty()) out << '\n';
   out << "  Reading\n";
-  for (const auto& sentence : run["reading"]) out << "  - " << sentence.get<std::string>() << '\n';
+  for (const auto& sentence : run.result.reading) out << "  - " << sentence << '\n';
   out << '\n';
 }
 
@@ -199,7 +171,7 @@ void print_runs(std::ostream& out, store::Ledger& ledger, const std::vector<std:
     return;
   }
   if (format == Format::table && runs.size() <= 3) {
-    for (auto id : runs) print_run_text(out, ledger.load_run(id));
+    for (auto id : runs) print_run_text(out, ledger.load_run_record(id));
     return;
   }
   // Many runs: one line each, read in one query (runs of one command have consecutive ids).

@@ -4,13 +4,13 @@
 #pragma once
 
 #include <cstdint>
-#include <nlohmann/json.hpp>
 #include <ostream>
 #include <vector>
 
 #include "app/evaluate.h"
 #include "app/rerun.h"
 #include "cli/output.h"
+#include "record/shown_run.h"
 #include "store/ledger.h"
 
 namespace alphatrail::cli {
@@ -29,6 +29,6 @@ void print_runs(std::ostream& out, store::Ledger& ledger, const std::vector<std:
                 Format format);
 
 // Prints one run in full as text.
-void print_run_text(std::ostream& out, const nlohmann::ordered_json& run);
+void print_run_text(std::ostream& out, const record::ShownRun& run);
 
 }  // namespace alphatrail::cli

@@ -20,10 +20,7 @@ int window_lags(const CovarianceOptions& c, int window) {
 }
 
 void set_unestimated(RollingWindow& w) {
-  for (double* v : {&w.alpha, &w.alpha_std_error, &w.alpha_ci_low, &w.alpha_ci_high,
-                    &w.alpha_annualized, &w.alpha_annualized_ci_low, &w.alpha_annualized_ci_high,
-                    &w.beta, &w.beta_std_error, &w.beta_ci_low, &w.beta_ci_high})
-    *v = kNanValue;
+  for (const auto& figure : kWindowFigures) w.*figure.member = kNanValue;
 }
 
 }  // namespace

@@ -47,6 +47,26 @@ struct RollingWindow {
   std::string problem;  // why the window could not be estimated; empty when it was
 };
 
+// One figure of a window: its name as stored, in run_windows and in `show --format csv`, and
+// its member. The one list of the figures, in their stored order.
+struct WindowFigure {
+  const char* name;
+  double RollingWindow::*member;
+};
+inline constexpr WindowFigure kWindowFigures[] = {
+    {"alpha", &RollingWindow::alpha},
+    {"alpha_std_error", &RollingWindow::alpha_std_error},
+    {"alpha_ci_low", &RollingWindow::alpha_ci_low},
+    {"alpha_ci_high", &RollingWindow::alpha_ci_high},
+    {"alpha_annualized", &RollingWindow::alpha_annualized},
+    {"alpha_annualized_ci_low", &RollingWindow::alpha_annualized_ci_low},
+    {"alpha_annualized_ci_high", &RollingWindow::alpha_annualized_ci_high},
+    {"beta", &RollingWindow::beta},
+    {"beta_std_error", &RollingWindow::beta_std_error},
+    {"beta_ci_low", &RollingWindow::beta_ci_low},
+    {"beta_ci_high", &RollingWindow::beta_ci_high},
+};
+
 struct RollingOptions {
   int window = 0;                // N observations
   CovarianceOptions covariance;  // the run's: lags -1 is the automatic rule per window

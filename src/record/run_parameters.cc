@@ -84,6 +84,13 @@ std::string parameters_text(const RunParameters& p) {
   return j.dump();
 }
 
+std::vector<std::pair<std::string, std::string>> parameter_items(const RunParameters& p) {
+  std::vector<std::pair<std::string, std::string>> out;
+  for (const auto& [key, value] : nlohmann::json::parse(parameters_text(p)).items())
+    out.emplace_back(key, value.is_string() ? value.get<std::string>() : value.dump());
+  return out;
+}
+
 RunParameters read_parameters(std::int64_t run_id, std::string_view engine_version,
                               std::string_view text, nlohmann::ordered_json* document) {
   StoredJson s(run_id, "parameters", text);

@@ -14,6 +14,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include "core/annualize.h"
@@ -72,6 +73,10 @@ struct RunParameters {
 // Returns the canonical parameters text of a run, the text stored and hashed.
 // Example: parameters_text(p) starts {"alignment":"complete cases by calendar period ...
 std::string parameters_text(const RunParameters& p);
+
+// Returns each parameter's key with its value as text (a string as itself, any other value as
+// JSON), in stored order, for showing: e.g. {"annualize", "compound"}, {"confidence", "0.95"}.
+std::vector<std::pair<std::string, std::string>> parameter_items(const RunParameters& p);
 
 // Reads the stored parameters text of run `run_id`, recorded by engine `engine_version`, and
 // with `document` also hands back the text as read (its keys in stored order, for showing).

@@ -1,13 +1,14 @@
 // The three report pages: one run, a strategy's history, a study's variants. Each takes what
-// the ledger holds (runs as `show --format json` prints them) plus, for one run, its aligned
+// the ledger holds (runs as typed records, record/shown_run.h) plus, for one run, its aligned
 // sample recomputed from the run's own input versions, and returns a self-contained HTML
 // page (html.h) with charts (charts.h). Pure computation: no SQL, no file I/O.
 #pragma once
 
-#include <nlohmann/json.hpp>
 #include <optional>
 #include <string>
 #include <vector>
+
+#include "record/shown_run.h"
 
 namespace alphatrail::report {
 
@@ -20,16 +21,15 @@ struct PeriodData {
   std::vector<double> residuals;
 };
 
-// clang-tidy takes the implicit move of the JSON members for one that may throw (nlohmann's
-// move constructor checks its invariant); it does not.
-struct RunReportInput {        // NOLINT(bugprone-exception-escape)
-  nlohmann::ordered_json run;  // the run, as `alphatrail show RUN --format json`
+struct RunReportInput {
+  record::ShownRun run;
   PeriodData data;
-  std::string reproduction;        // how the sample was recomputed, and whether it matched
-  nlohmann::ordered_json rolling;  // the run's "rolling" object, or one computed for the page
-  bool rolling_from_run = true;    // false: computed for this page, not part of the run
-  std::optional<nlohmann::ordered_json> revised;  // the run this one revises, when it does
-  std::string made_by;                            // footer: engine version and time
+  std::string reproduction;  // how the sample was recomputed, and whether it matched
+  // The run's rolling estimates, or ones computed for the page; nullopt: none could be.
+  std::optional<record::StoredRolling> rolling;
+  bool rolling_from_run = true;             // false: computed for this page, not part of the run
+  std::optional<record::ShownRun> revised;  // the run this one revises, when it does
+  std::string made_by;                      // footer: engine version and time
 };
 
 // Returns the page of one run: header, scatter with the fit, rolling alpha and beta, growth
@@ -48,8 +48,8 @@ struct VersionRow {
 
 struct StrategyReportInput {
   std::string strategy;
-  std::vector<nlohmann::ordered_json> runs;  // every run of the strategy, oldest first
-  std::vector<VersionRow> versions;          // every version of the strategy's series
+  std::vector<record::ShownRun> runs;  // every run of the strategy, oldest first
+  std::vector<VersionRow> versions;    // every version of the strategy's series
   std::string made_by;
 };
 
@@ -59,7 +59,7 @@ std::string strategy_report(const StrategyReportInput& in);
 
 struct StudyReportInput {
   std::string study;
-  std::vector<nlohmann::ordered_json> runs;  // every run of the study, oldest first
+  std::vector<record::ShownRun> runs;  // every run of the study, oldest first
   std::string made_by;
 };
 
@@ -67,8 +67,8 @@ struct StudyReportInput {
 // trials stated and the t = 3 line, and the runs as a table.
 std::string study_report(const StudyReportInput& in);
 
-// Describes a run's standard errors from its "statistics" object, e.g. "Newey-West, 5 lags,
-// no small-sample factor" or "White HC3".
-std::string describe_errors(const nlohmann::ordered_json& statistics);
+// Describes a run's standard errors from its statistics, e.g. "Newey-West, 5 lags, no
+// small-sample factor" or "White HC3".
+std::string describe_errors(const record::StoredStatistics& statistics);
 
 }  // namespace alphatrail::report

@@ -38,4 +38,13 @@ record::RunRow Ledger::existing_run_row(std::int64_t run_id) {
   return std::move(*row);
 }
 
+record::ShownRun Ledger::load_run_record(std::int64_t run_id) {
+  record::ShownRun run;
+  run.row = existing_run_row(run_id);
+  run.inputs = read_shown_inputs(run_id);
+  run.parameters = record::read_parameters(run_id, run.row.engine_version, run.row.parameters_json);
+  run.result = record::read_run_result(run_id, run.row.result_json);
+  return run;
+}
+
 }  // namespace alphatrail::store

@@ -25,6 +25,7 @@
 #include "core/series_file.h"
 #include "record/content.h"
 #include "record/run_record.h"
+#include "record/shown_run.h"
 
 namespace alphatrail::store {
 
@@ -250,8 +251,14 @@ class Ledger {
   record::RunRow existing_run_row(std::int64_t run_id);
   // Returns the inputs of a stored run with their versions' names, numbers and hashes.
   virtual std::vector<record::RunInput> read_run_inputs(std::int64_t run_id) = 0;
-  // Returns the JSON run object of a run (the contract of `show --format json`); throws
-  // Error(not_found) when absent.
+  // Returns the inputs of a stored run as shown: versions, where they came from and each
+  // series' newest version; strategy, benchmark, rate, then factors.
+  virtual std::vector<record::ShownInput> read_shown_inputs(std::int64_t run_id) = 0;
+  // Returns a run as typed values, its stored texts read checked; throws Error(not_found) when
+  // absent and StoredTextError (corruption) naming the field that cannot be read.
+  record::ShownRun load_run_record(std::int64_t run_id);
+  // Returns the JSON run object of a run (the contract of `show --format json`: the stored
+  // texts' keys in stored order); throws like load_run_record.
   virtual nlohmann::ordered_json load_run(std::int64_t run_id) = 0;
   // Returns how many runs a study has (0 for an empty study name).
   virtual int count_study_runs(const std::string& study) = 0;

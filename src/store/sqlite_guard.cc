@@ -92,6 +92,9 @@ class GuardedLedger final : public Ledger {
   std::vector<record::RunInput> read_run_inputs(std::int64_t run_id) override {
     return guarded([&] { return ledger_.read_run_inputs(run_id); });
   }
+  std::vector<record::ShownInput> read_shown_inputs(std::int64_t run_id) override {
+    return guarded([&] { return ledger_.read_shown_inputs(run_id); });
+  }
   nlohmann::ordered_json load_run(std::int64_t run_id) override {
     return guarded([&] { return ledger_.load_run(run_id); });
   }

@@ -82,6 +82,7 @@ class SqliteLedger final : public Ledger {
                                        const std::function<void(std::size_t)>& on_stored) override;
   std::optional<record::RunRow> read_run_row(std::int64_t run_id) override;
   std::vector<record::RunInput> read_run_inputs(std::int64_t run_id) override;
+  std::vector<record::ShownInput> read_shown_inputs(std::int64_t run_id) override;
   nlohmann::ordered_json load_run(std::int64_t run_id) override;
   int count_study_runs(const std::string& study) override;
   int count_strategy_runs(const std::string& strategy) override;

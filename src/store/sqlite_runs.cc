@@ -310,9 +310,7 @@ int SqliteLedger::count_strategy_runs(const std::string& strategy) {
   return q->getColumn(0).getInt();
 }
 
-ordered_json SqliteLedger::load_run(std::int64_t run_id) {
-  const record::RunRow row = existing_run_row(run_id);
-  ordered_json inputs = ordered_json::array();
+std::vector<record::ShownInput> SqliteLedger::read_shown_inputs(std::int64_t run_id) {
   SQLite::Statement q(*db_,
                       "SELECT i.role, i.position, s.name, v.version, v.content_hash, i.columns, "
                       "v.source_file, coalesce(v.note, ''), (SELECT max(version) FROM "
@@ -322,20 +320,32 @@ ordered_json SqliteLedger::load_run(std::int64_t run_id) {
                       "'strategy' THEN 1 WHEN 'benchmark' THEN 2 WHEN 'rate' THEN 3 ELSE 4 END, "
                       "i.position");
   q.bind(1, run_id);
+  std::vector<record::ShownInput> out;
   while (q.executeStep())
-    inputs.push_back({{"role", q.getColumn(0).getString()},
-                      {"series", q.getColumn(2).getString()},
-                      {"version", q.getColumn(3).getInt()},
-                      {"content_hash", q.getColumn(4).getString()},
-                      {"columns", q.getColumn(5).getString()},
-                      {"source_file", q.getColumn(6).getString()},
-                      {"note", q.getColumn(7).getString()},
-                      {"latest_version", q.getColumn(8).getInt()}});
+    out.push_back({q.getColumn(0).getString(), q.getColumn(2).getString(), q.getColumn(3).getInt(),
+                   q.getColumn(4).getString(), q.getColumn(5).getString(),
+                   q.getColumn(6).getString(), q.getColumn(7).getString(),
+                   q.getColumn(8).getInt()});
+  return out;
+}
+
+ordered_json SqliteLedger::load_run(std::int64_t run_id) {
+  const record::RunRow row = existing_run_row(run_id);
+  ordered_json inputs = ordered_json::array();
+  for (const auto& in : read_shown_inputs(run_id))
+    inputs.push_back({{"role", in.role},
+                      {"series", in.series},
+                      {"version", in.version},
+                      {"content_hash", in.content_hash},
+                      {"columns", in.columns},
+                      {"source_file", in.source_file},
+                      {"note", in.note},
+                      {"latest_version", in.latest_version}});
   // Both stored texts are read checked: a field that is not what the engine writes stops here,
   // naming the run and the field, so that every reader of the run object may read it by key.
   ordered_json parameters;
   record::read_parameters(run_id, row.engine_version, row.parameters_json, &parameters);
-  const auto result = record::read_result(run_id, row.result_json);
+  const ordered_json result = record::read_result(run_id, row.result_json);
   ordered_json run = {
       {"run_id", row.run_id},
       {"created_at", row.created_at},

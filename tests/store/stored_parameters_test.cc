@@ -35,6 +35,8 @@ TEST(StoredParameters, EveryFixtureRunWritesBackItsStoredTextByteForByte) {
     EXPECT_EQ(alphatrail::record::parameters_text(parameters), stored);
     const std::string result = q.getColumn(3).getString();
     EXPECT_EQ(alphatrail::record::read_result(run_id, result).dump(), result);
+    EXPECT_EQ(alphatrail::record::result_text(alphatrail::record::read_run_result(run_id, result)),
+              result);
     ++runs;
   }
   EXPECT_EQ(runs, 16);
