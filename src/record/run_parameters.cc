@@ -86,7 +86,8 @@ std::string parameters_text(const RunParameters& p) {
 
 std::vector<std::pair<std::string, std::string>> parameter_items(const RunParameters& p) {
   std::vector<std::pair<std::string, std::string>> out;
-  for (const auto& [key, value] : nlohmann::json::parse(parameters_text(p)).items())
+  const auto document = nlohmann::json::parse(parameters_text(p));  // outlives items()
+  for (const auto& [key, value] : document.items())
     out.emplace_back(key, value.is_string() ? value.get<std::string>() : value.dump());
   return out;
 }
